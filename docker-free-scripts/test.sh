@@ -1,0 +1,35 @@
+#!/usr/bin/env bash
+# npm test — every suite against its own PostgreSQL cluster and a fresh database.
+# Extra arguments go to vitest (e.g. `npm test -- --project unit`).
+# Several test runs can share the machine by setting TIEPOINT_TEST_DB,
+# TIEPOINT_TEST_APP_PORT and NUXT_OUTPUT_DIR / NUXT_BUILD_DIR.
+source "$(dirname "$0")/lib.sh"
+cd "$ROOT"
+started=$(date +%s)
+
+PGPORT="${TIEPOINT_TEST_PG_PORT:-54339}"
+export TIEPOINT_TEST_APP_PORT="${TIEPOINT_TEST_APP_PORT:-3939}"
+export TIEPOINT_TEST_SMTP_PORT="${TIEPOINT_TEST_SMTP_PORT:-$((TIEPOINT_TEST_APP_PORT + 1000))}"
+export AUTH_ORIGIN="http://127.0.0.1:$TIEPOINT_TEST_APP_PORT/api/auth"
+export NUXT_OUTPUT_DIR="${NUXT_OUTPUT_DIR:-.output}"
+export NODE_ENV=production
+
+ensure_node_modules
+ensure_chromium
+ensure_auth_secret
+PG_EXTRA_OPTS="-c fsync=off -c synchronous_commit=off" pg_up pg-test "$PGPORT"
+OWN_PG_STOP="${TIEPOINT_KEEP_TEST_DB:-}"
+cleanup() { [ -z "$OWN_PG_STOP" ] && pg_down pg-test; }
+trap cleanup EXIT
+pg_database "$PGPORT" "${TIEPOINT_TEST_DB:-tiepoint_test}" fresh
+migrate
+ensure_build
+
+log "type check (vue-tsc)"
+npx vue-tsc -b --noEmit
+
+log "running tests"
+status=0
+npx vitest run "$@" || status=$?
+log "tests finished in $(( $(date +%s) - started )) s"
+exit $status

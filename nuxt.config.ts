@@ -1,0 +1,43 @@
+// Tiepoint — Nuxt configuration. Source folders sit at the top level (srcDir '.').
+export default defineNuxtConfig({
+  compatibilityDate: '2026-01-01',
+  srcDir: '.',
+  serverDir: 'server',
+  buildDir: process.env.NUXT_BUILD_DIR || '.nuxt',
+  devtools: { enabled: false },
+  telemetry: false,
+  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', '@sidebase/nuxt-auth'],
+  css: [
+    '@fontsource/ibm-plex-sans/300.css',
+    '@fontsource/ibm-plex-sans/400.css',
+    '@fontsource/ibm-plex-sans/500.css',
+    '@fontsource/ibm-plex-sans/600.css',
+    'leaflet/dist/leaflet.css',
+    '~/assets/css/main.css',
+  ],
+  typescript: { strict: true },
+  app: {
+    head: {
+      title: 'Tiepoint',
+      htmlAttrs: { lang: 'en' },
+      meta: [{ name: 'viewport', content: 'width=device-width, initial-scale=1' }],
+      link: [{ rel: 'icon', type: 'image/svg+xml', href: '/favicon.svg' }],
+    },
+  },
+  auth: {
+    baseURL: '/api/auth',
+    originEnvKey: 'AUTH_ORIGIN',
+    provider: { type: 'authjs', defaultProvider: 'credentials', addDefaultCallbackUrl: false },
+    globalAppMiddleware: false,
+    sessionRefresh: { enablePeriodically: false, enableOnWindowFocus: false },
+  },
+  runtimeConfig: {
+    authSecret: '',
+    publicUrl: '',
+  },
+  tailwindcss: { cssPath: false, viewer: false },
+  nitro: {
+    output: { dir: process.env.NUXT_OUTPUT_DIR || '.output' },
+    externals: { external: ['pdfkit', 'pg-boss', 'smtp-server', 'nodemailer', 'mailparser'] },
+  },
+})

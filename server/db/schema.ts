@@ -1,0 +1,423 @@
+// Tiepoint's data model (DESIGN.md section 4). One file so the whole model is
+// visible at once. Columns are camelCase here and snake_case in PostgreSQL
+// (drizzle `casing: 'snake_case'`). Every firm-owned table carries firm_id and
+// its indexes start with it: every query filters by the firm.
+import { sql } from 'drizzle-orm'
+import {
+  bigint,
+  boolean,
+  customType,
+  doublePrecision,
+  index,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  text,
+  timestamp,
+  uniqueIndex,
+} from 'drizzle-orm/pg-core'
+
+const bytea = customType<{ data: Buffer; driverData: Buffer }>({
+  dataType: () => 'bytea',
+})
+
+const id = () => integer().primaryKey().generatedAlwaysAsIdentity()
+const timestamps = {
+  createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow().$onUpdate(() => new Date()),
+}
+const firmRef = () => integer().notNull().references(() => firms.id, { onDelete: 'cascade' })
+
+export const roleEnum = pgEnum('role', ['owner', 'party_chief', 'field_crew', 'licensed_surveyor', 'client'])
+export const unitsEnum = pgEnum('units', ['m', 'ft', 'usft'])
+export const angleFormatEnum = pgEnum('angle_format', ['dms', 'gon'])
+export const projectStatusEnum = pgEnum('project_status', ['collecting', 'adjusted', 'signed', 'released'])
+export const stationKindEnum = pgEnum('station_kind', ['control', 'new'])
+export const fileFormatEnum = pgEnum('file_format', ['csv', 'landxml', 'manual'])
+export const observationKindEnum = pgEnum('observation_kind', [
+  'direction', 'angle', 'zenith', 'slope_distance', 'horizontal_distance', 'azimuth', 'height_difference',
+])
+export const runStatusEnum = pgEnum('run_status', ['queued', 'running', 'done', 'failed'])
+export const toleranceKindEnum = pgEnum('tolerance_kind', ['relative_ppm', 'fgdc_95', 'custom'])
+export const deliverableEnum = pgEnum('deliverable', ['csv', 'geojson', 'landxml', 'pdf'])
+
+// ── people and firms ─────────────────────────────────────────────────────────
+
+export const firms = pgTable('firms', {
+  id: id(),
+  slug: text().notNull().unique(),
+  name: text().notNull(),
+  /** optional settings: { tileUrl?: string } */
+  settings: jsonb().$type<{ tileUrl?: string | null }>().notNull().default({}),
+  ...timestamps,
+})
+
+export const users = pgTable('users', {
+  id: id(),
+  email: text().notNull().unique(),
+  name: text().notNull(),
+  /** null until an invited person sets a password */
+  passwordHash: text(),
+  licenceNumber: text(),
+  licenceJurisdiction: text(),
+  ...timestamps,
+})
+
+export const memberships = pgTable('memberships', {
+  id: id(),
+  firmId: firmRef(),
+  userId: integer().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  role: roleEnum().notNull(),
+  ...timestamps,
+}, (t) => [uniqueIndex('memberships_firm_user').on(t.firmId, t.userId), index('memberships_user').on(t.userId)])
+
+export const invitations = pgTable('invitations', {
+  id: id(),
+  firmId: firmRef(),
+  email: text().notNull(),
+  role: roleEnum().notNull(),
+  tokenHash: text().notNull().unique(),
+  invitedBy: integer().references(() => users.id, { onDelete: 'set null' }),
+  expiresAt: timestamp({ withTimezone: true }).notNull(),
+  acceptedAt: timestamp({ withTimezone: true }),
+  ...timestamps,
+}, (t) => [index('invitations_firm').on(t.firmId, t.email)])
+
+/** One-time password-reset links; belong to a person, not a firm. */
+export const passwordResets = pgTable('password_resets', {
+  id: id(),
+  userId: integer().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  tokenHash: text().notNull().unique(),
+  expiresAt: timestamp({ withTimezone: true }).notNull(),
+  usedAt: timestamp({ withTimezone: true }),
+  ...timestamps,
+})
+
+/** Personal API tokens; act with their owner's roles. Only the hash is kept. */
+export const apiTokens = pgTable('api_tokens', {
+  id: id(),
+  userId: integer().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  tokenHash: text().notNull().unique(),
+  /** first characters, shown in lists so a person can tell tokens apart */
+  prefix: text().notNull(),
+  lastUsedAt: timestamp({ withTimezone: true }),
+  revokedAt: timestamp({ withTimezone: true }),
+  ...timestamps,
+}, (t) => [index('api_tokens_user').on(t.userId)])
+
+// ── firm resources ──────────────────────────────────────────────────────────
+
+export const crews = pgTable('crews', {
+  id: id(),
+  firmId: firmRef(),
+  name: text().notNull(),
+  ...timestamps,
+}, (t) => [uniqueIndex('crews_firm_name').on(t.firmId, t.name)])
+
+export const crewMembers = pgTable('crew_members', {
+  id: id(),
+  firmId: firmRef(),
+  crewId: integer().notNull().references(() => crews.id, { onDelete: 'cascade' }),
+  userId: integer().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('crew_members_firm_crew_user').on(t.firmId, t.crewId, t.userId)])
+
+/** A-priori precision of an instrument and its set-up (distance σ = a mm + b ppm). */
+export const instrumentProfiles = pgTable('instrument_profiles', {
+  id: id(),
+  firmId: firmRef(),
+  name: text().notNull(),
+  distanceMm: doublePrecision().notNull(),
+  distancePpm: doublePrecision().notNull(),
+  directionArcsec: doublePrecision().notNull(),
+  zenithArcsec: doublePrecision().notNull(),
+  centeringInstrumentMm: doublePrecision().notNull(),
+  centeringTargetMm: doublePrecision().notNull(),
+  levellingMmPerSqrtKm: doublePrecision().notNull(),
+  /** invented preset shipped as an example, not a maker's specification */
+  isExample: boolean().notNull().default(false),
+  ...timestamps,
+}, (t) => [uniqueIndex('instrument_profiles_firm_name').on(t.firmId, t.name)])
+
+/** Accuracy standards as data, each with its published source beside it. */
+export const toleranceProfiles = pgTable('tolerance_profiles', {
+  id: id(),
+  firmId: firmRef(),
+  name: text().notNull(),
+  kind: toleranceKindEnum().notNull(),
+  /** relative_ppm / custom: { mm, ppm, confidence }; fgdc_95: { thresholdMm } */
+  params: jsonb().$type<Record<string, number>>().notNull(),
+  source: text().notNull(),
+  ...timestamps,
+}, (t) => [uniqueIndex('tolerance_profiles_firm_name').on(t.firmId, t.name)])
+
+export const projects = pgTable('projects', {
+  id: id(),
+  firmId: firmRef(),
+  name: text().notNull(),
+  description: text().notNull().default(''),
+  /** 'local' or 'EPSG:<code>' */
+  crs: text().notNull(),
+  /** proj4 definition of the CRS (null for a local plane) */
+  crsDefinition: text(),
+  units: unitsEnum().notNull().default('m'),
+  angleFormat: angleFormatEnum().notNull().default('dms'),
+  status: projectStatusEnum().notNull().default('collecting'),
+  toleranceProfileId: integer().references(() => toleranceProfiles.id, { onDelete: 'set null' }),
+  createdBy: integer().references(() => users.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [index('projects_firm').on(t.firmId, t.id)])
+
+export const projectCrews = pgTable('project_crews', {
+  id: id(),
+  firmId: firmRef(),
+  projectId: integer().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  crewId: integer().notNull().references(() => crews.id, { onDelete: 'cascade' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('project_crews_firm_project_crew').on(t.firmId, t.projectId, t.crewId)])
+
+/** Client users who may see a project's releases. */
+export const projectAccess = pgTable('project_access', {
+  id: id(),
+  firmId: firmRef(),
+  projectId: integer().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  userId: integer().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  grantedBy: integer().references(() => users.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('project_access_firm_project_user').on(t.firmId, t.projectId, t.userId)])
+
+/** Stations in metres (project units are a display choice). sd null = held fixed. */
+export const stations = pgTable('stations', {
+  id: id(),
+  firmId: firmRef(),
+  projectId: integer().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  description: text().notNull().default(''),
+  kind: stationKindEnum().notNull().default('new'),
+  approxEast: doublePrecision(),
+  approxNorth: doublePrecision(),
+  approxHeight: doublePrecision(),
+  controlEast: doublePrecision(),
+  controlNorth: doublePrecision(),
+  controlHeight: doublePrecision(),
+  sdEast: doublePrecision(),
+  sdNorth: doublePrecision(),
+  sdHeight: doublePrecision(),
+  ...timestamps,
+}, (t) => [uniqueIndex('stations_firm_project_name').on(t.firmId, t.projectId, t.name)])
+
+/** An uploaded file, kept byte-for-byte with its SHA-256 (legal record). */
+export const observationSets = pgTable('observation_sets', {
+  id: id(),
+  firmId: firmRef(),
+  projectId: integer().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  format: fileFormatEnum().notNull(),
+  content: bytea().notNull(),
+  sizeBytes: integer().notNull(),
+  sha256: text().notNull(),
+  crewId: integer().references(() => crews.id, { onDelete: 'set null' }),
+  instrumentProfileId: integer().references(() => instrumentProfiles.id, { onDelete: 'set null' }),
+  uploadedBy: integer().references(() => users.id, { onDelete: 'set null' }),
+  uploadedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  /** { lines, observations, controls, warnings: [...] } */
+  parseReport: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+  ...timestamps,
+}, (t) => [uniqueIndex('observation_sets_firm_project_sha').on(t.firmId, t.projectId, t.sha256)])
+
+/** Observations in SI units (metres, radians); `unit` records what the file used. */
+export const observations = pgTable('observations', {
+  id: id(),
+  firmId: firmRef(),
+  projectId: integer().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  setId: integer().notNull().references(() => observationSets.id, { onDelete: 'cascade' }),
+  line: integer().notNull(),
+  kind: observationKindEnum().notNull(),
+  at: text().notNull(),
+  from: text(),
+  to: text().notNull(),
+  value: doublePrecision().notNull(),
+  unit: text().notNull().default(''),
+  /** σ override in metres / radians; null = from the instrument profile */
+  sigma: doublePrecision(),
+  hi: doublePrecision(),
+  ht: doublePrecision(),
+  setName: text(),
+  lengthKm: doublePrecision(),
+  note: text().notNull().default(''),
+  excluded: boolean().notNull().default(false),
+  /** value as read from the file, kept when a person edits `value` */
+  originalValue: doublePrecision(),
+  ...timestamps,
+}, (t) => [
+  index('observations_firm_project').on(t.firmId, t.projectId, t.kind),
+  index('observations_firm_set').on(t.firmId, t.setId, t.line),
+])
+
+// ── adjustments and results ─────────────────────────────────────────────────
+
+export const adjustments = pgTable('adjustments', {
+  id: id(),
+  firmId: firmRef(),
+  projectId: integer().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  /** 1, 2, 3 … per project */
+  number: integer().notNull(),
+  settings: jsonb().$type<Record<string, unknown>>().notNull(),
+  /** SHA-256 over the exact inputs and settings */
+  inputHash: text().notNull(),
+  status: runStatusEnum().notNull().default('queued'),
+  attempts: integer().notNull().default(0),
+  startedAt: timestamp({ withTimezone: true }),
+  finishedAt: timestamp({ withTimezone: true }),
+  summary: jsonb().$type<Record<string, unknown>>(),
+  /** the engine's result in the CLI JSON shape */
+  result: jsonb().$type<Record<string, unknown>>(),
+  errorText: text(),
+  createdBy: integer().references(() => users.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('adjustments_firm_project_number').on(t.firmId, t.projectId, t.number)])
+
+export const adjustedStations = pgTable('adjusted_stations', {
+  id: id(),
+  firmId: firmRef(),
+  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  kind: stationKindEnum().notNull(),
+  fixed: boolean().notNull(),
+  east: doublePrecision(),
+  north: doublePrecision(),
+  height: doublePrecision(),
+  sdEast: doublePrecision(),
+  sdNorth: doublePrecision(),
+  sdHeight: doublePrecision(),
+  semiMajor: doublePrecision(),
+  semiMinor: doublePrecision(),
+  azimuthDeg: doublePrecision(),
+  semiMajor95: doublePrecision(),
+  semiMinor95: doublePrecision(),
+}, (t) => [index('adjusted_stations_firm_run').on(t.firmId, t.adjustmentId)])
+
+export const observationResults = pgTable('observation_results', {
+  id: id(),
+  firmId: firmRef(),
+  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
+  observationId: integer().references(() => observations.id, { onDelete: 'set null' }),
+  line: integer().notNull(),
+  kind: observationKindEnum().notNull(),
+  at: text().notNull(),
+  from: text(),
+  to: text().notNull(),
+  residual: doublePrecision(),
+  redundancy: doublePrecision(),
+  w: doublePrecision(),
+  tau: doublePrecision(),
+  mdb: doublePrecision(),
+  flagged: boolean().notNull().default(false),
+  excluded: boolean().notNull().default(false),
+}, (t) => [index('observation_results_firm_run').on(t.firmId, t.adjustmentId)])
+
+export const relativePrecisions = pgTable('relative_precisions', {
+  id: id(),
+  firmId: firmRef(),
+  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
+  fromStation: text().notNull(),
+  toStation: text().notNull(),
+  distance: doublePrecision().notNull(),
+  semiMajor: doublePrecision().notNull(),
+  semiMinor: doublePrecision().notNull(),
+  azimuthDeg: doublePrecision().notNull(),
+  semiMajor95: doublePrecision().notNull(),
+  allowable: doublePrecision(),
+  passes: boolean(),
+}, (t) => [index('relative_precisions_firm_run').on(t.firmId, t.adjustmentId)])
+
+// ── sign-off, release, audit ────────────────────────────────────────────────
+
+/** Immutable: a trigger refuses UPDATE and DELETE (server/db/sql). */
+export const signoffs = pgTable('signoffs', {
+  id: id(),
+  firmId: firmRef(),
+  projectId: integer().notNull().references(() => projects.id, { onDelete: 'restrict' }),
+  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'restrict' }),
+  signerId: integer().notNull().references(() => users.id, { onDelete: 'restrict' }),
+  signerName: text().notNull(),
+  licenceNumber: text().notNull(),
+  licenceJurisdiction: text().notNull(),
+  statement: text().notNull(),
+  /** the signed coordinate list, canonical order */
+  stations: jsonb().$type<Record<string, unknown>[]>().notNull(),
+  accuracyCheck: jsonb().$type<Record<string, unknown>>().notNull(),
+  inputHash: text().notNull(),
+  sha256: text().notNull(),
+  signedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [index('signoffs_firm_project').on(t.firmId, t.projectId)])
+
+export const releases = pgTable('releases', {
+  id: id(),
+  firmId: firmRef(),
+  projectId: integer().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  signoffId: integer().notNull().references(() => signoffs.id, { onDelete: 'restrict' }),
+  publishedBy: integer().references(() => users.id, { onDelete: 'set null' }),
+  publishedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  note: text().notNull().default(''),
+}, (t) => [index('releases_firm_project').on(t.firmId, t.projectId)])
+
+export const releaseFiles = pgTable('release_files', {
+  id: id(),
+  firmId: firmRef(),
+  releaseId: integer().notNull().references(() => releases.id, { onDelete: 'cascade' }),
+  format: deliverableEnum().notNull(),
+  fileName: text().notNull(),
+  contentType: text().notNull(),
+  content: bytea().notNull(),
+  sha256: text().notNull(),
+  sizeBytes: integer().notNull(),
+}, (t) => [uniqueIndex('release_files_firm_release_format').on(t.firmId, t.releaseId, t.format)])
+
+export const downloads = pgTable('downloads', {
+  id: id(),
+  firmId: firmRef(),
+  releaseId: integer().notNull().references(() => releases.id, { onDelete: 'cascade' }),
+  format: deliverableEnum().notNull(),
+  userId: integer().references(() => users.id, { onDelete: 'set null' }),
+  ip: text(),
+  at: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [index('downloads_firm_release').on(t.firmId, t.releaseId)])
+
+export const auditLog = pgTable('audit_log', {
+  id: bigint({ mode: 'number' }).primaryKey().generatedAlwaysAsIdentity(),
+  firmId: firmRef(),
+  userId: integer().references(() => users.id, { onDelete: 'set null' }),
+  action: text().notNull(),
+  entityType: text().notNull(),
+  entityId: text(),
+  projectId: integer(),
+  beforeHash: text(),
+  afterHash: text(),
+  before: jsonb(),
+  after: jsonb(),
+  at: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [index('audit_log_firm_at').on(t.firmId, t.at)])
+
+/** Development and test mailbox: what the in-process SMTP server received. */
+export const mailboxMessages = pgTable('mailbox_messages', {
+  id: id(),
+  to: text().notNull(),
+  from: text().notNull(),
+  subject: text().notNull(),
+  text: text().notNull(),
+  html: text(),
+  receivedAt: timestamp({ withTimezone: true }).notNull().default(sql`now()`),
+})
+
+export type Role = (typeof roleEnum.enumValues)[number]
+export type Firm = typeof firms.$inferSelect
+export type User = typeof users.$inferSelect
+export type Project = typeof projects.$inferSelect
+export type Station = typeof stations.$inferSelect
+export type ObservationRow = typeof observations.$inferSelect
+export type ObservationSetRow = typeof observationSets.$inferSelect
+export type Adjustment = typeof adjustments.$inferSelect
+export type Signoff = typeof signoffs.$inferSelect

@@ -1,0 +1,209 @@
+// Types shared by the adjustment engine, its readers and its callers (server,
+// worker, CLI). Units inside the engine are SI: metres and radians. Conversion
+// to feet, gon, arcseconds etc. happens only at the edges (readers, reports).
+
+export type ObservationKind =
+  | 'direction'
+  | 'angle'
+  | 'zenith'
+  | 'slope_distance'
+  | 'horizontal_distance'
+  | 'azimuth'
+  | 'height_difference'
+
+/** A problem found in an input file: where (line, column) and why. */
+export interface ReadIssue {
+  line: number
+  column: string
+  message: string
+}
+
+/** A control row: known coordinates of a station, fixed (sd null) or weighted. */
+export interface ControlRecord {
+  line: number
+  station: string
+  east: number | null
+  north: number | null
+  height: number | null
+  /** standard deviations in metres; null means held fixed */
+  sdEast: number | null
+  sdNorth: number | null
+  sdHeight: number | null
+}
+
+/** One measured quantity, already converted to metres / radians. */
+export interface ObservationRecord {
+  /** 1-based source line (or element ordinal for XML) */
+  line: number
+  kind: ObservationKind
+  /** instrument station */
+  at: string
+  /** backsight for angles; empty otherwise */
+  from: string | null
+  /** target station (for height_difference: the forward point, at = back point) */
+  to: string
+  /** metres for lengths and height differences, radians for angles */
+  value: number
+  /** a-priori standard deviation in metres or radians; null = from the instrument profile */
+  sigma: number | null
+  /** instrument and target heights in metres */
+  hi: number | null
+  ht: number | null
+  /** direction-set name; null = one set per station */
+  set: string | null
+  /** levelling length in km (height_difference) */
+  lengthKm: number | null
+  note: string
+  /** excluded observations are carried through and reported but not used */
+  excluded?: boolean
+  /** caller's key (e.g. database id), echoed in results */
+  id?: number | string
+}
+
+/** A-priori precision of an instrument and its set-up. */
+export interface InstrumentProfile {
+  distanceMm: number
+  distancePpm: number
+  directionArcsec: number
+  zenithArcsec: number
+  centeringInstrumentMm: number
+  centeringTargetMm: number
+  levellingMmPerSqrtKm: number
+}
+
+export type ReadResult =
+  | { ok: true; controls: ControlRecord[]; observations: ObservationRecord[]; warnings: ReadIssue[] }
+  | { ok: false; errors: ReadIssue[]; warnings: ReadIssue[] }
+
+// ---- adjustment engine: settings and results ----------------------------------
+
+export interface AdjustSettings {
+  /** 'as-given': control held fixed or weighted as read; 'free': inner constraints on all stations */
+  datum: 'as-given' | 'free'
+  /** scale precisions by the a-posteriori σ̂0² (default) or by the a-priori σ0 = 1 */
+  scaling: 'a-posteriori' | 'a-priori'
+  confidence: number
+  alpha: number
+  alpha0: number
+  beta0: number
+  maxIterations: number
+  weakRedundancy: number
+}
+
+export interface ApproximateCoordinate {
+  station: string
+  east?: number
+  north?: number
+  height?: number
+}
+
+export interface AdjustInput {
+  controls: ControlRecord[]
+  observations: ObservationRecord[]
+  profile?: InstrumentProfile
+  approximate?: ApproximateCoordinate[]
+}
+
+export interface Ellipse {
+  semiMajor: number
+  semiMinor: number
+  /** azimuth of the major axis, degrees clockwise from grid north, [0, 180) */
+  azimuthDeg: number
+}
+
+export interface StationResult {
+  name: string
+  east: number | null
+  north: number | null
+  height: number | null
+  sdEast: number | null
+  sdNorth: number | null
+  sdHeight: number | null
+  /** 1σ ellipse */
+  ellipse: Ellipse | null
+  /** ellipse at the settings' confidence (95 % by default) */
+  ellipse95: Ellipse | null
+  fixed: boolean
+  kind: 'control' | 'new'
+  controlled: { east: boolean; north: boolean; height: boolean }
+}
+
+export interface ObservationResult {
+  id: number | string | null
+  line: number
+  /** 'control' rows are coordinate observations of weighted control points */
+  kind: ObservationKind | 'control'
+  component: 'east' | 'north' | 'height' | null
+  at: string
+  from: string | null
+  to: string
+  /** observed and adjusted value: metres, or decimal degrees for angles */
+  observed: number
+  adjusted: number | null
+  valueUnit: 'm' | 'deg'
+  /** residual = adjusted − observed, σ and MDB: metres, or arcseconds for angles */
+  residual: number | null
+  sigma: number | null
+  residualUnit: 'm' | 'arcsec'
+  redundancy: number | null
+  w: number | null
+  flagged: boolean
+  tau: number | null
+  tauFlagged: boolean
+  mdb: number | null
+  /** largest shift of a station position (m) that an undetected MDB-sized error would cause */
+  mdbEffect: number | null
+  excluded: boolean
+  weak: boolean
+  /** why an observation did not enter the adjustment, when it did not */
+  remark: string | null
+}
+
+export interface RelativeResult {
+  from: string
+  to: string
+  distance: number
+  semiMajor: number
+  semiMinor: number
+  azimuthDeg: number
+  semiMajor95: number
+  sdDistance: number
+}
+
+export interface GlobalTest {
+  statistic: number
+  lower: number
+  upper: number
+  passed: boolean
+}
+
+export interface NetworkSummary {
+  dof: number
+  sigma0: number | null
+  globalTest: GlobalTest
+  counts: { n: number; u: number; r: number }
+  iterations: number
+}
+
+export interface AdjustmentResult {
+  converged: boolean
+  iterations: number
+  dof: number
+  sigma0: number | null
+  globalTest: GlobalTest
+  stations: StationResult[]
+  observations: ObservationResult[]
+  plane?: NetworkSummary
+  height?: NetworkSummary
+  relative: RelativeResult[]
+  health: { conditionEstimate: number; dominant: string | null }
+  counts: { n: number; u: number; r: number }
+  critical: { w: number; tau: number | null; delta0: number }
+  settings: AdjustSettings
+}
+
+export type AdjustFailureCode = 'singular' | 'not_converged' | 'unplaceable' | 'input'
+
+export type AdjustOutcome =
+  | { ok: true; result: AdjustmentResult }
+  | { ok: false; code: AdjustFailureCode; reason: string; stations?: string[] }

@@ -1,0 +1,86 @@
+// Projects of a firm: list with status and counts, create, read, update.
+import { and, desc, eq, inArray, sql } from 'drizzle-orm'
+import { findCrs } from '../../shared/crs'
+import type { ProjectCreate, ProjectUpdate } from '../../shared/schemas/projects'
+import { adjustments, observations, projectAccess, projects, stations } from '../db/schema'
+import type { Project } from '../db/schema'
+import type { FirmContext } from '../utils/guard'
+import { useDb } from '../db/client'
+import { audit } from './audit'
+
+export interface ProjectDto {
+  id: number
+  name: string
+  description: string
+  crs: string
+  crsName: string
+  units: Project['units']
+  angleFormat: Project['angleFormat']
+  status: Project['status']
+  toleranceProfileId: number | null
+  createdAt: string
+  updatedAt: string
+  counts?: { stations: number; observations: number; runs: number }
+}
+
+export function projectDto(p: Project): ProjectDto {
+  return {
+    id: p.id,
+    name: p.name,
+    description: p.description,
+    crs: p.crs,
+    crsName: p.crs === 'local' ? 'Local plane system' : (findCrs(p.crs)?.name ?? p.crs),
+    units: p.units,
+    angleFormat: p.angleFormat,
+    status: p.status,
+    toleranceProfileId: p.toleranceProfileId,
+    createdAt: p.createdAt.toISOString(),
+    updatedAt: p.updatedAt.toISOString(),
+  }
+}
+
+export async function listProjects(ctx: FirmContext): Promise<ProjectDto[]> {
+  const db = useDb()
+  const where = ctx.role === 'client'
+    ? and(eq(projects.firmId, ctx.firm.id), inArray(projects.id,
+        db.select({ id: projectAccess.projectId }).from(projectAccess)
+          .where(and(eq(projectAccess.firmId, ctx.firm.id), eq(projectAccess.userId, ctx.user.id)))))
+    : eq(projects.firmId, ctx.firm.id)
+  const rows = await db.select({
+    project: projects,
+    stations: sql<number>`(select count(*)::int from ${stations} s where s.firm_id = ${projects.firmId} and s.project_id = ${projects.id})`,
+    observations: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = ${projects.firmId} and o.project_id = ${projects.id})`,
+    runs: sql<number>`(select count(*)::int from ${adjustments} a where a.firm_id = ${projects.firmId} and a.project_id = ${projects.id})`,
+  }).from(projects).where(where).orderBy(desc(projects.updatedAt))
+  return rows.map((r) => ({ ...projectDto(r.project), counts: { stations: r.stations, observations: r.observations, runs: r.runs } }))
+}
+
+export async function createProject(ctx: FirmContext, body: ProjectCreate): Promise<ProjectDto> {
+  const db = useDb()
+  return db.transaction(async (tx) => {
+    const [p] = await tx.insert(projects).values({
+      firmId: ctx.firm.id,
+      name: body.name,
+      description: body.description ?? '',
+      crs: body.crs,
+      crsDefinition: body.crs === 'local' ? null : findCrs(body.crs)!.proj4,
+      units: body.units,
+      angleFormat: body.angleFormat ?? 'dms',
+      createdBy: ctx.user.id,
+    }).returning()
+    await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'project.create', entityType: 'project', entityId: p!.id, projectId: p!.id, after: projectDto(p!) })
+    return projectDto(p!)
+  })
+}
+
+export async function updateProject(ctx: FirmContext, project: Project, body: ProjectUpdate): Promise<ProjectDto> {
+  const db = useDb()
+  return db.transaction(async (tx) => {
+    const patch: Partial<typeof projects.$inferInsert> = { ...body }
+    if (body.crs) patch.crsDefinition = body.crs === 'local' ? null : findCrs(body.crs)!.proj4
+    const [p] = await tx.update(projects).set(patch)
+      .where(and(eq(projects.firmId, ctx.firm.id), eq(projects.id, project.id))).returning()
+    await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'project.update', entityType: 'project', entityId: project.id, projectId: project.id, before: projectDto(project), after: projectDto(p!) })
+    return projectDto(p!)
+  })
+}
