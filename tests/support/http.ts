@@ -1,0 +1,83 @@
+// A small API client for tests: signs in through the real next-auth routes
+// and keeps the session cookie, or uses a bearer token.
+import { baseUrl, demoPassword } from './env'
+
+export interface ApiResponse<T = any> {
+  status: number
+  body: T
+  headers: Headers
+}
+
+export class Client {
+  cookies = new Map<string, string>()
+  constructor(public bearer?: string) {}
+
+  private cookieHeader() {
+    return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ')
+  }
+
+  private keep(res: Response) {
+    for (const c of res.headers.getSetCookie()) {
+      const [pair] = c.split(';')
+      const i = pair!.indexOf('=')
+      this.cookies.set(pair!.slice(0, i), pair!.slice(i + 1))
+    }
+  }
+
+  async raw(path: string, init: RequestInit = {}): Promise<Response> {
+    const headers = new Headers(init.headers)
+    if (this.cookies.size) headers.set('cookie', this.cookieHeader())
+    if (this.bearer) headers.set('authorization', `Bearer ${this.bearer}`)
+    const res = await fetch(baseUrl + path, { ...init, headers, redirect: 'manual' })
+    this.keep(res)
+    return res
+  }
+
+  async request<T = any>(method: string, path: string, body?: unknown): Promise<ApiResponse<T>> {
+    const init: RequestInit = { method }
+    if (body instanceof FormData) init.body = body
+    else if (typeof body === 'string') { init.body = body; init.headers = { 'content-type': 'application/json' } }
+    else if (body !== undefined) { init.body = JSON.stringify(body); init.headers = { 'content-type': 'application/json' } }
+    const res = await this.raw(path, init)
+    const text = await res.text()
+    let parsed: any = text
+    try { parsed = text ? JSON.parse(text) : null } catch { /* not JSON */ }
+    return { status: res.status, body: parsed as T, headers: res.headers }
+  }
+
+  get<T = any>(path: string) { return this.request<T>('GET', path) }
+  post<T = any>(path: string, body?: unknown) { return this.request<T>('POST', path, body) }
+  patch<T = any>(path: string, body?: unknown) { return this.request<T>('PATCH', path, body) }
+  delete<T = any>(path: string) { return this.request<T>('DELETE', path) }
+
+  /** Signs in with e-mail and password; returns the HTTP status of the attempt. */
+  async signIn(email: string, password = demoPassword): Promise<number> {
+    const csrf = await this.get<{ csrfToken: string }>('/api/auth/csrf')
+    const form = new URLSearchParams({ csrfToken: csrf.body.csrfToken, email, password, json: 'true' })
+    const res = await this.raw('/api/auth/callback/credentials', {
+      method: 'POST', body: form, headers: { 'content-type': 'application/x-www-form-urlencoded' },
+    })
+    await res.text()
+    return res.status
+  }
+}
+
+/** A client signed in as the given demo user (throws when sign-in fails). */
+export async function as(email: string, password = demoPassword): Promise<Client> {
+  const c = new Client()
+  await c.signIn(email, password)
+  const me = await c.get('/api/me')
+  if (me.status !== 200) throw new Error(`sign-in as ${email} failed: ${me.status} ${JSON.stringify(me.body)}`)
+  return c
+}
+
+export const DEMO = {
+  owner: 'owner@tiepoint.test',
+  chief: 'chief@tiepoint.test',
+  crew: 'crew@tiepoint.test',
+  surveyor: 'surveyor@tiepoint.test',
+  client: 'client@tiepoint.test',
+  other: 'other@tiepoint.test',
+  firm: 'larchmere',
+  otherFirm: 'kestrel',
+} as const

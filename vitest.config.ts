@@ -1,0 +1,14 @@
+// Three suites: unit (no server), api and e2e (against the built app and a
+// fresh test database started by docker-free-scripts/test.sh).
+import { defineConfig } from 'vitest/config'
+
+export default defineConfig({
+  test: {
+    globalSetup: ['tests/support/server-setup.ts'],
+    projects: [
+      { test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], testTimeout: 60_000 } },
+      { test: { name: 'api', include: ['tests/api/**/*.test.ts'], fileParallelism: false, testTimeout: 60_000, hookTimeout: 120_000 } },
+      { test: { name: 'e2e', include: ['tests/e2e/**/*.test.ts'], fileParallelism: false, testTimeout: 120_000, hookTimeout: 120_000 } },
+    ],
+  },
+})
