@@ -1,0 +1,175 @@
+// LandXML 1.2 reader. The fixtures are written by hand from the LandXML 1.2
+// schema (LandXML.org, LandXML-1.2.xsd); expected values follow from the unit
+// definitions (U.S. survey foot = 1200/3937 m, 24 FR 5348, 1959; 1 gon = π/200
+// rad, ISO 80000-3) and from line numbers counted in the fixture text.
+import { readFileSync } from 'node:fs'
+import { describe, expect, it } from 'vitest'
+import { readLandXml } from '../../../server/engine/io/landxml'
+import type { ReadIssue, ReadResult } from '../../../server/engine/types'
+
+const DEG = Math.PI / 180
+const fixture = (name: string) => readFileSync(new URL(`../../fixtures/io/${name}`, import.meta.url), 'utf8')
+
+function ok(r: ReadResult) {
+  if (!r.ok) throw new Error('expected ok, got errors: ' + JSON.stringify(r.errors))
+  return r
+}
+function errorsOf(r: ReadResult): ReadIssue[] {
+  if (r.ok) throw new Error('expected errors, got ok')
+  return r.errors
+}
+const UNITS = '<Units><Metric linearUnit="meter" angularUnit="decimal degrees"/></Units>'
+const doc = (body: string, units = UNITS) => `<?xml version="1.0"?>\n<LandXML version="1.2">\n${units}\n${body}\n</LandXML>\n`
+
+describe('metric fixture (landxml-metric.xml)', () => {
+  const r = ok(readLandXml(fixture('landxml-metric.xml')))
+
+  it('CgPoints marked pntSurv="control" become fixed control, northing first', () => {
+    expect(r.controls).toEqual([
+      { line: 9, station: 'K1', east: 1000, north: 5000, height: 50, sdEast: null, sdNorth: null, sdHeight: null },
+      { line: 10, station: 'K2', east: 1200, north: 5100, height: null, sdEast: null, sdNorth: null, sdHeight: null },
+    ])
+  })
+  it('other CgPoints are reported, not dropped silently', () => {
+    expect(r.warnings).toContainEqual(
+      expect.objectContaining({ line: 11, column: 'LandXML[1]/CgPoints[1]/CgPoint[3]', message: expect.stringContaining("'N3'") }),
+    )
+  })
+  it('a RawObservation with three measurements gives direction, zenith and slope distance at its source line', () => {
+    const first = r.observations.filter((o) => o.line === 18)
+    expect(first.map((o) => o.kind)).toEqual(['direction', 'zenith', 'slope_distance'])
+    expect(first[0]).toMatchObject({ at: 'K1', to: 'K2', value: 0, set: 'SU1', hi: 1.55, ht: 1.7, sigma: null })
+    expect(first[1]!.value).toBeCloseTo(90.5 * DEG, 15)
+    expect(first[1]!.set).toBeNull()
+    expect(first[2]!.value).toBe(223.61)
+  })
+  it('horizDistance becomes a horizontal distance; desc becomes the note', () => {
+    const second = r.observations.filter((o) => o.line === 21)
+    expect(second.map((o) => o.kind)).toEqual(['direction', 'horizontal_distance'])
+    expect(second[0]!.value).toBeCloseTo(45.25 * DEG, 15)
+    expect(second[1]).toMatchObject({ value: 111.8034, note: 'to N3', ht: 1.6 })
+  })
+  it('a RawObservation in an ObservationGroup joins its set-up by setupID', () => {
+    const g = r.observations.filter((o) => o.line === 29)
+    expect(g.map((o) => o.kind)).toEqual(['direction', 'azimuth'])
+    expect(g[0]).toMatchObject({ at: 'N3', to: 'K1', set: 'SU2', hi: 1.4 })
+    expect(g[0]!.value).toBeCloseTo(Math.PI, 15)
+    expect(g[1]!.value).toBeCloseTo(1.5 * Math.PI, 15)
+  })
+  it('metadata elements (Project, SurveyHeader, Backsight) raise no warnings', () => {
+    expect(r.warnings).toHaveLength(1)
+  })
+})
+
+describe('imperial fixture (landxml-imperial.xml): U.S. survey feet, grads, radians', () => {
+  const r = ok(readLandXml(fixture('landxml-imperial.xml')))
+  it('converts coordinates with 1200/3937 m per foot', () => {
+    expect(r.controls[0]!.north).toBeCloseTo(1200, 9)
+    expect(r.controls[0]!.east).toBeCloseTo(1000 * (1200 / 3937), 9)
+    expect(r.controls[0]!.height).toBeCloseTo(100 * (1200 / 3937), 9)
+  })
+  it('converts angles in grads and the direction unit in radians', () => {
+    const [dir, zen, az, sd] = r.observations
+    expect(dir!.value).toBeCloseTo(Math.PI / 2, 15)
+    expect(zen!.value).toBeCloseTo(Math.PI / 2, 15)
+    expect(az!.value).toBe(1.5)
+    expect(sd!.value).toBeCloseTo(1200, 9)
+    expect(dir!.hi).toBeCloseTo(5 * (1200 / 3937), 12)
+    expect(dir!.ht).toBeCloseTo(6 * (1200 / 3937), 12)
+  })
+  it('a set-up without id gets a set named by its ordinal', () => {
+    expect(r.observations[0]!.set).toBe('setup 1')
+  })
+})
+
+describe('units', () => {
+  it('international foot and packed dd.mm.ss', () => {
+    const r = ok(
+      readLandXml(
+        doc(
+          '<Survey><InstrumentSetup stationName="A"><RawObservation horizAngle="123.4506" slopeDistance="100"><TargetPoint pntRef="B"/></RawObservation></InstrumentSetup></Survey>',
+          '<Units><Imperial linearUnit="foot" angularUnit="decimal dd.mm.ss"/></Units>',
+        ),
+      ),
+    )
+    expect(r.observations[0]!.value).toBeCloseTo((123 + 45 / 60 + 6 / 3600) * DEG, 14)
+    expect(r.observations[1]!.value).toBeCloseTo(30.48, 12)
+  })
+  it('missing Units is an error: the reader does not guess', () => {
+    const errs = errorsOf(readLandXml('<LandXML>\n<CgPoints/>\n</LandXML>'))
+    expect(errs[0]).toMatchObject({ line: 1, column: 'LandXML[1]' })
+  })
+  it('unsupported linear and angular units are errors naming the attribute', () => {
+    const errs = errorsOf(readLandXml(doc('', '<Units><Metric linearUnit="furlong" angularUnit="mils"/></Units>')))
+    expect(errs.map((e) => e.column)).toEqual(['LandXML[1]/Units[1]/Metric[1]@linearUnit', 'LandXML[1]/Units[1]/Metric[1]@angularUnit'])
+    expect(errs[0]!.line).toBe(3)
+  })
+})
+
+describe('errors and warnings name the element and its source line', () => {
+  it('malformed XML reports the parser line', () => {
+    const errs = errorsOf(readLandXml('<?xml version="1.0"?>\n<LandXML>\n<Units>\n</LandXML>'))
+    expect(errs[0]!.line).toBeGreaterThanOrEqual(2)
+    expect(errs[0]!.column).toBe('xml')
+  })
+  it('a root other than LandXML is refused', () => {
+    expect(errorsOf(readLandXml('<Other/>'))[0]!.message).toMatch(/not LandXML/)
+  })
+  it('an empty document is refused', () => {
+    expect(errorsOf(readLandXml('  '))[0]).toMatchObject({ line: 1, column: 'xml' })
+  })
+  it('every bad RawObservation is reported, and nothing is returned', () => {
+    const body = [
+      '<Survey>', // 4
+      '<InstrumentSetup stationName="A" instrumentHeight="x1">', // 5
+      '<RawObservation horizAngle="abc"><TargetPoint pntRef="B"/></RawObservation>', // 6
+      '<RawObservation horizAngle="10" slopeDistance="-3"><TargetPoint pntRef="B"/></RawObservation>', // 7
+      '<RawObservation zenithAngle="400"><TargetPoint pntRef="B"/></RawObservation>', // 8
+      '<RawObservation horizAngle="10"/>', // 9
+      '<RawObservation horizAngle="10"><TargetPoint pntRef="A"/></RawObservation>', // 10
+      '</InstrumentSetup>',
+      '<ObservationGroup><RawObservation setupID="nope" horizAngle="1"><TargetPoint pntRef="B"/></RawObservation></ObservationGroup>', // 12
+      '</Survey>',
+    ].join('\n')
+    const errs = errorsOf(readLandXml(doc(body)))
+    expect(errs.map((e) => [e.line, e.column])).toEqual([
+      [5, 'LandXML[1]/Survey[1]/InstrumentSetup[1]@instrumentHeight'],
+      [6, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/RawObservation[1]@horizAngle'],
+      [7, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/RawObservation[2]@slopeDistance'],
+      [8, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/RawObservation[3]@zenithAngle'],
+      [9, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/RawObservation[4]'],
+      [10, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/RawObservation[5]'],
+      [12, 'LandXML[1]/Survey[1]/ObservationGroup[1]/RawObservation[1]@setupID'],
+    ])
+  })
+  it('unknown elements and unread attributes become warnings with path and ordinal', () => {
+    const body = [
+      '<Alignments/>', // 4
+      '<Survey>', // 5
+      '<InstrumentSetup stationName="A">', // 6
+      '<RawObservation horizAngle="1" vertDistance="2"><TargetPoint pntRef="B"/><Widget/></RawObservation>', // 7
+      '<Gadget/><Gadget/>', // 8
+      '</InstrumentSetup>',
+      '</Survey>',
+    ].join('\n')
+    const r = ok(readLandXml(doc(body)))
+    expect(r.warnings.map((w) => [w.line, w.column])).toEqual([
+      [4, 'LandXML[1]/Alignments[1]'],
+      [8, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/Gadget[1]'],
+      [8, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/Gadget[2]'],
+      [7, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/RawObservation[1]/Widget[1]'],
+      [7, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/RawObservation[1]@vertDistance'],
+    ])
+  })
+  it('control CgPoints with bad text or duplicate names are errors', () => {
+    const body = '<CgPoints>\n<CgPoint name="A" pntSurv="control">1 2 3 4</CgPoint>\n<CgPoint name="B" pntSurv="control">1 x</CgPoint>\n<CgPoint name="C" pntSurv="control">1 2</CgPoint>\n<CgPoint name="C" pntSurv="control">1 2</CgPoint>\n<CgPoint pntSurv="control">1 2</CgPoint>\n</CgPoints>'
+    const errs = errorsOf(readLandXml(doc(body)))
+    expect(errs.map((e) => e.line)).toEqual([5, 6, 8, 9])
+  })
+  it('CRLF line endings give the same line numbers', () => {
+    const text = fixture('landxml-metric.xml')
+    const a = ok(readLandXml(text))
+    const b = ok(readLandXml('\uFEFF' + text.replace(/\n/g, '\r\n')))
+    expect(b.observations).toEqual(a.observations)
+  })
+})
