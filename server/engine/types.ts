@@ -183,6 +183,9 @@ export interface NetworkSummary {
   globalTest: GlobalTest
   counts: { n: number; u: number; r: number }
   iterations: number
+  tauCritical: number | null
+  conditionEstimate: number
+  dominant: string | null
 }
 
 export interface AdjustmentResult {

@@ -1,0 +1,292 @@
+// Gauss–Newton least squares on a whitened, linearized model, solved each
+// iteration with the pivoted Householder QR of ./qr (the normal equations AᵀPA
+// are never formed). Free networks get the minimum-norm (inner-constraint)
+// solution by an S-transformation of the basic QR solution and its cofactor
+// matrix onto the datum defined by the null-space vectors G and weights B.
+//
+// Sources: Teunissen, P.J.G. (2000) Adjustment Theory, Delft University Press
+// (Gauss–Newton iteration, ch. 4, from memory); Baarda, W. (1973)
+// S-transformations and criterion matrices, Netherlands Geodetic Commission,
+// Publications on Geodesy 5(1): x_S = (I − G(BᵀG)⁻¹Bᵀ)·x, Qxx_S = S·Qxx·Sᵀ.
+
+import { cofactor, factorize, inverseR, solve, type QrFactorization } from './qr'
+
+/** One linearized observation: a·dx ≈ l, unwhitened (metres / radians). */
+export interface LinearRow {
+  cols: number[]
+  coef: number[]
+  /** l = observed − computed at the linearization point */
+  misclosure: number
+  sigma: number
+  computed: number
+}
+
+export interface NonlinearProblem {
+  u: number
+  /** surveyor-readable name of each unknown, e.g. "station K7 (north)" */
+  labels: string[]
+  /** per unknown: convergence threshold (metres or radians) */
+  tolerance: Float64Array
+  x0: Float64Array
+  linearize(x: Float64Array): LinearRow[]
+  /** free datum: candidate null-space vectors at x and the datum weights (1 = takes part) */
+  nullSpace?(x: Float64Array): { g: Float64Array[]; weights: Float64Array }
+}
+
+export interface LsqTimings {
+  factorizationMs: number
+  cofactorMs: number
+}
+
+export type LsqOutcome =
+  | {
+      ok: true
+      x: Float64Array
+      iterations: number
+      rank: number
+      datumDefect: number
+      /** cofactor matrix of the unknowns (u×u, column-major), σ0 = 1 a priori */
+      qxx: Float64Array
+      /** linearization at the adjusted unknowns: misclosure = −v */
+      rows: LinearRow[]
+      conditionEstimate: number
+      dominant: number | null
+      timings: LsqTimings
+    }
+  | { ok: false; code: 'singular'; dependent: number[] }
+  | { ok: false; code: 'not_converged'; iterations: number; maxStep: number }
+
+export function solveNonlinear(problem: NonlinearProblem, maxIterations: number): LsqOutcome {
+  const u = problem.u
+  const x = Float64Array.from(problem.x0)
+  const timings: LsqTimings = { factorizationMs: 0, cofactorMs: 0 }
+  let order: Int32Array | null = null
+  let lastStep = Infinity
+  for (let it = 1; it <= maxIterations; it++) {
+    const rows = problem.linearize(x)
+    // rows sorted by their first unknown keep each reflector's rows close together
+    if (!order) order = rowOrder(rows)
+    const m = rows.length
+    const a = new Float64Array(m * u)
+    const l = new Float64Array(m)
+    for (let t = 0; t < m; t++) {
+      const row = rows[order[t]]
+      const w = 1 / row.sigma
+      for (let c = 0; c < row.cols.length; c++) a[row.cols[c] * m + t] += row.coef[c] * w
+      l[t] = row.misclosure * w
+    }
+    const columnNorms = new Float64Array(u)
+    for (let j = 0; j < u; j++) {
+      let s = 0
+      for (let i = 0; i < m; i++) s += a[j * m + i] * a[j * m + i]
+      columnNorms[j] = Math.sqrt(s)
+    }
+    const t0 = performance.now()
+    const f = factorize(a, m, u, l)
+    timings.factorizationMs += performance.now() - t0
+
+    let datum: Datum | null = null
+    if (problem.nullSpace) datum = buildDatum(problem.nullSpace(x), rows, u)
+    const defect = datum ? datum.g.length : 0
+    if (f.rank < u - defect) {
+      return { ok: false, code: 'singular', dependent: Array.from(f.perm.subarray(f.rank)) }
+    }
+    let dx = solve(f)
+    if (datum) dx = sTransformVector(datum, dx)
+    let converged = true
+    let step = 0
+    for (let j = 0; j < u; j++) {
+      x[j] += dx[j]
+      const r = Math.abs(dx[j]) / problem.tolerance[j]
+      if (r > step) step = r
+      if (r >= 1) converged = false
+    }
+    lastStep = step
+    if (converged) {
+      const t1 = performance.now()
+      const rInv = inverseR(f)
+      let qxx = cofactor(f, rInv)
+      if (datum) qxx = sTransformMatrix(datum, qxx, u)
+      const health = condition(f, rInv, columnNorms, qxx)
+      timings.cofactorMs += performance.now() - t1
+      return {
+        ok: true,
+        x,
+        iterations: it,
+        rank: f.rank,
+        datumDefect: defect,
+        qxx,
+        rows: problem.linearize(x),
+        conditionEstimate: health.kappa,
+        dominant: health.dominant,
+        timings,
+      }
+    }
+  }
+  return { ok: false, code: 'not_converged', iterations: maxIterations, maxStep: lastStep }
+}
+
+function rowOrder(rows: LinearRow[]): Int32Array {
+  const first = rows.map((r) => (r.cols.length ? Math.min(...r.cols) : Infinity))
+  const idx = Array.from(rows.keys())
+  idx.sort((p, q) => first[p] - first[q] || p - q)
+  return Int32Array.from(idx)
+}
+
+interface Datum {
+  g: Float64Array[]
+  weights: Float64Array
+  /** K = G·(BᵀG)⁻¹, L = B = diag(weights)·G; S = I − K·Lᵀ */
+  k: Float64Array[]
+  b: Float64Array[]
+}
+
+/** Keeps only the candidate vectors that are in the null space of A (‖A·g‖ ≈ 0). */
+function buildDatum(ns: { g: Float64Array[]; weights: Float64Array }, rows: LinearRow[], u: number): Datum {
+  const g = ns.g.filter((vec) => {
+    let num = 0
+    let den = 0
+    for (const row of rows) {
+      let s = 0
+      let sa = 0
+      for (let c = 0; c < row.cols.length; c++) {
+        s += (row.coef[c] * vec[row.cols[c]]) / row.sigma
+        sa += Math.abs((row.coef[c] * vec[row.cols[c]]) / row.sigma)
+      }
+      num += s * s
+      den += sa * sa
+    }
+    return den === 0 || num <= 1e-16 * den
+  })
+  const d = g.length
+  const b = g.map((vec) => vec.map((v, i) => v * ns.weights[i]))
+  // M = BᵀG (d×d), K = G·M⁻¹
+  const mm: number[][] = []
+  for (let p = 0; p < d; p++) {
+    mm.push([])
+    for (let q = 0; q < d; q++) {
+      let s = 0
+      for (let i = 0; i < u; i++) s += b[p][i] * g[q][i]
+      mm[p].push(s)
+    }
+  }
+  const inv = smallInverse(mm)
+  const k: Float64Array[] = []
+  for (let q = 0; q < d; q++) {
+    const col = new Float64Array(u)
+    for (let p = 0; p < d; p++) {
+      const c = inv[p][q]
+      for (let i = 0; i < u; i++) col[i] += g[p][i] * c
+    }
+    k.push(col)
+  }
+  return { g, weights: ns.weights, k, b }
+}
+
+function smallInverse(m: number[][]): number[][] {
+  const d = m.length
+  const a = m.map((row, i) => [...row, ...Array.from({ length: d }, (_, j) => (i === j ? 1 : 0))])
+  for (let c = 0; c < d; c++) {
+    let p = c
+    for (let r = c + 1; r < d; r++) if (Math.abs(a[r][c]) > Math.abs(a[p][c])) p = r
+    ;[a[c], a[p]] = [a[p], a[c]]
+    const piv = a[c][c]
+    for (let j = 0; j < 2 * d; j++) a[c][j] /= piv
+    for (let r = 0; r < d; r++) {
+      if (r === c) continue
+      const fct = a[r][c]
+      for (let j = 0; j < 2 * d; j++) a[r][j] -= fct * a[c][j]
+    }
+  }
+  return a.map((row) => row.slice(d))
+}
+
+function sTransformVector(datum: Datum, x: Float64Array): Float64Array {
+  const out = Float64Array.from(x)
+  for (let q = 0; q < datum.g.length; q++) {
+    let s = 0
+    for (let i = 0; i < x.length; i++) s += datum.b[q][i] * x[i]
+    for (let i = 0; i < x.length; i++) out[i] -= datum.k[q][i] * s
+  }
+  return out
+}
+
+/** S·Q·Sᵀ with S = I − K·Bᵀ, in O(u²·d). */
+function sTransformMatrix(datum: Datum, q: Float64Array, u: number): Float64Array {
+  const d = datum.g.length
+  if (d === 0) return q
+  // QB = Q·B (u×d), C = BᵀQB (d×d)
+  const qb: Float64Array[] = []
+  for (let p = 0; p < d; p++) {
+    const col = new Float64Array(u)
+    const bp = datum.b[p]
+    for (let j = 0; j < u; j++) {
+      const bj = bp[j]
+      if (bj === 0) continue
+      for (let i = 0; i < u; i++) col[i] += q[j * u + i] * bj
+    }
+    qb.push(col)
+  }
+  const c: number[][] = []
+  for (let p = 0; p < d; p++) {
+    c.push([])
+    for (let r = 0; r < d; r++) {
+      let s = 0
+      for (let i = 0; i < u; i++) s += datum.b[p][i] * qb[r][i]
+      c[p].push(s)
+    }
+  }
+  const out = Float64Array.from(q)
+  const k = datum.k
+  for (let j = 0; j < u; j++) {
+    for (let i = 0; i < u; i++) {
+      let s = 0
+      for (let p = 0; p < d; p++) {
+        s -= k[p][i] * qb[p][j] + qb[p][i] * k[p][j]
+        for (let r = 0; r < d; r++) s += k[p][i] * c[p][r] * k[r][j]
+      }
+      out[j * u + i] += s
+    }
+  }
+  return out
+}
+
+/**
+ * 1-norm condition estimate κ₁ = ‖R·D⁻¹‖₁·‖D·R⁻¹‖₁ of the column-scaled whitened
+ * design (D = column norms, so units of the unknowns do not count), and the
+ * unknown with the largest scaled variance D²·Qxx, which dominates it.
+ */
+function condition(
+  f: QrFactorization,
+  rInv: Float64Array,
+  norms: Float64Array,
+  qxx: Float64Array,
+): { kappa: number; dominant: number | null } {
+  const r = f.rank
+  const m = f.m
+  const u = f.n
+  if (r === 0) return { kappa: Infinity, dominant: null }
+  let normR = 0
+  for (let j = 0; j < r; j++) {
+    const dj = norms[f.perm[j]] || 1
+    let s = 0
+    for (let i = 0; i <= j; i++) s += Math.abs(f.a[j * m + i])
+    normR = Math.max(normR, s / dj)
+  }
+  let normInv = 0
+  for (let j = 0; j < r; j++) {
+    let s = 0
+    for (let i = 0; i <= j; i++) s += Math.abs(rInv[j * r + i]) * (norms[f.perm[i]] || 1)
+    normInv = Math.max(normInv, s)
+  }
+  let dominant: number | null = null
+  let worst = -1
+  for (let j = 0; j < u; j++) {
+    const v = qxx[j * u + j] * norms[j] * norms[j]
+    if (v > worst) {
+      worst = v
+      dominant = j
+    }
+  }
+  return { kappa: normR * normInv, dominant }
+}
