@@ -29,7 +29,14 @@ interface XNode {
   text: string
   children: XNode[]
   line: number
-  path: string
+  parent: XNode | null
+  ordinal: number
+}
+
+/** XPath-like address with ordinals, built only when an issue needs it. */
+function pathOf(node: XNode): string {
+  const own = `${node.name}[${node.ordinal}]`
+  return node.parent ? `${pathOf(node.parent)}/${own}` : own
 }
 
 // Linear units of LandXML 1.2 (Metric and Imperial linearUnit enumerations)
@@ -123,9 +130,9 @@ function read(input: string): ReadResult {
     trimValues: true,
     captureMetaData: true,
   })
-  const raw = parser.parse(text) as unknown[]
-  const lineOf = lineIndex(text)
-  const roots = toNodes(raw, '', lineOf)
+  // The parser's tree is dropped as soon as it is converted, to keep peak
+  // memory of a large upload down.
+  const roots = toNodes(parser.parse(text) as unknown[], null, lineIndex(text))
   const root = roots.find((n) => n.name === 'LandXML')
   if (!root) {
     const first = roots.find((n) => !n.name.startsWith('?'))
@@ -140,7 +147,7 @@ function read(input: string): ReadResult {
   // Units first: every number below depends on them, wherever they sit.
   const units = root.children.find((c) => c.name === 'Units')
   if (!units) {
-    errors.push({ line: root.line, column: root.path, message: 'has no Units element: the reader will not guess units' })
+    errors.push({ line: root.line, column: pathOf(root), message: 'has no Units element: the reader will not guess units' })
     return { ok: false, errors, warnings }
   }
   ctx.readUnits(units)
@@ -153,7 +160,7 @@ function read(input: string): ReadResult {
   ctx.finish()
   if (errors.length > 0) return { ok: false, errors, warnings }
   if (ctx.controls.length === 0 && ctx.observations.length === 0) {
-    warnings.push({ line: root.line, column: root.path, message: 'holds no control points or raw observations' })
+    warnings.push({ line: root.line, column: pathOf(root), message: 'holds no control points or raw observations' })
   }
   return { ok: true, controls: ctx.controls, observations: ctx.observations, warnings }
 }
@@ -178,7 +185,7 @@ function lineIndex(text: string): (offset: number | undefined) => number {
 const META = XMLParser.getMetaDataSymbol() as unknown as symbol
 
 /** Turns fast-xml-parser's ordered output into a small tree with paths and lines. */
-function toNodes(items: unknown[], parentPath: string, lineOf: (o: number | undefined) => number): XNode[] {
+function toNodes(items: unknown[], parent: XNode | null, lineOf: (o: number | undefined) => number): XNode[] {
   const nodes: XNode[] = []
   const counts = new Map<string, number>()
   for (const item of items) {
@@ -188,7 +195,6 @@ function toNodes(items: unknown[], parentPath: string, lineOf: (o: number | unde
     if (name === undefined) continue
     const ordinal = (counts.get(name) ?? 0) + 1
     counts.set(name, ordinal)
-    const path = `${parentPath ? parentPath + '/' : ''}${name}[${ordinal}]`
     const meta = rec[META] as { startIndex?: number } | undefined
     const kids = Array.isArray(rec[name]) ? (rec[name] as unknown[]) : []
     const attrs: Attrs = {}
@@ -201,7 +207,9 @@ function toNodes(items: unknown[], parentPath: string, lineOf: (o: number | unde
       .map((k) => String(k['#text']))
       .join(' ')
       .trim()
-    nodes.push({ name, attrs, text, children: toNodes(kids, path, lineOf), line: lineOf(meta?.startIndex), path })
+    const node: XNode = { name, attrs, text, children: [], line: lineOf(meta?.startIndex), parent, ordinal }
+    node.children = toNodes(kids, node, lineOf)
+    nodes.push(node)
   }
   return nodes
 }
@@ -237,11 +245,11 @@ class Context {
   ) {}
 
   private err(node: XNode, attr: string | null, message: string) {
-    this.errors.push({ line: node.line, column: attr ? `${node.path}@${attr}` : node.path, message })
+    this.errors.push({ line: node.line, column: attr ? `${pathOf(node)}@${attr}` : pathOf(node), message })
   }
 
   private warn(node: XNode, attr: string | null, message: string) {
-    this.warnings.push({ line: node.line, column: attr ? `${node.path}@${attr}` : node.path, message })
+    this.warnings.push({ line: node.line, column: attr ? `${pathOf(node)}@${attr}` : pathOf(node), message })
   }
 
   unknown(node: XNode) {
