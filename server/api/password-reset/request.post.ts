@@ -1,0 +1,10 @@
+// POST /api/password-reset/request — e-mail a one-time reset link; always 202 with the same message
+import { passwordResetRequestSchema } from '../../../shared/schemas/members'
+import { RESET_REQUESTED_MESSAGE, requestPasswordReset } from '../../services/password-reset'
+
+export default defineApiHandler(async (event) => {
+  const body = await parseBody(event, passwordResetRequestSchema)
+  requestPasswordReset(body.email)
+  setResponseStatus(event, 202)
+  return { message: RESET_REQUESTED_MESSAGE }
+})
