@@ -18,9 +18,9 @@
 // Noise matches the engine's default instrument profile (server/engine/sigma.ts:
 // 3″ directions, 5″ zeniths, 2 mm + 2 ppm distances, 1 mm centering of
 // instrument and target), so rows with a blank sigma are weighted as they were
-// simulated. Levelling rows carry their own sigma, 2 mm/√km. The simulation
-// uses the same plane model as the engine v1 (no earth curvature or
-// refraction), so the demo fits that model.
+// simulated. Levelling rows carry their own sigma, 2 mm/√km. Zenith angles
+// include the combined earth-curvature and refraction term (1 − k)·D²/(2R),
+// k = 0.13, R = 6371 km (common practice; the engine reduces with the same).
 //
 // The blunder: one direction is read 40″ wrong. Its line is written to
 // blunder.json and printed; the CSV's header only says a blunder exists.
@@ -38,6 +38,8 @@ const DISTANCE_PPM = 2
 const CENTERING_MM = 1
 const LEVELLING_MM_PER_SQRT_KM = 2
 const RHO = 180 / Math.PI
+const EARTH_RADIUS_M = 6_371_000
+const REFRACTION_K = 0.13
 
 // mulberry32: a small, well-known 32-bit generator; enough for demo noise.
 function prng(seed: number) {
@@ -141,6 +143,10 @@ export function buildDemo() {
       .filter((s) => s !== st && hz(st, s) < 700)
       .sort((a, b) => hz(st, a) - hz(st, b))
       .slice(0, 9)
+    // The two control pillars see each other across the site: each set-up on
+    // one starts its set with the other as reference object.
+    const other = st.name === 'CP1' ? byName('CP2') : st.name === 'CP2' ? byName('CP1') : null
+    if (other) targets.unshift(other)
     const hi = 1.45 + Math.round(rnd.uniform() * 200) / 1000
     const omega = rnd.uniform() * 2 * Math.PI
     const set = `${st.name}-R1`
@@ -165,12 +171,15 @@ export function buildDemo() {
     targets.forEach((t, idx) => {
       const d = hz(st, t)
       const ht = heights.get(t.name)!
-      const dh = t.h + ht - (st.h + hi)
+      // Curvature lowers the target as seen along the level line; refraction
+      // lifts it back by k of that.
+      const dh = t.h + ht - (st.h + hi) - ((1 - REFRACTION_K) * d * d) / (2 * EARTH_RADIUS_M)
       const slope = Math.hypot(d, dh)
       const z = Math.atan2(d, dh) + rnd.normal() * (ZENITH_ARCSEC / 3600 / RHO)
-      // Every third line is measured as a horizontal distance (reduced in the
-      // instrument), the rest as slope distance and zenith.
-      if (idx % 3 === 2) {
+      // Some lines to other set-up stations are measured as horizontal
+      // distances (reduced in the instrument); the rest as slope distance and
+      // zenith, so every station also gets a trigonometric height.
+      if (idx % 3 === 2 && SETUPS.includes(t)) {
         const hd = d + rnd.normal() * sigmaDistance(d)
         push(['horizontal_distance', st.name, '', t.name, hd.toFixed(4), 'm', '', '', '', '', '', ''])
         xmlObs[idx] += ` horizDistance="${hd.toFixed(4)}" targetHeight="${ht.toFixed(3)}"`
@@ -204,10 +213,14 @@ export function buildDemo() {
     push(['height_difference', a.name, '', b.name, dh.toFixed(5), 'm', sigmaMm.toFixed(2), '', '', '', lengthKm.toFixed(3), ''])
   }
 
-  // Every station must be reachable: at least two set-ups see it (intersection).
+  // Every station must be reachable: at least two set-ups see it (intersection),
+  // and a zenith reaches it (a height).
   for (const s of stations) {
     const setups = seenBy.get(s.name)?.size ?? 0
     if (setups < 2 && !SETUPS.includes(s)) throw new Error(`station ${s.name} is seen from ${setups} set-up(s) only`)
+    if (!SETUPS.includes(s) && !lines.some((l) => l.startsWith('zenith,') && l.split(',')[3] === s.name)) {
+      throw new Error(`station ${s.name} gets no height`)
+    }
   }
   if (!blunder) throw new Error('the blunder was not placed')
   const placed = blunder as { line: number; kind: string; at: string; to: string; offsetArcsec: number }

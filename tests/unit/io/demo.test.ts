@@ -6,6 +6,7 @@ import { describe, expect, it } from 'vitest'
 import { buildDemo } from '../../../server/db/demo/generate'
 import { readObservationCsv } from '../../../server/engine/io/csv'
 import { readLandXml } from '../../../server/engine/io/landxml'
+import { adjustNetwork } from '../../../server/engine/index'
 
 const demoFile = (name: string) => readFileSync(new URL(`../../../server/db/demo/${name}`, import.meta.url), 'utf8')
 
@@ -41,5 +42,23 @@ describe('demo network', () => {
     if (!r.ok) throw new Error(JSON.stringify(r.errors))
     expect(r.controls.map((c) => c.station)).toEqual(['CP1', 'CP2'])
     expect(new Set(r.observations.filter((o) => o.kind === 'direction').map((o) => o.set)).size).toBe(4)
+  })
+
+  // The demo exists to be found by data snooping (Baarda 1968, critical |w| 3.29
+  // at α0 = 0.001): the one planted blunder must be the one flagged, and the
+  // rest of the simulated noise must pass the global test.
+  it('the engine flags exactly the planted blunder, and the network passes the global test without it', () => {
+    const r = readObservationCsv(csv)
+    if (!r.ok) throw new Error(JSON.stringify(r.errors))
+    const withBlunder = adjustNetwork({ controls: r.controls, observations: r.observations })
+    if (!withBlunder.ok) throw new Error(withBlunder.reason)
+    expect(withBlunder.result.observations.filter((o) => o.flagged).map((o) => o.line)).toEqual([blunder.line])
+    expect(withBlunder.result.globalTest.passed).toBe(false)
+
+    const observations = r.observations.map((o) => (o.line === blunder.line ? { ...o, excluded: true } : o))
+    const without = adjustNetwork({ controls: r.controls, observations })
+    if (!without.ok) throw new Error(without.reason)
+    expect(without.result.observations.filter((o) => o.flagged)).toEqual([])
+    expect(without.result.globalTest.passed).toBe(true)
   })
 })
