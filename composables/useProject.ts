@@ -1,0 +1,26 @@
+// The project of the current page, loaded once by the project shell and shared with its tabs.
+export interface ProjectView {
+  id: number
+  name: string
+  description: string
+  crs: string
+  crsName: string
+  units: 'm' | 'ft' | 'usft'
+  angleFormat: 'dms' | 'gon'
+  status: 'collecting' | 'adjusted' | 'signed' | 'released'
+  toleranceProfileId: number | null
+  createdAt: string
+  updatedAt: string
+}
+
+export function useProject() {
+  const route = useRoute()
+  const project = useState<ProjectView | null>(`project-${route.params.firm}-${route.params.project}`, () => null)
+  const apiBase = computed(() => `/api/firms/${route.params.firm}/projects/${route.params.project}`)
+  const pageBase = computed(() => `/f/${route.params.firm}/projects/${route.params.project}`)
+  async function refresh() {
+    project.value = await useRequestFetch()(apiBase.value) as ProjectView
+    return project.value
+  }
+  return { project, refresh, apiBase, pageBase }
+}
