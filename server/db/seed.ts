@@ -6,6 +6,7 @@ import { fileURLToPath } from 'node:url'
 import { and, eq } from 'drizzle-orm'
 import type { Role } from '../../shared/roles'
 import { hashPassword } from '../services/passwords'
+import { seedFieldData } from './seed-fielddata'
 import { closeDb, useDb } from './client'
 import type { Db } from './client'
 import {
@@ -105,6 +106,7 @@ export async function seedFoundation(db: Db) {
 
 export async function seedDemo(db: Db = useDb()) {
   const base = await seedFoundation(db)
+  await seedFieldData(db, base.project.id)
   return base
 }
 

@@ -1,0 +1,8 @@
+// GET /api/firms/:firm/instruments — the firm's instrument profiles (example presets carry their label)
+import { STAFF } from '../../../../../shared/roles'
+import { listInstruments } from '../../../../services/instruments'
+
+export default defineApiHandler(async (event) => {
+  const ctx = await requireFirmMember(event, STAFF)
+  return listInstruments(ctx)
+})

@@ -1,0 +1,17 @@
+// GET /api/firms/:firm/projects/:project/observation-sets/:set/file — the original bytes, exactly as uploaded
+import { STAFF } from '../../../../../../../../shared/roles'
+import { getObservationSetFile } from '../../../../../../../services/observations'
+
+export default defineApiHandler(async (event) => {
+  const ctx = await requireFirmMember(event, STAFF)
+  const project = await requireProject(event, ctx)
+  const file = await getObservationSetFile(ctx, project, idParam(event, 'set'))
+  const ascii = file.fileName.replace(/[^\x20-\x7e]/g, '_').replace(/["\\]/g, '_')
+  setResponseHeaders(event, {
+    'content-type': file.contentType,
+    'content-disposition': `attachment; filename="${ascii}"; filename*=UTF-8''${encodeURIComponent(file.fileName)}`,
+    'x-content-sha256': file.sha256,
+    'cache-control': 'private, no-store',
+  })
+  return file.content
+})

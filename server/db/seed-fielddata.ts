@@ -1,0 +1,36 @@
+// Demo field data: the crew member uploads the invented demo network
+// (server/db/demo/demo-network.csv) into the demo project through the same
+// service as the web upload, so a fresh `npm start` shows a project with
+// observations. Idempotent: skipped when those bytes are already there.
+import { createHash } from 'node:crypto'
+import { readFileSync } from 'node:fs'
+import { fileURLToPath } from 'node:url'
+import { and, eq } from 'drizzle-orm'
+import { uploadObservationSet } from '../services/observations'
+import type { FirmContext } from '../utils/guard'
+import type { Db } from './client'
+import { crewMembers, crews, firms, observationSets, projects, users } from './schema'
+
+export const DEMO_NETWORK_CSV = fileURLToPath(new URL('./demo/demo-network.csv', import.meta.url))
+
+export async function seedFieldData(db: Db, projectId: number): Promise<void> {
+  const bytes = readFileSync(DEMO_NETWORK_CSV)
+  const sha256 = createHash('sha256').update(bytes).digest('hex')
+  const [project] = await db.select().from(projects).where(eq(projects.id, projectId)).limit(1)
+  if (!project) return
+  const [done] = await db.select({ id: observationSets.id }).from(observationSets)
+    .where(and(eq(observationSets.firmId, project.firmId), eq(observationSets.projectId, project.id), eq(observationSets.sha256, sha256))).limit(1)
+  if (done) return
+  const [firm] = await db.select().from(firms).where(eq(firms.id, project.firmId)).limit(1)
+  const [crewUser] = await db.select().from(users).where(eq(users.email, 'crew@tiepoint.test')).limit(1)
+  if (!firm || !crewUser) return
+  const [crew] = await db.select({ id: crews.id }).from(crews)
+    .innerJoin(crewMembers, eq(crewMembers.crewId, crews.id))
+    .where(and(eq(crews.firmId, firm.id), eq(crewMembers.userId, crewUser.id))).limit(1)
+  const ctx: FirmContext = {
+    user: { id: crewUser.id, email: crewUser.email, name: crewUser.name, licenceNumber: null, licenceJurisdiction: null, via: 'session' },
+    firm,
+    role: 'field_crew',
+  }
+  await uploadObservationSet(ctx, project, { name: 'demo-network.csv', bytes, crewId: crew?.id ?? null })
+}

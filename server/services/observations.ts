@@ -1,0 +1,466 @@
+// Observation sets and observations: upload a file (Tiepoint CSV or LandXML
+// 1.2), keep its bytes with their SHA-256 as the legal record, store every
+// observation with its source line, list and page them, edit or exclude one
+// (the file never changes; originalValue keeps what it said), and type rows in
+// by hand. Uploads are all-or-nothing in one transaction.
+import { createHash } from 'node:crypto'
+import { and, asc, desc, eq, ilike, or, sql } from 'drizzle-orm'
+import type { SQL } from 'drizzle-orm'
+import Papa from 'papaparse'
+import type { ManualObservations, ObservationPatch, ObservationQuery } from '../../shared/schemas/fielddata'
+import { readObservationCsv } from '../engine/io/csv'
+import { readLandXml } from '../engine/io/landxml'
+import { RAD_PER_ARCSEC, formatDms, formatGon, formatLength, parseAngle, parseLength } from '../engine/io/units'
+import { distanceSigma, levellingSigma, zenithSigma } from '../engine/sigma'
+import type { InstrumentProfile, ObservationRecord, ReadIssue, ReadResult } from '../engine/types'
+import { useDb } from '../db/client'
+import type { Tx } from '../db/client'
+import { crewMembers, crews, instrumentProfiles, observationSets, observations, projectCrews, users } from '../db/schema'
+import type { ObservationRow, ObservationSetRow, Project } from '../db/schema'
+import { ApiError, notFound } from '../utils/api'
+import type { FirmContext } from '../utils/guard'
+import { audit } from './audit'
+import { applyControls, ensureStations } from './stations'
+
+/** Upload limits (also shown on the page). */
+export const MAX_UPLOAD_BYTES = 20 * 1024 * 1024
+export const MAX_UPLOAD_LINES = 200_000
+/** Rows per multi-row insert: 13 array parameters each, so the statement stays small. */
+const INSERT_CHUNK = 20_000
+
+const ANGLE_KINDS = new Set(['direction', 'angle', 'zenith', 'azimuth'])
+
+export type FileFormat = ObservationSetRow['format']
+
+export interface UploadInput {
+  name: string
+  bytes: Buffer
+  crewId?: number | null
+  instrumentProfileId?: number | null
+  /** forces the format (manual entry); otherwise detected from the name and content */
+  format?: FileFormat
+}
+
+export interface UploadResult {
+  id: number
+  name: string
+  format: FileFormat
+  sha256: string
+  observations: number
+  controls: number
+  stationsCreated: number
+  warnings: ReadIssue[]
+}
+
+export interface ObservationSetDto {
+  id: number
+  name: string
+  format: FileFormat
+  sizeBytes: number
+  sha256: string
+  crew: { id: number; name: string } | null
+  instrumentProfile: { id: number; name: string } | null
+  uploadedBy: { id: number; name: string } | null
+  uploadedAt: string
+  observations: number
+  excluded: number
+  parseReport: Record<string, unknown>
+}
+
+/** CSV unless the name says .xml or the content starts like XML. */
+export function detectFormat(name: string, text: string): 'csv' | 'landxml' {
+  const lower = name.toLowerCase()
+  if (lower.endsWith('.xml') || lower.endsWith('.landxml')) return 'landxml'
+  if (lower.endsWith('.csv') || lower.endsWith('.txt')) return 'csv'
+  const head = text.replace(/^\uFEFF/, '').trimStart().slice(0, 200)
+  return head.startsWith('<?xml') || head.startsWith('<LandXML') ? 'landxml' : 'csv'
+}
+
+function countLines(text: string): number {
+  let n = 0
+  for (let i = text.indexOf('\n'); i !== -1; i = text.indexOf('\n', i + 1)) n++
+  return text.length > 0 && !text.endsWith('\n') ? n + 1 : n
+}
+
+/** UTF-8 text of an upload, or a line-numbered refusal at the first byte that is not UTF-8. */
+function decodeUtf8(bytes: Buffer): string {
+  try {
+    return new TextDecoder('utf-8', { fatal: true }).decode(bytes)
+  } catch {
+    const loose = new TextDecoder('utf-8').decode(bytes)
+    const at = loose.indexOf('\uFFFD')
+    const line = at < 0 ? 1 : countLines(loose.slice(0, at + 1))
+    throw new ApiError(422, 'The file is not UTF-8 text; nothing was saved', [{ line, column: 'file', message: 'holds bytes that are not UTF-8 (save the file as UTF-8)' }])
+  }
+}
+
+function profileOf(row: typeof instrumentProfiles.$inferSelect): InstrumentProfile {
+  return {
+    distanceMm: row.distanceMm,
+    distancePpm: row.distancePpm,
+    directionArcsec: row.directionArcsec,
+    zenithArcsec: row.zenithArcsec,
+    centeringInstrumentMm: row.centeringInstrumentMm,
+    centeringTargetMm: row.centeringTargetMm,
+    levellingMmPerSqrtKm: row.levellingMmPerSqrtKm,
+  }
+}
+
+async function loadProfile(ctx: FirmContext, id: number | null | undefined) {
+  if (id === null || id === undefined) return null
+  const [p] = await useDb().select().from(instrumentProfiles)
+    .where(and(eq(instrumentProfiles.firmId, ctx.firm.id), eq(instrumentProfiles.id, id))).limit(1)
+  if (!p) throw new ApiError(422, 'Some fields are not valid', [{ field: 'instrumentProfileId', message: 'instrumentProfileId: no such instrument profile in this firm' }])
+  return p
+}
+
+/** The crew named by the upload, or (for field crew who name none) their crew on this project. */
+async function resolveCrew(ctx: FirmContext, project: Project, id: number | null | undefined): Promise<number | null> {
+  const db = useDb()
+  if (id !== null && id !== undefined) {
+    const [c] = await db.select({ id: crews.id }).from(crews).where(and(eq(crews.firmId, ctx.firm.id), eq(crews.id, id))).limit(1)
+    if (!c) throw new ApiError(422, 'Some fields are not valid', [{ field: 'crewId', message: 'crewId: no such crew in this firm' }])
+    return c.id
+  }
+  if (ctx.role !== 'field_crew') return null
+  const [mine] = await db.select({ id: projectCrews.crewId }).from(projectCrews)
+    .innerJoin(crewMembers, and(eq(crewMembers.crewId, projectCrews.crewId), eq(crewMembers.firmId, ctx.firm.id)))
+    .where(and(eq(projectCrews.firmId, ctx.firm.id), eq(projectCrews.projectId, project.id), eq(crewMembers.userId, ctx.user.id))).limit(1)
+  return mine?.id ?? null
+}
+
+function refuse(read: Extract<ReadResult, { ok: false }>, what = 'The file'): never {
+  const lines = new Set(read.errors.map((e) => e.line)).size
+  throw new ApiError(422, `${what} has ${lines} bad line${lines === 1 ? '' : 's'}; nothing was saved. Fix every line listed and upload again.`,
+    read.errors.map((e) => ({ line: e.line, column: e.column, message: e.message })), { warnings: read.warnings })
+}
+
+/**
+ * Stores the observations of one set with a few multi-row INSERT … SELECT
+ * FROM unnest(arrays) statements: one round trip per 20 000 rows instead of
+ * one per row, which keeps 100 000-line files well inside the time budget.
+ */
+async function insertObservations(tx: Tx, firmId: number, projectId: number, setId: number, recs: ObservationRecord[]): Promise<void> {
+  for (let start = 0; start < recs.length; start += INSERT_CHUNK) {
+    const chunk = recs.slice(start, start + INSERT_CHUNK)
+    const col = <T>(f: (r: ObservationRecord) => T) => sql.param(chunk.map(f))
+    await tx.execute(sql`insert into observations
+      (firm_id, project_id, set_id, line, kind, at, "from", "to", value, unit, sigma, hi, ht, set_name, length_km, note, excluded, original_value)
+      select ${firmId}, ${projectId}, ${setId}, u.line, u.kind, u.at, u.frm, u.tgt, u.value, u.unit, u.sigma, u.hi, u.ht, u.set_name, u.length_km, u.note, u.excluded, u.value
+      from unnest(
+        ${col((r) => r.line)}::int[], ${col((r) => r.kind)}::observation_kind[], ${col((r) => r.at)}::text[],
+        ${col((r) => r.from)}::text[], ${col((r) => r.to)}::text[], ${col((r) => r.value)}::float8[],
+        ${col((r) => (ANGLE_KINDS.has(r.kind) ? 'rad' : 'm'))}::text[], ${col((r) => r.sigma)}::float8[],
+        ${col((r) => r.hi)}::float8[], ${col((r) => r.ht)}::float8[], ${col((r) => r.set)}::text[],
+        ${col((r) => r.lengthKm)}::float8[], ${col((r) => r.note)}::text[], ${col((r) => r.excluded ?? false)}::boolean[]
+      ) as u(line, kind, at, frm, tgt, value, unit, sigma, hi, ht, set_name, length_km, note, excluded)`)
+  }
+}
+
+/**
+ * Parses and stores one file. Any bad line → 422 listing every one; the same
+ * bytes already in the project → 409 naming the earlier set; nothing is
+ * written unless everything is.
+ */
+export async function uploadObservationSet(ctx: FirmContext, project: Project, input: UploadInput): Promise<UploadResult> {
+  const { bytes } = input
+  if (bytes.length === 0) throw new ApiError(422, 'The file is empty; nothing was saved', [{ line: 1, column: 'file', message: 'the file is empty' }])
+  if (bytes.length > MAX_UPLOAD_BYTES) throw tooLarge()
+  const text = decodeUtf8(bytes)
+  const lines = countLines(text)
+  if (lines > MAX_UPLOAD_LINES) {
+    throw new ApiError(413, `The file has ${lines.toLocaleString('en')} lines; the limit is ${MAX_UPLOAD_LINES.toLocaleString('en')} lines per upload. Split it into several files.`)
+  }
+  const sha256 = createHash('sha256').update(bytes).digest('hex')
+  const db = useDb()
+  const earlier = await findBySha(ctx, project, sha256)
+  if (earlier) throw duplicate(earlier)
+
+  const profileRow = await loadProfile(ctx, input.instrumentProfileId)
+  const crewId = await resolveCrew(ctx, project, input.crewId)
+  const format: FileFormat = input.format ?? detectFormat(input.name, text)
+  const read = format === 'landxml' ? readLandXml(text) : readObservationCsv(text, profileRow ? { profile: profileOf(profileRow) } : {})
+  if (!read.ok) refuse(read)
+
+  const names = new Set<string>()
+  for (const o of read.observations) { names.add(o.at); names.add(o.to); if (o.from) names.add(o.from) }
+
+  try {
+    return await db.transaction(async (tx) => {
+      const parseReport = { lines, observations: read.observations.length, controls: read.controls.length, warnings: read.warnings.slice(0, 500), warningCount: read.warnings.length }
+      const [set] = await tx.insert(observationSets).values({
+        firmId: ctx.firm.id,
+        projectId: project.id,
+        name: input.name,
+        format,
+        content: bytes,
+        sizeBytes: bytes.length,
+        sha256,
+        crewId,
+        instrumentProfileId: profileRow?.id ?? null,
+        uploadedBy: ctx.user.id,
+        parseReport,
+      }).returning({ id: observationSets.id })
+      const controlChanges = await applyControls(tx, ctx.firm.id, project.id, read.controls)
+      const created = await ensureStations(tx, ctx.firm.id, project.id, names)
+      await insertObservations(tx, ctx.firm.id, project.id, set!.id, read.observations)
+      await audit(tx, {
+        firmId: ctx.firm.id, userId: ctx.user.id, action: 'observation_set.upload', entityType: 'observation_set', entityId: set!.id, projectId: project.id,
+        after: { name: input.name, format, sha256, sizeBytes: bytes.length, observations: read.observations.length, controls: read.controls.length, stationsCreated: created, crewId, instrumentProfileId: profileRow?.id ?? null },
+        ...(controlChanges.length ? { before: { controls: controlChanges.map((c) => c.before) } } : {}),
+      })
+      return { id: set!.id, name: input.name, format, sha256, observations: read.observations.length, controls: read.controls.length, stationsCreated: created, warnings: read.warnings }
+    })
+  } catch (error) {
+    // Two uploads of the same bytes at once: the unique index decides.
+    if (isUniqueViolation(error)) {
+      const winner = await findBySha(ctx, project, sha256)
+      if (winner) throw duplicate(winner)
+    }
+    throw error
+  }
+}
+
+export const tooLarge = () => new ApiError(413, `The file is larger than ${MAX_UPLOAD_BYTES / 1024 / 1024} MB, the limit per upload. Split it into several files.`)
+
+function isUniqueViolation(e: unknown): boolean {
+  const code = (e as { code?: string; cause?: { code?: string } })?.code ?? (e as { cause?: { code?: string } })?.cause?.code
+  return code === '23505'
+}
+
+async function findBySha(ctx: FirmContext, project: Project, sha256: string) {
+  const [row] = await useDb().select({ id: observationSets.id, name: observationSets.name, uploadedAt: observationSets.uploadedAt }).from(observationSets)
+    .where(and(eq(observationSets.firmId, ctx.firm.id), eq(observationSets.projectId, project.id), eq(observationSets.sha256, sha256))).limit(1)
+  return row
+}
+
+function duplicate(earlier: { id: number; name: string; uploadedAt: Date }) {
+  return new ApiError(409, `This file was already uploaded as set ${earlier.id} '${earlier.name}' on ${earlier.uploadedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC; nothing was saved.`,
+    undefined, { existingSetId: earlier.id, existingName: earlier.name })
+}
+
+// ── typed-in rows ───────────────────────────────────────────────────────────
+
+const MANUAL_COLUMNS = ['kind', 'at', 'from', 'to', 'value', 'unit', 'sigma', 'hi', 'ht', 'set', 'length', 'note'] as const
+
+/**
+ * Rows typed into the grid go through the same reader as a file: they are
+ * written as CSV (header on line 1, row i on line i + 1) and stored as a
+ * 'manual' set, so the record of what was typed is kept like any upload.
+ * Errors name the grid row (line − 1) as well as the column.
+ */
+export async function addManualObservations(ctx: FirmContext, project: Project, body: ManualObservations): Promise<UploadResult> {
+  const csv = Papa.unparse({ fields: [...MANUAL_COLUMNS], data: body.rows.map((r) => MANUAL_COLUMNS.map((c) => r[c])) }, { newline: '\n', quotes: false })
+  // The trailing comment makes every typed-in set unique (two people may type the same rows).
+  const text = `${csv}\n# typed in by ${ctx.user.email} at ${new Date().toISOString()}\n`
+  const profileRow = await loadProfile(ctx, body.instrumentProfileId)
+  const read = readObservationCsv(text, profileRow ? { profile: profileOf(profileRow) } : {})
+  if (!read.ok) {
+    throw new ApiError(422, `${new Set(read.errors.map((e) => e.line)).size} typed-in row(s) are not valid; nothing was saved`,
+      read.errors.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.${e.column}`, message: `row ${e.line - 1}, ${e.column}: ${e.message}` })))
+  }
+  const name = `Typed in by ${ctx.user.name}, ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC`
+  return uploadObservationSet(ctx, project, { name, bytes: Buffer.from(text, 'utf8'), format: 'manual', crewId: body.crewId, instrumentProfileId: body.instrumentProfileId })
+}
+
+// ── listing and the original file ───────────────────────────────────────────
+
+export async function listObservationSets(ctx: FirmContext, project: Project): Promise<ObservationSetDto[]> {
+  const rows = await useDb().select({
+    id: observationSets.id, name: observationSets.name, format: observationSets.format, sizeBytes: observationSets.sizeBytes,
+    sha256: observationSets.sha256, uploadedAt: observationSets.uploadedAt, parseReport: observationSets.parseReport,
+    crewId: crews.id, crewName: crews.name, profileId: instrumentProfiles.id, profileName: instrumentProfiles.name,
+    userId: users.id, userName: users.name,
+    n: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = ${observationSets.firmId} and o.set_id = ${observationSets.id})`,
+    nx: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = ${observationSets.firmId} and o.set_id = ${observationSets.id} and o.excluded)`,
+  }).from(observationSets)
+    .leftJoin(crews, and(eq(crews.id, observationSets.crewId), eq(crews.firmId, ctx.firm.id)))
+    .leftJoin(instrumentProfiles, and(eq(instrumentProfiles.id, observationSets.instrumentProfileId), eq(instrumentProfiles.firmId, ctx.firm.id)))
+    .leftJoin(users, eq(users.id, observationSets.uploadedBy))
+    .where(and(eq(observationSets.firmId, ctx.firm.id), eq(observationSets.projectId, project.id)))
+    .orderBy(desc(observationSets.uploadedAt), desc(observationSets.id))
+  return rows.map((r) => ({
+    id: r.id, name: r.name, format: r.format, sizeBytes: r.sizeBytes, sha256: r.sha256,
+    crew: r.crewId ? { id: r.crewId, name: r.crewName! } : null,
+    instrumentProfile: r.profileId ? { id: r.profileId, name: r.profileName! } : null,
+    uploadedBy: r.userId ? { id: r.userId, name: r.userName! } : null,
+    uploadedAt: r.uploadedAt.toISOString(),
+    observations: r.n, excluded: r.nx, parseReport: r.parseReport,
+  }))
+}
+
+export async function getObservationSetFile(ctx: FirmContext, project: Project, setId: number) {
+  const [row] = await useDb().select({ name: observationSets.name, format: observationSets.format, content: observationSets.content, sha256: observationSets.sha256 })
+    .from(observationSets)
+    .where(and(eq(observationSets.firmId, ctx.firm.id), eq(observationSets.projectId, project.id), eq(observationSets.id, setId))).limit(1)
+  if (!row) throw notFound('No such observation set')
+  const contentType = row.format === 'landxml' ? 'application/xml' : 'text/csv; charset=utf-8'
+  const ext = row.format === 'landxml' ? '.xml' : '.csv'
+  const fileName = /\.[a-z0-9]{1,8}$/i.test(row.name) ? row.name : `${row.name}${ext}`
+  return { ...row, contentType, fileName }
+}
+
+// ── observations: list, edit ────────────────────────────────────────────────
+
+export interface ObservationDto {
+  id: number
+  setId: number
+  line: number
+  kind: ObservationRow['kind']
+  at: string
+  from: string | null
+  to: string
+  /** metres or radians */
+  value: number
+  originalValue: number | null
+  edited: boolean
+  /** value in the project's units / angle format, number only */
+  display: string
+  displayUnit: string
+  /** σ that the adjustment will use before centering (m or rad), and where it comes from */
+  sigmaUsed: number | null
+  sigmaDisplay: string
+  sigmaSource: 'file' | 'profile' | 'none'
+  hi: number | null
+  ht: number | null
+  setName: string | null
+  lengthKm: number | null
+  note: string
+  excluded: boolean
+}
+
+/** Formats a value in the project's length unit or angle format (number and unit apart). */
+export function formatValue(kind: string, value: number, project: Pick<Project, 'units' | 'angleFormat'>): { text: string; unit: string } {
+  if (ANGLE_KINDS.has(kind)) {
+    return project.angleFormat === 'gon' ? { text: formatGon(value, 5), unit: 'gon' } : { text: formatDms(value, 1), unit: '' }
+  }
+  const unit = project.units === 'm' ? 'm' : project.units === 'ft' ? 'ft' : 'US ft'
+  return { text: formatLength(value, project.units, 4), unit }
+}
+
+function sigmaFor(o: ObservationRow, profile: InstrumentProfile | null): { value: number | null; source: ObservationDto['sigmaSource'] } {
+  if (o.sigma !== null) return { value: o.sigma, source: 'file' }
+  if (!profile) return { value: null, source: 'none' }
+  switch (o.kind) {
+    case 'direction':
+    case 'azimuth': return { value: profile.directionArcsec * RAD_PER_ARCSEC, source: 'profile' }
+    // An angle is the difference of two directions (common practice: σ√2).
+    case 'angle': return { value: Math.SQRT2 * profile.directionArcsec * RAD_PER_ARCSEC, source: 'profile' }
+    case 'zenith': return { value: zenithSigma(profile), source: 'profile' }
+    case 'slope_distance':
+    case 'horizontal_distance': return { value: distanceSigma(profile, o.value), source: 'profile' }
+    case 'height_difference': return o.lengthKm ? { value: levellingSigma(profile, o.lengthKm), source: 'profile' } : { value: null, source: 'none' }
+  }
+}
+
+function sigmaText(kind: string, sigma: number | null): string {
+  if (sigma === null) return ''
+  return ANGLE_KINDS.has(kind) ? `${(sigma / RAD_PER_ARCSEC).toFixed(1)}″` : `${(sigma * 1000).toFixed(1)} mm`
+}
+
+function observationDto(o: ObservationRow, project: Project, profile: InstrumentProfile | null): ObservationDto {
+  const f = formatValue(o.kind, o.value, project)
+  const s = sigmaFor(o, profile)
+  return {
+    id: o.id, setId: o.setId, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to,
+    value: o.value, originalValue: o.originalValue, edited: o.originalValue !== null && o.originalValue !== o.value,
+    display: f.text, displayUnit: f.unit,
+    sigmaUsed: s.value, sigmaDisplay: sigmaText(o.kind, s.value), sigmaSource: s.source,
+    hi: o.hi, ht: o.ht, setName: o.setName, lengthKm: o.lengthKm, note: o.note, excluded: o.excluded,
+  }
+}
+
+async function profilesBySet(ctx: FirmContext, project: Project): Promise<Map<number, InstrumentProfile>> {
+  const rows = await useDb().select({ setId: observationSets.id, p: instrumentProfiles }).from(observationSets)
+    .innerJoin(instrumentProfiles, and(eq(instrumentProfiles.id, observationSets.instrumentProfileId), eq(instrumentProfiles.firmId, ctx.firm.id)))
+    .where(and(eq(observationSets.firmId, ctx.firm.id), eq(observationSets.projectId, project.id)))
+  return new Map(rows.map((r) => [r.setId, profileOf(r.p)]))
+}
+
+export async function listObservations(ctx: FirmContext, project: Project, q: ObservationQuery) {
+  const db = useDb()
+  const where: SQL[] = [eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id)]
+  if (q.setId) where.push(eq(observations.setId, q.setId))
+  if (q.kind) where.push(eq(observations.kind, q.kind))
+  if (q.excluded) where.push(eq(observations.excluded, q.excluded === 'true'))
+  if (q.station) {
+    const pattern = q.station.includes('*') ? q.station.replace(/[%_\\]/g, '\\$&').replace(/\*/g, '%') : q.station
+    const match = q.station.includes('*')
+      ? or(ilike(observations.at, pattern), ilike(observations.to, pattern), ilike(observations.from, pattern))
+      : or(eq(observations.at, pattern), eq(observations.to, pattern), eq(observations.from, pattern))
+    where.push(match!)
+  }
+  const sortCol = {
+    line: observations.line, kind: observations.kind, at: observations.at, from: observations.from, to: observations.to,
+    value: observations.value, excluded: observations.excluded, set: observations.setId,
+  }[q.sort]
+  const order = q.dir === 'desc' ? desc(sortCol) : asc(sortCol)
+  const filter = and(...where)
+  const [rows, [count], profiles] = await Promise.all([
+    db.select().from(observations).where(filter)
+      .orderBy(order, asc(observations.setId), asc(observations.line), asc(observations.id))
+      .limit(q.pageSize).offset((q.page - 1) * q.pageSize),
+    db.select({ n: sql<number>`count(*)::int` }).from(observations).where(filter),
+    profilesBySet(ctx, project),
+  ])
+  return {
+    total: count?.n ?? 0,
+    page: q.page,
+    pageSize: q.pageSize,
+    units: project.units,
+    angleFormat: project.angleFormat,
+    rows: rows.map((o) => observationDto(o, project, profiles.get(o.setId) ?? null)),
+  }
+}
+
+/** Parses a value typed in the project's units / angle format into metres or radians. */
+function parseTyped(kind: string, text: string, project: Project): number {
+  const p = ANGLE_KINDS.has(kind) ? parseAngle(text, project.angleFormat === 'gon' ? 'gon' : 'dms') : parseLength(text, project.units)
+  if (!p.ok) throw new ApiError(422, 'Some fields are not valid', [{ field: 'valueText', message: `valueText: ${p.message}` }])
+  return p.value
+}
+
+function checkRange(kind: string, value: number) {
+  const bad = (m: string) => new ApiError(422, 'Some fields are not valid', [{ field: 'value', message: `value: ${m}` }])
+  if (ANGLE_KINDS.has(kind)) {
+    if (!(value >= 0 && value < 2 * Math.PI)) throw bad('an angle must be ≥ 0 and below a full circle')
+  } else if (kind === 'height_difference') {
+    if (Math.abs(value) > 1e4) throw bad('is too large for a height difference')
+  } else if (!(value > 0 && value <= 1e6)) throw bad('a distance must be positive and at most 1000 km')
+}
+
+/** Edits a value or the excluded flag; the audit log keeps who, when, before and after. */
+export async function updateObservation(ctx: FirmContext, project: Project, id: number, body: ObservationPatch): Promise<ObservationDto> {
+  return useDb().transaction(async (tx) => {
+    const [before] = await tx.select().from(observations)
+      .where(and(eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id), eq(observations.id, id))).limit(1).for('update')
+    if (!before) throw notFound('No such observation')
+    const patch: Partial<typeof observations.$inferInsert> = {}
+    if (body.valueText !== undefined) patch.value = parseTyped(before.kind, body.valueText, project)
+    else if (body.value !== undefined) patch.value = body.value
+    if (patch.value !== undefined) {
+      checkRange(before.kind, patch.value)
+      if (before.originalValue === null) patch.originalValue = before.value
+    }
+    if (body.excluded !== undefined) patch.excluded = body.excluded
+    const [after] = await tx.update(observations).set(patch).where(and(eq(observations.firmId, ctx.firm.id), eq(observations.id, id))).returning()
+    const snap = (o: ObservationRow) => ({ setId: o.setId, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to, value: o.value, originalValue: o.originalValue, excluded: o.excluded })
+    const action = body.excluded !== undefined && patch.value === undefined
+      ? (body.excluded ? 'observation.exclude' : 'observation.include')
+      : 'observation.update'
+    await audit(tx, {
+      firmId: ctx.firm.id, userId: ctx.user.id, action, entityType: 'observation', entityId: id, projectId: project.id,
+      before: snap(before), after: { ...snap(after!), ...(body.reason ? { reason: body.reason } : {}) },
+    })
+    const profiles = await profilesBySet(ctx, project)
+    return observationDto(after!, project, profiles.get(after!.setId) ?? null)
+  })
+}
+
+/** For the page's unit hints: what a typed value means in this project. */
+export function valueHint(project: Project): { length: string; angle: string } {
+  return {
+    length: project.units === 'm' ? 'metres' : project.units === 'ft' ? 'international feet' : 'US survey feet',
+    angle: project.angleFormat === 'gon' ? 'gon (e.g. 123.4567)' : 'degrees minutes seconds (e.g. 123 45 06.7)',
+  }
+}
