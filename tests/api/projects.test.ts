@@ -1,0 +1,95 @@
+// Projects API against the real server and database: create, read, update,
+// roles, tenancy and validation (DESIGN.md section 7).
+import { afterAll, describe, expect, it } from 'vitest'
+import { eq } from 'drizzle-orm'
+import { as, Client, DEMO } from '../support/http'
+import { closeDb, useDb } from '../../server/db/client'
+import { projects } from '../../server/db/schema'
+
+const base = `/api/firms/${DEMO.firm}/projects`
+
+afterAll(() => closeDb())
+
+describe('projects', () => {
+  it('health answers only with a live database', async () => {
+    const r = await new Client().get('/api/health')
+    expect(r.status).toBe(200)
+    expect(r.body).toEqual({ ok: true, db: true })
+  })
+
+  it('a party chief creates a project and reads it back', async () => {
+    const chief = await as(DEMO.chief)
+    const created = await chief.post(base, { name: 'Mill Road widening', crs: 'EPSG:32633', units: 'm', description: 'invented' })
+    expect(created.status).toBe(201)
+    expect(created.body.id).toBeGreaterThan(0)
+    expect(created.body.crsName).toBe('WGS 84 / UTM zone 33N')
+    const read = await chief.get(`${base}/${created.body.id}`)
+    expect(read.status).toBe(200)
+    expect(read.body.name).toBe('Mill Road widening')
+    const [row] = await useDb().select().from(projects).where(eq(projects.id, created.body.id))
+    expect(row!.crsDefinition).toContain('+proj=utm +zone=33')
+  })
+
+  it('updates a project and records it in the audit log', async () => {
+    const chief = await as(DEMO.chief)
+    const created = await chief.post(base, { name: 'Audit me', crs: 'local', units: 'ft' })
+    const patched = await chief.patch(`${base}/${created.body.id}`, { units: 'usft', angleFormat: 'gon' })
+    expect(patched.status).toBe(200)
+    expect(patched.body.units).toBe('usft')
+    expect(patched.body.angleFormat).toBe('gon')
+    const { rows } = await (await import('../../server/db/client')).usePool()
+      .query('select action from audit_log where entity_type = $1 and entity_id = $2 order by id', ['project', String(created.body.id)])
+    expect(rows.map((r) => r.action)).toEqual(['project.create', 'project.update'])
+  })
+
+  it('lists projects with counts; a client sees only the projects shared with it', async () => {
+    const owner = await as(DEMO.owner)
+    const all = await owner.get(base)
+    expect(all.status).toBe(200)
+    expect(all.body.length).toBeGreaterThan(1)
+    expect(all.body[0].counts).toHaveProperty('stations')
+    const client = await as(DEMO.client)
+    const shared = await client.get(base)
+    expect(shared.status).toBe(200)
+    expect(shared.body.map((p: { name: string }) => p.name)).toEqual(['Harrow Creek bridge control'])
+  })
+
+  it('field crew may not create projects (403); a client gets 404', async () => {
+    const crew = await as(DEMO.crew)
+    expect((await crew.post(base, { name: 'x', crs: 'local', units: 'm' })).status).toBe(403)
+    const client = await as(DEMO.client)
+    expect((await client.post(base, { name: 'x', crs: 'local', units: 'm' })).status).toBe(404)
+  })
+
+  it("another firm's project answers 404, and so does a firm one is not in", async () => {
+    const other = await as(DEMO.other)
+    const [theirs] = await useDb().select().from(projects).where(eq(projects.name, 'Quarry Lane boundary'))
+    const chief = await as(DEMO.chief)
+    expect((await chief.get(`${base}/${theirs!.id}`)).status).toBe(404)
+    expect((await chief.get(`/api/firms/${DEMO.otherFirm}/projects/${theirs!.id}`)).status).toBe(404)
+    expect((await chief.patch(`${base}/${theirs!.id}`, { name: 'taken' })).status).toBe(404)
+    expect((await other.get(`/api/firms/${DEMO.otherFirm}/projects/${theirs!.id}`)).status).toBe(200)
+  })
+
+  it('without a session every project route answers 401', async () => {
+    const anon = new Client()
+    expect((await anon.get(base)).status).toBe(401)
+    expect((await anon.post(base, { name: 'x', crs: 'local', units: 'm' })).status).toBe(401)
+  })
+
+  it('bad input names the field and writes nothing', async () => {
+    const chief = await as(DEMO.chief)
+    const before = (await useDb().select().from(projects)).length
+    const malformed = await chief.post(base, '{"name": "unterminated')
+    expect(malformed.status).toBe(400)
+    expect(malformed.body.message).toMatch(/JSON/)
+    const invalid = await chief.post(base, { name: 'y'.repeat(121), crs: 'EPSG:0', units: 'furlong' })
+    expect(invalid.status).toBe(422)
+    const fields = invalid.body.errors.map((e: { field: string }) => e.field).sort()
+    expect(fields).toEqual(['crs', 'name', 'units'])
+    const missing = await chief.post(base, {})
+    expect(missing.status).toBe(422)
+    expect(missing.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['crs', 'name', 'units'])
+    expect((await useDb().select().from(projects)).length).toBe(before)
+  })
+})
