@@ -47,6 +47,8 @@ export interface PlaneApproxInput {
   azimuths: ApproxLine[]
   /** free network with nothing placed: seed a local frame */
   seedIfEmpty: boolean
+  /** internal: no second attempt through a local frame */
+  noLocalFrame?: boolean
 }
 
 export interface PlaneApproxResult {
@@ -87,9 +89,49 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
       allowAmbiguous = true
     }
   }
+  if (!input.noLocalFrame && coords.size >= 2 && input.stations.some((s) => !coords.has(s))) {
+    // stalled (e.g. no set sees a known point): build the network in a local frame
+    // from a seed and fit it onto the placed stations, then carry on from there
+    const local = approximatePlane({ ...input, known: new Map(), seedIfEmpty: true, noLocalFrame: true })
+    const common = [...coords.keys()].filter((s) => local.coords.has(s))
+    if (common.length >= 2) {
+      const t = fitRigid(common.map((s) => ({ x: local.coords.get(s)!, p: coords.get(s)! })))
+      for (const [s, xy] of local.coords) if (!coords.has(s)) coords.set(s, t(xy))
+      return approximatePlane({ ...input, known: coords, noLocalFrame: true })
+    }
+  }
   orientSets(input, coords, orientation)
   for (let s = 0; s < input.setCount; s++) if (Number.isNaN(orientation[s])) orientation[s] = 0
   return { coords, orientation, unplaced: input.stations.filter((s) => !coords.has(s)) }
+}
+
+/** Least-squares rotation (or reflection, for mirror-ambiguous distance-only frames) + translation. */
+function fitRigid(pairs: { x: XY; p: XY }[]): (xy: XY) => XY {
+  const mx = mean(pairs.map((q) => q.x))
+  const mp = mean(pairs.map((q) => q.p))
+  const candidates = [1, -1].map((mirror) => {
+    let sa = 0
+    let sb = 0
+    for (const q of pairs) {
+      const xe = mirror * (q.x.e - mx.e)
+      const xn = q.x.n - mx.n
+      const pe = q.p.e - mp.e
+      const pn = q.p.n - mp.n
+      sa += xe * pe + xn * pn
+      sb += xn * pe - xe * pn
+    }
+    const th = Math.atan2(sb, sa)
+    const c = Math.cos(th)
+    const sn = Math.sin(th)
+    const map = (xy: XY): XY => {
+      const xe = mirror * (xy.e - mx.e)
+      const xn = xy.n - mx.n
+      return { e: mp.e + xe * c + xn * sn, n: mp.n - xe * sn + xn * c }
+    }
+    const err = pairs.reduce((a, q) => a + Math.hypot(map(q.x).e - q.p.e, map(q.x).n - q.p.n), 0)
+    return { map, err }
+  })
+  return candidates[0].err <= candidates[1].err ? candidates[0].map : candidates[1].map
 }
 
 function seed(input: PlaneApproxInput, coords: Map<string, XY>, orientation: Float64Array): void {
