@@ -104,6 +104,10 @@ describe('file conventions', () => {
     expect(r.observations[0]!.note).toBe('two\nlines, "quoted"')
     expect(r.observations.map((o) => o.line)).toEqual([2, 4])
   })
+  it('a "#" at the start of a continuation line inside quotes is text, not a comment', () => {
+    const r = ok(readObservationCsv('kind,at,to,value,note\ndirection,A,B,1 00 00,"first\n# second"\ndirection,A,C,2 00 00\n'))
+    expect(r.observations.map((o) => [o.line, o.note])).toEqual([[2, 'first\n# second'], [4, '']])
+  })
   it('skips comment lines, blank lines and all-blank rows, counting them', () => {
     const text = `# top\n\n${HEADER}\n# mid, "with quote\n   \n,,,,\ndirection,A,,B,1 00 00\n  # indented comment\n`
     const r = ok(readObservationCsv(text))
