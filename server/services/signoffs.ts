@@ -1,0 +1,321 @@
+// Licensed sign-off of control points of one finished run. A sign-off is a
+// legal record: it stores the run, the selected stations with coordinates and
+// precisions, the signer and licence, the statement, the time, the accuracy
+// check and a SHA-256 over a canonical serialisation of the signed coordinate
+// list plus the run's input hash. It is never changed (a database trigger
+// refuses UPDATE and DELETE); when the inputs change later it is shown as
+// superseded, never edited.
+import { and, desc, eq, gt, inArray, sql } from 'drizzle-orm'
+import { z } from 'zod'
+import type { AdjustmentResult, StationResult } from '../engine/types'
+import type { RunSettings } from '../../shared/schemas/adjustments'
+import { adjustments, observationSets, projects, signoffs, users } from '../db/schema'
+import type { Adjustment, Project, Signoff } from '../db/schema'
+import { useDb } from '../db/client'
+import type { FirmContext } from '../utils/guard'
+import { ApiError, notFound } from '../utils/api'
+import { checkAccuracy, defaultSignStations } from './accuracy-check'
+import type { AccuracyCheck } from './accuracy-check'
+import { audit } from './audit'
+import { notifySignoffCompleted, notifySignoffRequested } from './notifications'
+import { sha256Hex, verifyPassword } from './passwords'
+import { RunInputError, loadRunInputs } from './run-inputs'
+import { getToleranceProfile } from './tolerance'
+
+/** One signed station: metres and degrees, rounded to the canonical decimals. */
+export interface SignedStation {
+  name: string
+  kind: 'control' | 'new'
+  fixed: boolean
+  east: number
+  north: number
+  height: number | null
+  sdEast: number | null
+  sdNorth: number | null
+  sdHeight: number | null
+  semiMajor: number | null
+  semiMinor: number | null
+  azimuthDeg: number | null
+  semiMajor95: number | null
+  semiMinor95: number | null
+}
+
+// Fixed decimals of the canonical form: lengths to 0.01 mm, azimuths to 0.001°.
+const DECIMALS: Record<string, number> = { azimuthDeg: 3 }
+const LENGTH_DECIMALS = 5
+const decimalsOf = (key: string) => DECIMALS[key] ?? LENGTH_DECIMALS
+const round = (v: number | null | undefined, key: string): number | null =>
+  v === null || v === undefined || !Number.isFinite(v) ? null : Number(v.toFixed(decimalsOf(key)))
+
+/**
+ * Canonical JSON: object keys sorted, numbers written with fixed decimals
+ * (as strings, so no float formatting can change the text), arrays in order.
+ */
+export function canonicalJson(value: unknown, key = ''): string {
+  if (value === null || value === undefined) return 'null'
+  if (typeof value === 'number') return JSON.stringify(value.toFixed(decimalsOf(key)))
+  if (typeof value === 'string' || typeof value === 'boolean') return JSON.stringify(value)
+  if (Array.isArray(value)) return `[${value.map((v) => canonicalJson(v, key)).join(',')}]`
+  const obj = value as Record<string, unknown>
+  return `{${Object.keys(obj).sort().map((k) => `${JSON.stringify(k)}:${canonicalJson(obj[k], k)}`).join(',')}}`
+}
+
+/** The sign-off hash: SHA-256 over the canonical signed list and the run's input hash. */
+export function signoffHash(signed: SignedStation[], inputHash: string): string {
+  const sorted = [...signed].sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0))
+  return sha256Hex(canonicalJson({ inputHash, stations: sorted }))
+}
+
+export function toSignedStation(s: StationResult): SignedStation {
+  return {
+    name: s.name,
+    kind: s.kind,
+    fixed: s.fixed,
+    east: round(s.east, 'east')!,
+    north: round(s.north, 'north')!,
+    height: round(s.height, 'height'),
+    sdEast: round(s.sdEast, 'sdEast'),
+    sdNorth: round(s.sdNorth, 'sdNorth'),
+    sdHeight: round(s.sdHeight, 'sdHeight'),
+    semiMajor: round(s.ellipse?.semiMajor, 'semiMajor'),
+    semiMinor: round(s.ellipse?.semiMinor, 'semiMinor'),
+    azimuthDeg: round(s.ellipse?.azimuthDeg ?? s.ellipse95?.azimuthDeg, 'azimuthDeg'),
+    semiMajor95: round(s.ellipse95?.semiMajor, 'semiMajor95'),
+    semiMinor95: round(s.ellipse95?.semiMinor, 'semiMinor95'),
+  }
+}
+
+// ── runs ───────────────────────────────────────────────────────────────────
+
+export async function findRun(firmId: number, projectId: number, number: number): Promise<Adjustment> {
+  const [run] = await useDb().select().from(adjustments)
+    .where(and(eq(adjustments.firmId, firmId), eq(adjustments.projectId, projectId), eq(adjustments.number, number))).limit(1)
+  if (!run) throw notFound('No such run')
+  return run
+}
+
+function doneResult(run: Adjustment): AdjustmentResult {
+  if (run.status !== 'done' || !run.result) {
+    throw new ApiError(409, `Run ${run.number} is ${run.status}; only a finished run can be signed off`)
+  }
+  return run.result as unknown as AdjustmentResult
+}
+
+export interface RunSummaryDto {
+  number: number
+  finishedAt: string | null
+  inputHash: string
+  sigma0: number | null
+  dof: number | null
+  globalTest: AdjustmentResult['globalTest'] | null
+  counts: AdjustmentResult['counts'] | null
+  confidence: number | null
+}
+
+export function runSummary(run: Adjustment): RunSummaryDto {
+  const r = (run.result ?? null) as Partial<AdjustmentResult> | null
+  return {
+    number: run.number,
+    finishedAt: run.finishedAt?.toISOString() ?? null,
+    inputHash: run.inputHash,
+    sigma0: r?.sigma0 ?? null,
+    dof: r?.dof ?? null,
+    globalTest: r?.globalTest ?? null,
+    counts: r?.counts ?? null,
+    confidence: r?.settings?.confidence ?? null,
+  }
+}
+
+export interface SignoffPreview {
+  run: RunSummaryDto
+  check: AccuracyCheck
+  stations: (SignedStation & { passes: boolean; selectedByDefault: boolean })[]
+  defaultStations: string[]
+}
+
+/** What the sign-off page shows for one finished run before anyone signs. */
+export async function previewSignoff(ctx: FirmContext, project: Project, runNumber: number): Promise<SignoffPreview> {
+  const run = await findRun(ctx.firm.id, project.id, runNumber)
+  const result = doneResult(run)
+  const profile = await getToleranceProfile(ctx.firm.id, project.toleranceProfileId)
+  const check = checkAccuracy(profile, result)
+  const defaults = defaultSignStations(result, check)
+  const failing = new Set(check.failing)
+  return {
+    run: runSummary(run),
+    check,
+    stations: result.stations
+      .filter((s) => s.east !== null && s.north !== null)
+      .map((s) => ({ ...toSignedStation(s), passes: !failing.has(s.name), selectedByDefault: defaults.includes(s.name) })),
+    defaultStations: defaults,
+  }
+}
+
+// ── signing ────────────────────────────────────────────────────────────────
+
+export const signoffCreateSchema = z.object({
+  statement: z.string().trim().min(10, 'is required: at least 10 characters saying what you certify').max(5000),
+  password: z.string().min(1, 'is required: confirm with your password'),
+  stations: z.array(z.string().trim().min(1)).min(1, 'must name at least one station').max(5000).optional(),
+}).strict()
+export type SignoffCreate = z.infer<typeof signoffCreateSchema>
+
+export interface SignoffDto {
+  id: number
+  runNumber: number
+  signerName: string
+  licenceNumber: string
+  licenceJurisdiction: string
+  statement: string
+  stations: SignedStation[]
+  accuracyCheck: AccuracyCheck
+  inputHash: string
+  sha256: string
+  signedAt: string
+  superseded: boolean
+  supersededReason: string | null
+}
+
+function signoffDto(s: Signoff, runNumber: number, state: { superseded: boolean; reason: string | null }): SignoffDto {
+  return {
+    id: s.id,
+    runNumber,
+    signerName: s.signerName,
+    licenceNumber: s.licenceNumber,
+    licenceJurisdiction: s.licenceJurisdiction,
+    statement: s.statement,
+    stations: s.stations as unknown as SignedStation[],
+    accuracyCheck: s.accuracyCheck as unknown as AccuracyCheck,
+    inputHash: s.inputHash,
+    sha256: s.sha256,
+    signedAt: s.signedAt.toISOString(),
+    superseded: state.superseded,
+    supersededReason: state.reason,
+  }
+}
+
+export async function createSignoff(ctx: FirmContext, project: Project, runNumber: number, body: SignoffCreate): Promise<SignoffDto> {
+  const db = useDb()
+  const [signer] = await db.select().from(users).where(eq(users.id, ctx.user.id)).limit(1)
+  if (!signer?.licenceNumber?.trim() || !signer.licenceJurisdiction?.trim()) {
+    throw new ApiError(422, 'Your profile has no licence number and jurisdiction. Add both on your profile before signing off.', [
+      ...(!signer?.licenceNumber?.trim() ? [{ field: 'licenceNumber', message: 'licenceNumber: is required on your profile to sign off' }] : []),
+      ...(!signer?.licenceJurisdiction?.trim() ? [{ field: 'licenceJurisdiction', message: 'licenceJurisdiction: is required on your profile to sign off' }] : []),
+    ])
+  }
+  if (!(await verifyPassword(body.password, signer.passwordHash))) {
+    throw new ApiError(422, 'The password is not correct; nothing was signed', [{ field: 'password', message: 'password: is not correct' }])
+  }
+  const run = await findRun(ctx.firm.id, project.id, runNumber)
+  const result = doneResult(run)
+  const profile = await getToleranceProfile(ctx.firm.id, project.toleranceProfileId)
+  const check = checkAccuracy(profile, result)
+  const byName = new Map(result.stations.map((s) => [s.name, s]))
+  const names = body.stations ? [...new Set(body.stations)] : defaultSignStations(result, check)
+  if (names.length === 0) {
+    throw new ApiError(422, 'No station passes the accuracy check, so there is nothing to sign by default; name the stations to sign', [{ field: 'stations', message: 'stations: none selected' }])
+  }
+  const issues = names.flatMap((n, i) => {
+    const s = byName.get(n)
+    if (!s) return [{ field: `stations.${i}`, message: `stations.${i}: '${n}' is not a station of run ${runNumber}` }]
+    if (s.east === null || s.north === null) return [{ field: `stations.${i}`, message: `stations.${i}: '${n}' has no adjusted horizontal position` }]
+    return []
+  })
+  if (issues.length) throw new ApiError(422, 'Some stations cannot be signed', issues)
+
+  const signed = names.map((n) => toSignedStation(byName.get(n)!)).sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0))
+  const sha256 = signoffHash(signed, run.inputHash)
+  const row = await db.transaction(async (tx) => {
+    const [s] = await tx.insert(signoffs).values({
+      firmId: ctx.firm.id,
+      projectId: project.id,
+      adjustmentId: run.id,
+      signerId: signer.id,
+      signerName: signer.name,
+      licenceNumber: signer.licenceNumber!,
+      licenceJurisdiction: signer.licenceJurisdiction!,
+      statement: body.statement,
+      stations: signed as unknown as Record<string, unknown>[],
+      accuracyCheck: check as unknown as Record<string, unknown>,
+      inputHash: run.inputHash,
+      sha256,
+    }).returning()
+    if (project.status !== 'released') {
+      await tx.update(projects).set({ status: 'signed' }).where(and(eq(projects.firmId, ctx.firm.id), eq(projects.id, project.id)))
+    }
+    await audit(tx, {
+      firmId: ctx.firm.id, userId: ctx.user.id, action: 'signoff.create', entityType: 'signoff', entityId: s!.id, projectId: project.id,
+      after: { run: run.number, stations: signed.map((x) => x.name), sha256, inputHash: run.inputHash },
+    })
+    return s!
+  })
+  await notifySignoffCompleted({ firmId: ctx.firm.id, projectId: project.id, runNumber: run.number, signerName: signer.name, stationCount: signed.length, sha256 })
+  return signoffDto(row, run.number, { superseded: false, reason: null })
+}
+
+export async function requestSignoff(ctx: FirmContext, project: Project, runNumber: number, note?: string) {
+  const run = await findRun(ctx.firm.id, project.id, runNumber)
+  doneResult(run)
+  const out = await notifySignoffRequested({ firmId: ctx.firm.id, projectId: project.id, runNumber, requestedBy: ctx.user.name, note })
+  await audit(useDb(), { firmId: ctx.firm.id, userId: ctx.user.id, action: 'signoff.request', entityType: 'adjustment', entityId: run.id, projectId: project.id, after: { run: runNumber, recipients: out.recipients } })
+  if (out.recipients.length === 0) throw new ApiError(409, 'The firm has no licensed surveyor to ask; an owner can invite one on the Members page')
+  return { run: runNumber, sentTo: out.recipients.length }
+}
+
+// ── superseded state ───────────────────────────────────────────────────────
+
+/**
+ * Whether newer data has replaced the inputs of a signed run: the project's
+ * current input hash (the run's own settings over today's observations,
+ * control and profiles, hashed by run-inputs.ts exactly as when the run was
+ * queued) differs from the run's, a newer observation file was uploaded, or a
+ * newer finished run used different inputs. Never edits the sign-off.
+ */
+export async function supersededState(firmId: number, projectId: number, run: Pick<Adjustment, 'id' | 'number' | 'inputHash' | 'createdAt' | 'settings'>): Promise<{ superseded: boolean; reason: string | null }> {
+  const db = useDb()
+  const [newer] = await db.select({ number: adjustments.number }).from(adjustments)
+    .where(and(eq(adjustments.firmId, firmId), eq(adjustments.projectId, projectId), eq(adjustments.status, 'done'),
+      gt(adjustments.number, run.number), sql`${adjustments.inputHash} <> ${run.inputHash}`))
+    .orderBy(desc(adjustments.number)).limit(1)
+  if (newer) return { superseded: true, reason: `Superseded by newer data: run ${newer.number} was adjusted from different inputs.` }
+  let current: string | null = null
+  try {
+    current = (await loadRunInputs(firmId, projectId, run.settings as unknown as RunSettings)).hash
+  } catch (e) {
+    if (!(e instanceof RunInputError)) throw e
+  }
+  if (current !== run.inputHash) {
+    return { superseded: true, reason: `Superseded by newer data: observations, control or settings changed after run ${run.number} was made.` }
+  }
+  const [upload] = await db.select({ id: observationSets.id }).from(observationSets)
+    .where(and(eq(observationSets.firmId, firmId), eq(observationSets.projectId, projectId), gt(observationSets.createdAt, run.createdAt))).limit(1)
+  if (upload) return { superseded: true, reason: `Superseded by newer data: an observation file was uploaded after run ${run.number} was made.` }
+  return { superseded: false, reason: null }
+}
+
+export async function listSignoffs(ctx: FirmContext, project: Project): Promise<SignoffDto[]> {
+  const rows = await useDb().select({ s: signoffs, run: adjustments }).from(signoffs)
+    .innerJoin(adjustments, and(eq(adjustments.id, signoffs.adjustmentId), eq(adjustments.firmId, signoffs.firmId)))
+    .where(and(eq(signoffs.firmId, ctx.firm.id), eq(signoffs.projectId, project.id)))
+    .orderBy(desc(signoffs.signedAt), desc(signoffs.id))
+  const out: SignoffDto[] = []
+  for (const r of rows) out.push(signoffDto(r.s, r.run.number, await supersededState(ctx.firm.id, project.id, r.run)))
+  return out
+}
+
+export async function getSignoff(firmId: number, projectId: number, id: number): Promise<{ signoff: Signoff; run: Adjustment }> {
+  const [row] = await useDb().select({ s: signoffs, run: adjustments }).from(signoffs)
+    .innerJoin(adjustments, and(eq(adjustments.id, signoffs.adjustmentId), eq(adjustments.firmId, signoffs.firmId)))
+    .where(and(eq(signoffs.firmId, firmId), eq(signoffs.projectId, projectId), eq(signoffs.id, id))).limit(1)
+  if (!row) throw notFound('No such sign-off')
+  return { signoff: row.s, run: row.run }
+}
+
+/** Finished runs a signer can choose from on the sign-off page. */
+export async function listSignableRuns(ctx: FirmContext, project: Project) {
+  const rows = await useDb().select({ number: adjustments.number, finishedAt: adjustments.finishedAt, inputHash: adjustments.inputHash })
+    .from(adjustments)
+    .where(and(eq(adjustments.firmId, ctx.firm.id), eq(adjustments.projectId, project.id), inArray(adjustments.status, ['done'])))
+    .orderBy(desc(adjustments.number))
+  return rows.map((r) => ({ number: r.number, finishedAt: r.finishedAt?.toISOString() ?? null, inputHash: r.inputHash }))
+}
