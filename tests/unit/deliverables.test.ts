@@ -1,0 +1,148 @@
+// Client deliverables from a signed coordinate list: GeoJSON (RFC 7946, checked
+// with @placemarkio/check-geojson, positions against proj4 directly), LandXML
+// (read back with our LandXML 1.2 reader), PDF (text extracted with unpdf) and
+// CSV (parsed back with papaparse). Stations are invented.
+import { check } from '@placemarkio/check-geojson'
+import Papa from 'papaparse'
+import proj4 from 'proj4'
+import { extractText, getDocumentProxy } from 'unpdf'
+import { describe, expect, it } from 'vitest'
+import { findCrs } from '../../shared/crs'
+import { readLandXml } from '../../server/engine/io/landxml'
+import { buildCsv, buildDeliverables, buildGeoJson, buildLandXml, buildPdf, CAUTION } from '../../server/services/deliverables'
+import type { DeliverableInput, Units } from '../../server/services/deliverables'
+import type { SignedStation } from '../../server/services/signoffs'
+import { sha256Hex } from '../../server/services/passwords'
+
+const st = (name: string, east: number, north: number, height: number | null): SignedStation => ({
+  name, kind: 'new', fixed: false, east, north, height,
+  sdEast: 0.00213, sdNorth: 0.00187, sdHeight: height === null ? null : 0.00301,
+  semiMajor: 0.00231, semiMinor: 0.00162, azimuthDeg: 37.125, semiMajor95: 0.00566, semiMinor95: 0.00397,
+})
+
+function input(crs: string, units: Units, stations: SignedStation[]): DeliverableInput {
+  const entry = crs === 'local' ? null : findCrs(crs)!
+  return {
+    firmName: 'Larchmere Survey Co.',
+    project: { id: 7, name: 'Fenwick Mill culvert control', crs, crsName: entry?.name ?? 'Local plane system', crsDefinition: entry?.proj4 ?? null, units },
+    release: { id: 12, publishedAt: new Date('2026-05-04T10:20:30Z') },
+    signoff: {
+      id: 3, signerName: 'Tomasz Reyne', licenceNumber: 'LS-DEMO-0417', licenceJurisdiction: 'Demo State Board (invented)',
+      statement: 'I have reviewed the adjustment and certify these control points.', signedAt: new Date('2026-05-03T09:00:00Z'),
+      sha256: 'a'.repeat(64), inputHash: 'b'.repeat(64), stations,
+      accuracyCheck: {
+        profile: { id: 1, name: 'ALTA/NSPS', kind: 'relative_ppm', params: { mm: 20, ppm: 50 }, source: 'ALTA/NSPS 2021 3.E', rule: 'relative precision at 95 % ≤ 20 mm + 50 ppm of the distance' },
+        items: [{ type: 'pair', from: 'FM01', to: 'FM10', distance: 183.2, value: 0.0061, allowable: 0.02916, passes: true }],
+        passed: true, failing: [], note: '1 of 1 pairs pass.',
+      },
+    },
+    run: { number: 4, finishedAt: '2026-05-02T08:00:00.000Z', inputHash: 'b'.repeat(64), sigma0: 1.042, dof: 12, globalTest: { statistic: 13.03, lower: 4.40, upper: 23.34, passed: true }, counts: { n: 30, u: 18, r: 12 }, confidence: 0.95 },
+  }
+}
+
+// UTM zone 33N positions (invented, metres) and a US-survey-foot state plane project.
+const utm = input('EPSG:32633', 'm', [st('FM10', 455123.4567, 5412345.6789, 212.3456), st('FM11', 455301.0012, 5412398.1234, null)])
+const spcs = input('EPSG:2229', 'usft', [st('FM20', 6478123.4567 * 1200 / 3937, 1845678.9012 * 1200 / 3937, 101.25)])
+const local = input('local', 'm', [st('FM30', 1500.1234, 5500.5678, 52.3)])
+
+describe('GeoJSON (RFC 7946)', () => {
+  it('validates and every position equals proj4 of the grid coordinates to 1e-9°', () => {
+    for (const inp of [utm, spcs]) {
+      const text = buildGeoJson(inp)!
+      const fc = check(text) as { type: string; features: { geometry: { coordinates: number[] }; properties: Record<string, unknown> }[] }
+      expect(fc.type).toBe('FeatureCollection')
+      const toCrsUnit = inp.project.units === 'usft' ? 3937 / 1200 : 1
+      inp.signoff.stations.forEach((s, i) => {
+        const [lon, lat] = proj4(inp.project.crsDefinition!, 'EPSG:4326', [s.east * toCrsUnit, s.north * toCrsUnit])
+        const [glon, glat] = fc.features[i]!.geometry.coordinates
+        expect(Math.abs(glon! - lon!)).toBeLessThan(1e-9)
+        expect(Math.abs(glat! - lat!)).toBeLessThan(1e-9)
+        expect(fc.features[i]!.properties).toMatchObject({ name: s.name, kind: 'new', sd_east_m: s.sdEast, ellipse95_major_m: s.semiMajor95 })
+      })
+    }
+  })
+
+  it('puts UTM 33N points near 15° E (zone central meridian) and the California zone 5 point near 118° W', () => {
+    const a = JSON.parse(buildGeoJson(utm)!).features[0].geometry.coordinates
+    expect(a[0]).toBeGreaterThan(14) ; expect(a[0]).toBeLessThan(15)
+    const b = JSON.parse(buildGeoJson(spcs)!).features[0].geometry.coordinates
+    expect(Math.abs(b[0] + 118)).toBeLessThan(1)
+  })
+
+  it('is not offered for a local plane system', () => {
+    expect(buildGeoJson(local)).toBeNull()
+  })
+})
+
+describe('LandXML 1.2', () => {
+  it('round-trips through the LandXML reader as control points in metres', () => {
+    for (const inp of [utm, spcs, local]) {
+      const read = readLandXml(buildLandXml(inp))
+      expect(read.ok, JSON.stringify(read)).toBe(true)
+      if (!read.ok) continue
+      expect(read.controls.map((c) => c.station)).toEqual(inp.signoff.stations.map((s) => s.name))
+      inp.signoff.stations.forEach((s, i) => {
+        const c = read.controls[i]!
+        // four decimals of the file's unit
+        const tol = 0.00006 * (inp.project.units === 'm' ? 1 : 1200 / 3937)
+        expect(Math.abs(c.east! - s.east)).toBeLessThan(tol)
+        expect(Math.abs(c.north! - s.north)).toBeLessThan(tol)
+        if (s.height === null) expect(c.height).toBeNull()
+        else expect(Math.abs(c.height! - s.height)).toBeLessThan(tol)
+      })
+    }
+  })
+
+  it('names the coordinate system', () => {
+    expect(buildLandXml(utm)).toMatch(/<CoordinateSystem name="WGS 84 \/ UTM zone 33N" epsgCode="32633"/)
+    expect(buildLandXml(spcs)).toMatch(/linearUnit="USSurveyFoot"/)
+  })
+})
+
+describe('CSV', () => {
+  it('round-trips through papaparse with units, CRS and precision columns', () => {
+    const text = buildCsv(spcs)
+    expect(text).toMatch(/# CRS: EPSG:2229/)
+    expect(text).toMatch(/units: US survey ft/)
+    const parsed = Papa.parse<Record<string, string>>(text, { header: true, comments: '#', skipEmptyLines: true })
+    expect(parsed.errors).toEqual([])
+    expect(parsed.meta.fields).toEqual(['name', 'kind', 'east_usft', 'north_usft', 'height_usft', 'sd_east_usft', 'sd_north_usft', 'sd_height_usft', 'ellipse95_major_usft', 'ellipse95_minor_usft', 'ellipse_azimuth_deg'])
+    const row = parsed.data[0]!
+    expect(row.name).toBe('FM20')
+    expect(Number(row.east_usft)).toBeCloseTo(6478123.4567, 4)
+    expect(Number(row.north_usft)).toBeCloseTo(1845678.9012, 4)
+    expect(Number(row.ellipse95_major_usft) * 1200 / 3937).toBeCloseTo(0.00566, 4)
+  })
+})
+
+describe('PDF report', () => {
+  it('holds every signed coordinate, the sign-off hash and the caution', async () => {
+    const pdf = await buildPdf(utm)
+    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-')
+    const { text } = await extractText(await getDocumentProxy(new Uint8Array(pdf)), { mergePages: true })
+    for (const s of utm.signoff.stations) {
+      expect(text).toContain(s.name)
+      expect(text).toContain(s.east.toFixed(4))
+      expect(text).toContain(s.north.toFixed(4))
+      if (s.height !== null) expect(text).toContain(s.height.toFixed(4))
+    }
+    expect(text).toContain(utm.signoff.sha256)
+    expect(text).toContain('LS-DEMO-0417')
+    expect(text.replace(/\s+/g, ' ')).toContain('checked against local regulations and licensed practice')
+    expect(CAUTION).toMatch(/responsibility of the signing licensed surveyor/)
+  })
+
+  it('embeds IBM Plex Sans', async () => {
+    const pdf = await buildPdf(local)
+    expect(pdf.toString('latin1')).toMatch(/IBMPlexSans/)
+  })
+})
+
+describe('all deliverables', () => {
+  it('records the SHA-256 of each file and leaves GeoJSON out for a local project', async () => {
+    const files = await buildDeliverables(local)
+    expect(files.map((f) => f.format)).toEqual(['csv', 'landxml', 'pdf'])
+    for (const f of files) expect(f.sha256).toBe(sha256Hex(f.content))
+    expect((await buildDeliverables(utm)).map((f) => f.format)).toEqual(['csv', 'geojson', 'landxml', 'pdf'])
+  })
+})
