@@ -1,0 +1,12 @@
+// GET /api/firms/:firm/projects/:project/adjustments/:number/export/residuals.csv — the run's residuals as CSV in project units
+import { STAFF } from '../../../../../../../../../shared/roles'
+import { exportCsv } from '../../../../../../../../services/adjustments'
+
+export default defineApiHandler(async (event) => {
+  const ctx = await requireFirmMember(event, STAFF)
+  const project = await requireProject(event, ctx)
+  const file = await exportCsv(ctx, project, idParam(event, 'number'), 'residuals')
+  setResponseHeader(event, 'content-type', 'text/csv; charset=utf-8')
+  setResponseHeader(event, 'content-disposition', `attachment; filename="${file.fileName}"`)
+  return file.text
+})

@@ -1,0 +1,377 @@
+// Adjustment runs: queue a run (numbered per project, inputs hashed), list and
+// read runs, export results, exclude an observation and run again, and the
+// worker's side: compute a run and store its result in one transaction.
+// A finished run (done | failed) is never changed by anything here.
+import { and, asc, desc, eq, sql } from 'drizzle-orm'
+import type { PoolClient } from 'pg'
+import { runSettingsSchema, type RunSettings } from '../../shared/schemas/adjustments'
+import { usePool, useDb } from '../db/client'
+import { adjustedStations, adjustments, observationResults, observations, projects, relativePrecisions, users } from '../db/schema'
+import type { Adjustment, Project } from '../db/schema'
+import { adjustNetwork } from '../engine/index'
+import type { AdjustmentResult } from '../engine/types'
+import { ApiError, notFound } from '../utils/api'
+import type { FirmContext } from '../utils/guard'
+import { checkRelative, describeTolerance, semiMajorAt95, type ToleranceSpec } from './accuracy'
+import { audit } from './audit'
+import { loadRunInputs, RunInputError } from './run-inputs'
+import { ADJUST_QUEUE, sendAdjustJob, type AdjustJob } from './run-queue'
+
+export type RunStatus = Adjustment['status']
+
+export interface RunListItem {
+  number: number
+  status: RunStatus
+  createdAt: string
+  startedAt: string | null
+  finishedAt: string | null
+  createdBy: string | null
+  sigma0: number | null
+  globalTestPassed: boolean | null
+  flagged: number | null
+  errorText: string | null
+  inputHash: string
+  settings: Record<string, unknown>
+}
+
+// ── queueing ────────────────────────────────────────────────────────────────
+
+/** Queues a run; 422 names the setting that cannot be used. */
+export async function queueRun(ctx: FirmContext, project: Project, body: unknown, opts: { queue?: string } = {}): Promise<{ number: number; status: RunStatus }> {
+  const parsed = runSettingsSchema.safeParse(body ?? {})
+  if (!parsed.success) {
+    throw new ApiError(422, 'Some settings are not valid', parsed.error.issues.map((i) => ({ field: i.path.join('.') || undefined, message: i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message })))
+  }
+  const db = useDb()
+  let inputs
+  try {
+    inputs = await loadRunInputs(ctx.firm.id, project.id, parsed.data)
+  } catch (e) {
+    if (e instanceof RunInputError) throw new ApiError(422, e.message, [{ field: e.field, message: e.message }])
+    throw e
+  }
+  const run = await db.transaction(async (tx) => {
+    // The project row lock serialises number allocation between concurrent requests.
+    await tx.execute(sql`select id from ${projects} where ${projects.firmId} = ${ctx.firm.id} and ${projects.id} = ${project.id} for update`)
+    const [{ next }] = await tx.select({ next: sql<number>`coalesce(max(${adjustments.number}), 0)::int + 1` }).from(adjustments)
+      .where(and(eq(adjustments.firmId, ctx.firm.id), eq(adjustments.projectId, project.id))) as [{ next: number }]
+    const [row] = await tx.insert(adjustments).values({
+      firmId: ctx.firm.id, projectId: project.id, number: next, settings: inputs.settings as unknown as Record<string, unknown>,
+      inputHash: inputs.hash, status: 'queued', createdBy: ctx.user.id,
+    }).returning()
+    await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'adjustment.queue', entityType: 'adjustment', entityId: row!.id, projectId: project.id, after: { number: next, settings: inputs.settings, inputHash: inputs.hash } })
+    return row!
+  })
+  try {
+    await sendAdjustJob({ adjustmentId: run.id, firmId: ctx.firm.id, projectId: project.id }, opts.queue ?? ADJUST_QUEUE)
+  } catch (e) {
+    await db.update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: 'The job queue could not take this run; nothing was computed. Please start it again.' })
+      .where(and(eq(adjustments.firmId, ctx.firm.id), eq(adjustments.id, run.id)))
+    console.error('[tiepoint] queueing run failed', e)
+    return { number: run.number, status: 'failed' }
+  }
+  return { number: run.number, status: run.status }
+}
+
+// ── reading ─────────────────────────────────────────────────────────────────
+
+export async function listRuns(ctx: FirmContext, project: Project): Promise<RunListItem[]> {
+  const rows = await useDb().select({ a: adjustments, by: users.name }).from(adjustments)
+    .leftJoin(users, eq(users.id, adjustments.createdBy))
+    .where(and(eq(adjustments.firmId, ctx.firm.id), eq(adjustments.projectId, project.id)))
+    .orderBy(desc(adjustments.number))
+  return rows.map(({ a, by }) => {
+    const s = (a.summary ?? {}) as { sigma0?: number | null; globalTest?: { passed?: boolean }; flagged?: number }
+    return {
+      number: a.number, status: a.status, createdAt: a.createdAt.toISOString(), startedAt: a.startedAt?.toISOString() ?? null,
+      finishedAt: a.finishedAt?.toISOString() ?? null, createdBy: by, sigma0: s.sigma0 ?? null, globalTestPassed: s.globalTest?.passed ?? null,
+      flagged: s.flagged ?? null, errorText: a.errorText, inputHash: a.inputHash, settings: a.settings,
+    }
+  })
+}
+
+async function findRun(ctx: FirmContext, project: Project, number: number): Promise<Adjustment> {
+  const [run] = await useDb().select().from(adjustments)
+    .where(and(eq(adjustments.firmId, ctx.firm.id), eq(adjustments.projectId, project.id), eq(adjustments.number, number))).limit(1)
+  if (!run) throw notFound('No such run in this project')
+  return run
+}
+
+/** The CLI's JSON shape (DESIGN.md section 5) out of the engine's fuller result. */
+export function cliShape(r: AdjustmentResult) {
+  const net = (n: AdjustmentResult['plane']) => n && { dof: n.dof, sigma0: n.sigma0, globalTest: n.globalTest }
+  return {
+    converged: r.converged, iterations: r.iterations, dof: r.dof, sigma0: r.sigma0, globalTest: r.globalTest,
+    stations: r.stations.map((s) => ({ name: s.name, east: s.east, north: s.north, height: s.height, sdEast: s.sdEast, sdNorth: s.sdNorth, sdHeight: s.sdHeight, ellipse: s.ellipse, fixed: s.fixed })),
+    observations: r.observations.map((o) => ({ line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to, residual: o.residual, redundancy: o.redundancy, w: o.w, flagged: o.flagged, mdb: o.mdb })),
+    ...(r.plane ? { plane: net(r.plane) } : {}),
+    ...(r.height ? { height: net(r.height) } : {}),
+  }
+}
+
+export async function getRun(ctx: FirmContext, project: Project, number: number) {
+  const run = await findRun(ctx, project, number)
+  const db = useDb()
+  const [by] = run.createdBy ? await db.select({ name: users.name }).from(users).where(eq(users.id, run.createdBy)) : []
+  const base = {
+    number: run.number, status: run.status, attempts: run.attempts, settings: run.settings, inputHash: run.inputHash,
+    createdAt: run.createdAt.toISOString(), startedAt: run.startedAt?.toISOString() ?? null, finishedAt: run.finishedAt?.toISOString() ?? null,
+    createdBy: by?.name ?? null, errorText: run.errorText, summary: run.summary,
+    project: { units: project.units, angleFormat: project.angleFormat, crs: project.crs, crsDefinition: project.crsDefinition },
+  }
+  if (run.status !== 'done' || !run.result) return { ...base, result: null, stations: [], observations: [], relative: [] }
+  const result = run.result as unknown as AdjustmentResult
+  const relative = await db.select().from(relativePrecisions)
+    .where(and(eq(relativePrecisions.firmId, ctx.firm.id), eq(relativePrecisions.adjustmentId, run.id))).orderBy(asc(relativePrecisions.id))
+  return {
+    ...base,
+    result: cliShape(result),
+    stations: result.stations,
+    observations: result.observations,
+    relative: relative.map((r) => ({ from: r.fromStation, to: r.toStation, distance: r.distance, semiMajor: r.semiMajor, semiMinor: r.semiMinor, azimuthDeg: r.azimuthDeg, semiMajor95: r.semiMajor95, allowable: r.allowable, passes: r.passes })),
+  }
+}
+
+/** Just enough for a progress poll. */
+export async function getRunStatus(ctx: FirmContext, project: Project, number: number) {
+  const run = await findRun(ctx, project, number)
+  return { number: run.number, status: run.status, attempts: run.attempts, errorText: run.errorText }
+}
+
+// ── export ──────────────────────────────────────────────────────────────────
+
+const METRES_PER_UNIT = { m: 1, ft: 0.3048, usft: 1200 / 3937 } as const
+const csvCell = (v: unknown) => {
+  if (v === null || v === undefined) return ''
+  const s = String(v)
+  return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s
+}
+const csv = (rows: unknown[][]) => rows.map((r) => r.map(csvCell).join(',')).join('\n') + '\n'
+
+export async function exportCsv(ctx: FirmContext, project: Project, number: number, what: 'coordinates' | 'residuals'): Promise<{ fileName: string; text: string }> {
+  const run = await findRun(ctx, project, number)
+  if (run.status !== 'done' || !run.result) throw new ApiError(409, `Run ${number} has no results (${run.status})`)
+  const r = run.result as unknown as AdjustmentResult
+  const u = project.units
+  const k = METRES_PER_UNIT[u]
+  const len = (v: number | null | undefined, d = 4) => (v === null || v === undefined ? null : (v / k).toFixed(d))
+  const head = [`# Tiepoint run ${number} of project "${project.name}"; input SHA-256 ${run.inputHash}`,
+    '# Coordinates must be checked against local regulations and licensed practice before use.']
+  if (what === 'coordinates') {
+    const conf = Number((run.settings as { confidence?: number }).confidence ?? 0.95)
+    const rows: unknown[][] = [['station', 'kind', 'held', `east_${u}`, `north_${u}`, `height_${u}`, `sd_east_${u}`, `sd_north_${u}`, `sd_height_${u}`,
+      `ellipse_semi_major_1sigma_${u}`, `ellipse_semi_minor_1sigma_${u}`, 'ellipse_azimuth_deg', `ellipse_semi_major_${Math.round(conf * 1000) / 10}pct_${u}`, `ellipse_semi_minor_${Math.round(conf * 1000) / 10}pct_${u}`]]
+    for (const s of r.stations) {
+      rows.push([s.name, s.kind, s.fixed ? 'fixed' : '', len(s.east), len(s.north), len(s.height), len(s.sdEast, 5), len(s.sdNorth, 5), len(s.sdHeight, 5),
+        len(s.ellipse?.semiMajor, 5), len(s.ellipse?.semiMinor, 5), s.ellipse ? s.ellipse.azimuthDeg.toFixed(2) : null, len(s.ellipse95?.semiMajor, 5), len(s.ellipse95?.semiMinor, 5)])
+    }
+    return { fileName: `run-${number}-coordinates.csv`, text: head.join('\n') + '\n' + csv(rows) }
+  }
+  const rows: unknown[][] = [['line', 'kind', 'at', 'from', 'to', 'residual', 'residual_unit', 'redundancy', 'w', 'tau', 'mdb', 'flagged', 'weak', 'excluded']]
+  for (const o of r.observations) {
+    rows.push([o.line, o.kind, o.at, o.from, o.to, o.residual === null ? null : (o.residualUnit === 'm' ? o.residual * 1000 : o.residual).toFixed(2),
+      o.residualUnit === 'm' ? 'mm' : 'arcsec', o.redundancy?.toFixed(3), o.w?.toFixed(2), o.tau?.toFixed(2),
+      o.mdb === null ? null : (o.residualUnit === 'm' ? o.mdb * 1000 : o.mdb).toFixed(2), o.flagged ? 'yes' : 'no', o.weak ? 'yes' : 'no', o.excluded ? 'yes' : 'no'])
+  }
+  return { fileName: `run-${number}-residuals.csv`, text: head.join('\n') + '\n' + csv(rows) }
+}
+
+// ── exclude and run again ───────────────────────────────────────────────────
+
+/** Excludes one observation of the project and queues a run with the settings of run `number`. */
+export async function excludeAndRerun(ctx: FirmContext, project: Project, number: number, observationId: number, opts: { queue?: string } = {}) {
+  const run = await findRun(ctx, project, number)
+  const db = useDb()
+  const [obs] = await db.select().from(observations)
+    .where(and(eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id), eq(observations.id, observationId))).limit(1)
+  if (!obs) throw new ApiError(422, 'That observation is not in this project', [{ field: 'observationId', message: 'observationId: not in this project' }])
+  if (!obs.excluded) {
+    await db.transaction(async (tx) => {
+      await tx.update(observations).set({ excluded: true }).where(and(eq(observations.firmId, ctx.firm.id), eq(observations.id, obs.id)))
+      await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'observation.exclude', entityType: 'observation', entityId: obs.id, projectId: project.id,
+        before: { excluded: false }, after: { excluded: true, fromRun: run.number } })
+    })
+  }
+  return queueRun(ctx, project, run.settings, opts)
+}
+
+// ── the worker's side ───────────────────────────────────────────────────────
+
+/** Advisory-lock namespace: a run being computed holds (NS, run id) on its worker's session. */
+const RUN_LOCK_NS = 7031
+
+async function tryLock(client: PoolClient, runId: number): Promise<boolean> {
+  const { rows } = await client.query<{ ok: boolean }>('select pg_try_advisory_lock($1, $2) as ok', [RUN_LOCK_NS, runId])
+  return rows[0]!.ok
+}
+async function unlock(client: PoolClient, runId: number) {
+  await client.query('select pg_advisory_unlock($1, $2)', [RUN_LOCK_NS, runId]).catch(() => undefined)
+}
+
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms))
+
+export interface ProcessOutcome { status: RunStatus | 'skipped'; reason?: string }
+
+/**
+ * Computes one queued run. Engine failures end the run `failed` with the
+ * engine's message (no retry: the same inputs fail the same way). Other errors
+ * are thrown so the queue retries; on the last attempt the run is marked failed.
+ */
+export async function processRun(job: AdjustJob, attempt: { final: boolean } = { final: true }): Promise<ProcessOutcome> {
+  const db = useDb()
+  const client = await usePool().connect()
+  try {
+    if (!(await tryLock(client, job.adjustmentId))) return { status: 'skipped', reason: 'another worker is computing this run' }
+    const [run] = await db.select().from(adjustments).where(and(eq(adjustments.firmId, job.firmId), eq(adjustments.id, job.adjustmentId))).limit(1)
+    if (!run) return { status: 'skipped', reason: 'run no longer exists' }
+    if (run.status === 'done' || run.status === 'failed') return { status: 'skipped', reason: `run already ${run.status}` }
+    await db.update(adjustments).set({ status: 'running', startedAt: new Date(), attempts: run.attempts + 1, errorText: null })
+      .where(and(eq(adjustments.firmId, job.firmId), eq(adjustments.id, run.id)))
+    try {
+      // Test hook: hold the run so a test can stop the worker mid-run.
+      const hold = Number(process.env.TIEPOINT_WORKER_TEST_DELAY_MS ?? 0)
+      if (hold > 0) await sleep(hold)
+      return await computeAndStore(run)
+    } catch (e) {
+      const message = e instanceof RunInputError ? e.message : 'The worker hit an unexpected error while computing this run'
+      if (e instanceof RunInputError || attempt.final) {
+        await finishFailed(run, message)
+        if (e instanceof RunInputError) return { status: 'failed', reason: message }
+      } else {
+        await db.update(adjustments).set({ status: 'queued', errorText: `${message}; it will be tried again` })
+          .where(and(eq(adjustments.firmId, run.firmId), eq(adjustments.id, run.id), eq(adjustments.status, 'running')))
+      }
+      throw e
+    }
+  } finally {
+    await unlock(client, job.adjustmentId)
+    client.release()
+  }
+}
+
+async function finishFailed(run: Adjustment, message: string, summary?: Record<string, unknown>) {
+  await useDb().update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: message, ...(summary ? { summary } : {}) })
+    .where(and(eq(adjustments.firmId, run.firmId), eq(adjustments.id, run.id), sql`${adjustments.status} in ('queued', 'running')`))
+}
+
+async function computeAndStore(run: Adjustment): Promise<ProcessOutcome> {
+  const settings = runSettingsSchema.parse(stripResolved(run.settings))
+  const inputs = await loadRunInputs(run.firmId, run.projectId, { ...settings, observationSetIds: (run.settings as { observationSetIds?: number[] }).observationSetIds })
+  const t0 = performance.now()
+  const outcome = adjustNetwork(inputs.input, inputs.engineSettings)
+  const engineMs = Math.round(performance.now() - t0)
+  if (!outcome.ok) {
+    await finishFailed(run, outcome.reason, { code: outcome.code, stations: outcome.stations ?? [], engineMs, warnings: inputs.warnings })
+    return { status: 'failed', reason: outcome.reason }
+  }
+  const r = outcome.result
+  const estimated = settings.scaling === 'a-posteriori'
+  const planeDof = r.plane?.dof ?? r.dof
+  const relChecks = r.relative.map((rel) => {
+    const sm95 = Math.abs(settings.confidence - 0.95) < 1e-9 ? rel.semiMajor95 : semiMajorAt95(rel.semiMajor, estimated, planeDof)
+    return { rel, check: checkRelative(inputs.tolerance, { distance: rel.distance, semiMajor95: sm95 }) }
+  })
+  const summary = buildSummary(r, inputs.tolerance, relChecks.map((c) => c.check.passes), engineMs, inputs.warnings)
+  const db = useDb()
+  await db.transaction(async (tx) => {
+    const firmId = run.firmId
+    const [locked] = await tx.select({ status: adjustments.status }).from(adjustments)
+      .where(and(eq(adjustments.firmId, firmId), eq(adjustments.id, run.id))).for('update')
+    if (!locked || locked.status !== 'running') return
+    const chunk = <T>(xs: T[], n = 500) => Array.from({ length: Math.ceil(xs.length / n) }, (_, i) => xs.slice(i * n, i * n + n))
+    for (const part of chunk(r.stations)) {
+      await tx.insert(adjustedStations).values(part.map((s) => ({
+        firmId, adjustmentId: run.id, name: s.name, kind: inputs.stationKinds.get(s.name) ?? s.kind, fixed: s.fixed,
+        east: s.east, north: s.north, height: s.height, sdEast: s.sdEast, sdNorth: s.sdNorth, sdHeight: s.sdHeight,
+        semiMajor: s.ellipse?.semiMajor ?? null, semiMinor: s.ellipse?.semiMinor ?? null, azimuthDeg: s.ellipse?.azimuthDeg ?? null,
+        semiMajor95: s.ellipse95?.semiMajor ?? null, semiMinor95: s.ellipse95?.semiMinor ?? null,
+      })))
+    }
+    const obsRows = r.observations.filter((o) => o.kind !== 'control')
+    for (const part of chunk(obsRows)) {
+      await tx.insert(observationResults).values(part.map((o) => ({
+        firmId, adjustmentId: run.id, observationId: typeof o.id === 'number' ? o.id : null, line: o.line,
+        kind: o.kind as Exclude<typeof o.kind, 'control'>, at: o.at, from: o.from, to: o.to,
+        residual: o.residual, redundancy: o.redundancy, w: o.w, tau: o.tau, mdb: o.mdb, flagged: o.flagged, excluded: o.excluded,
+      })))
+    }
+    for (const part of chunk(relChecks)) {
+      await tx.insert(relativePrecisions).values(part.map(({ rel, check }) => ({
+        firmId, adjustmentId: run.id, fromStation: rel.from, toStation: rel.to, distance: rel.distance,
+        semiMajor: rel.semiMajor, semiMinor: rel.semiMinor, azimuthDeg: rel.azimuthDeg, semiMajor95: check.semiMajor95,
+        allowable: check.allowable, passes: check.passes,
+      })))
+    }
+    await tx.update(adjustments).set({
+      status: 'done', finishedAt: new Date(), summary, result: r as unknown as Record<string, unknown>, inputHash: inputs.hash, errorText: null,
+    }).where(and(eq(adjustments.firmId, firmId), eq(adjustments.id, run.id)))
+    await tx.update(projects).set({ status: 'adjusted' })
+      .where(and(eq(projects.firmId, firmId), eq(projects.id, run.projectId), eq(projects.status, 'collecting')))
+    await audit(tx, { firmId, userId: null, action: 'adjustment.done', entityType: 'adjustment', entityId: run.id, projectId: run.projectId, after: { number: run.number, inputHash: inputs.hash, sigma0: r.sigma0 } })
+  })
+  return { status: 'done' }
+}
+
+/** Stored settings carry resolved extras; the schema is strict, so keep only its own keys. */
+function stripResolved(s: Record<string, unknown>): RunSettings {
+  const { observationSetIds: _ids, ...rest } = s
+  return rest as unknown as RunSettings
+}
+
+function buildSummary(r: AdjustmentResult, tolerance: ToleranceSpec | null, passes: (boolean | null)[], engineMs: number, warnings: string[]) {
+  const used = r.observations.filter((o) => !o.excluded && o.kind !== 'control')
+  return {
+    converged: r.converged, iterations: r.iterations, dof: r.dof, sigma0: r.sigma0, globalTest: r.globalTest, counts: r.counts,
+    health: r.health, critical: r.critical, plane: r.plane ?? null, height: r.height ?? null,
+    flagged: used.filter((o) => o.flagged).length,
+    weak: used.filter((o) => o.weak).length,
+    excluded: r.observations.filter((o) => o.excluded).length,
+    confidence: r.settings.confidence, scaling: r.settings.scaling, alpha: r.settings.alpha, alpha0: r.settings.alpha0, beta0: r.settings.beta0,
+    weakRedundancy: r.settings.weakRedundancy,
+    tolerance: tolerance ? { ...tolerance, description: describeTolerance(tolerance) } : null,
+    relative: { checked: passes.filter((p) => p !== null).length, passed: passes.filter((p) => p === true).length, failed: passes.filter((p) => p === false).length },
+    engineMs, warnings,
+  }
+}
+
+/**
+ * Runs left `running` by a worker that died: no live session holds their lock.
+ * Their queue job is failed so pg-boss retries it (run back to `queued`), or,
+ * with no retry left or no job at all, the run ends `failed`.
+ */
+export async function sweepStuckRuns(failJob: (queue: string, jobId: string) => Promise<void>): Promise<{ requeued: number; failed: number }> {
+  const db = useDb()
+  const stuck = await db.select({ id: adjustments.id, firmId: adjustments.firmId }).from(adjustments).where(eq(adjustments.status, 'running'))
+  let requeued = 0
+  let failed = 0
+  if (!stuck.length) return { requeued, failed }
+  const client = await usePool().connect()
+  try {
+    for (const s of stuck) {
+      if (!(await tryLock(client, s.id))) continue
+      try {
+        const { rows } = await client.query<{ id: string; name: string; state: string }>(
+          `select id, name, state from pgboss.job where (data->>'adjustmentId')::int = $1 order by created_on desc limit 1`, [s.id]).catch(() => ({ rows: [] as { id: string; name: string; state: string }[] }))
+        let job = rows[0]
+        if (job?.state === 'active') {
+          await failJob(job.name, job.id)
+          const again = await client.query<{ state: string }>('select state from pgboss.job where id = $1 and name = $2', [job.id, job.name])
+          job = { ...job, state: again.rows[0]?.state ?? 'failed' }
+        }
+        const where = and(eq(adjustments.firmId, s.firmId), eq(adjustments.id, s.id), eq(adjustments.status, 'running'))
+        if (job && (job.state === 'retry' || job.state === 'created')) {
+          await db.update(adjustments).set({ status: 'queued', errorText: 'The worker computing this run stopped; the run is queued again' }).where(where)
+          requeued++
+        } else {
+          await db.update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: 'The worker computing this run stopped and no retry is left; start the run again' }).where(where)
+          failed++
+        }
+      } finally {
+        await unlock(client, s.id)
+      }
+    }
+  } finally {
+    client.release()
+  }
+  return { requeued, failed }
+}

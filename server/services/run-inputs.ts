@@ -1,0 +1,191 @@
+// The exact inputs of an adjustment run, loaded from the database (firm-scoped),
+// turned into the engine's input, and hashed. The same function serves the API
+// (hash recorded when a run is queued) and the worker (hash of what it really
+// adjusted), so a sign-off can later prove which data produced its coordinates.
+import { createHash } from 'node:crypto'
+import { and, asc, eq, inArray } from 'drizzle-orm'
+import type { RunSettings } from '../../shared/schemas/adjustments'
+import { useDb } from '../db/client'
+import type { Db, Tx } from '../db/client'
+import { instrumentProfiles, observationSets, observations, projects, stations, toleranceProfiles } from '../db/schema'
+import { angleSigma, directionSigma, distanceSigma, levellingSigma, zenithSigma } from '../engine/sigma'
+import type { AdjustInput, AdjustSettings, ApproximateCoordinate, ControlRecord, InstrumentProfile, ObservationRecord } from '../engine/types'
+import type { ToleranceSpec } from './accuracy'
+
+export class RunInputError extends Error {
+  constructor(message: string, public field?: string) {
+    super(message)
+  }
+}
+
+export interface RunInputs {
+  input: AdjustInput
+  engineSettings: Partial<AdjustSettings>
+  /** settings with defaults resolved (set ids, tolerance profile) */
+  settings: RunSettings & { observationSetIds: number[]; toleranceProfileId: number | null }
+  tolerance: ToleranceSpec | null
+  stationKinds: Map<string, 'control' | 'new'>
+  hash: string
+  warnings: string[]
+}
+
+/** JSON with sorted keys: the same data always gives the same bytes. */
+export function canonicalJson(v: unknown): string {
+  if (v === null || typeof v !== 'object') return JSON.stringify(v ?? null)
+  if (Array.isArray(v)) return `[${v.map(canonicalJson).join(',')}]`
+  const o = v as Record<string, unknown>
+  return `{${Object.keys(o).filter((k) => o[k] !== undefined).sort().map((k) => `${JSON.stringify(k)}:${canonicalJson(o[k])}`).join(',')}}`
+}
+
+const profileOf = (p: typeof instrumentProfiles.$inferSelect): InstrumentProfile => ({
+  distanceMm: p.distanceMm, distancePpm: p.distancePpm, directionArcsec: p.directionArcsec, zenithArcsec: p.zenithArcsec,
+  centeringInstrumentMm: p.centeringInstrumentMm, centeringTargetMm: p.centeringTargetMm, levellingMmPerSqrtKm: p.levellingMmPerSqrtKm,
+})
+
+export async function loadRunInputs(firmId: number, projectId: number, settings: RunSettings, db: Db | Tx = useDb()): Promise<RunInputs> {
+  const [project] = await db.select().from(projects).where(and(eq(projects.firmId, firmId), eq(projects.id, projectId))).limit(1)
+  if (!project) throw new RunInputError('The project no longer exists')
+
+  const sets = await db.select({ id: observationSets.id, sha256: observationSets.sha256, instrumentProfileId: observationSets.instrumentProfileId, name: observationSets.name })
+    .from(observationSets).where(and(eq(observationSets.firmId, firmId), eq(observationSets.projectId, projectId))).orderBy(asc(observationSets.id))
+  let setIds = sets.map((s) => s.id)
+  if (settings.observationSetIds?.length) {
+    const unknown = settings.observationSetIds.filter((id) => !setIds.includes(id))
+    if (unknown.length) throw new RunInputError(`observation set ${unknown.join(', ')} is not in this project`, 'observationSetIds')
+    setIds = [...settings.observationSetIds].sort((a, b) => a - b)
+  }
+  if (!setIds.length) throw new RunInputError('This project has no observations yet: upload an observation file first', 'observationSetIds')
+  const usedSets = sets.filter((s) => setIds.includes(s.id))
+
+  const toleranceProfileId = settings.toleranceProfileId === undefined ? project.toleranceProfileId : settings.toleranceProfileId
+  let tolerance: ToleranceSpec | null = null
+  if (toleranceProfileId !== null) {
+    const [t] = await db.select().from(toleranceProfiles).where(and(eq(toleranceProfiles.firmId, firmId), eq(toleranceProfiles.id, toleranceProfileId))).limit(1)
+    if (!t) throw new RunInputError(`tolerance profile ${toleranceProfileId} does not exist in this firm`, 'toleranceProfileId')
+    tolerance = { id: t.id, name: t.name, kind: t.kind, params: t.params, source: t.source }
+  }
+
+  const profileIds = [...new Set(usedSets.map((s) => s.instrumentProfileId).filter((x): x is number => x !== null))]
+  const profileRows = profileIds.length
+    ? await db.select().from(instrumentProfiles).where(and(eq(instrumentProfiles.firmId, firmId), inArray(instrumentProfiles.id, profileIds)))
+    : []
+  const profiles = new Map(profileRows.map((p) => [p.id, profileOf(p)]))
+
+  const obsRows = await db.select().from(observations)
+    .where(and(eq(observations.firmId, firmId), eq(observations.projectId, projectId), inArray(observations.setId, setIds)))
+    .orderBy(asc(observations.setId), asc(observations.line), asc(observations.id))
+  if (!obsRows.length) throw new RunInputError('The chosen observation sets hold no observations', 'observationSetIds')
+
+  const stationRows = await db.select().from(stations).where(and(eq(stations.firmId, firmId), eq(stations.projectId, projectId))).orderBy(asc(stations.name))
+  const holds = new Map(settings.holds.map((h) => [h.station, h]))
+  for (const h of settings.holds) {
+    const s = stationRows.find((r) => r.name === h.station)
+    if (!s) throw new RunInputError(`station ${h.station} does not exist in this project`, 'holds')
+    if (h.hold !== 'free' && s.controlEast === null && s.controlNorth === null && s.controlHeight === null) {
+      throw new RunInputError(`station ${h.station} has no control values to hold`, 'holds')
+    }
+  }
+
+  const controls: ControlRecord[] = []
+  const approximate: ApproximateCoordinate[] = []
+  const warnings: string[] = []
+  for (const s of stationRows) {
+    const hasControl = s.controlEast !== null || s.controlNorth !== null || s.controlHeight !== null
+    const hold = holds.get(s.name)
+    // a free network still passes control to the engine, which uses it only as approximate values
+    const heldAs = settings.datum === 'free' ? 'stored' : (hold?.hold ?? (hasControl ? 'stored' : 'free'))
+    if (hasControl && heldAs !== 'free') {
+      const sd = (given: number | undefined, stored: number | null) =>
+        heldAs === 'fixed' ? null : heldAs === 'weighted' ? (given !== undefined ? given / 1000 : stored) : stored
+      const rec: ControlRecord = {
+        line: 0, station: s.name, east: s.controlEast, north: s.controlNorth, height: s.controlHeight,
+        sdEast: s.controlEast === null ? null : sd(hold?.sdEastMm, s.sdEast),
+        sdNorth: s.controlNorth === null ? null : sd(hold?.sdNorthMm, s.sdNorth),
+        sdHeight: s.controlHeight === null ? null : sd(hold?.sdHeightMm, s.sdHeight),
+      }
+      if (heldAs === 'weighted' && [rec.sdEast, rec.sdNorth, rec.sdHeight].every((v) => v === null)) {
+        throw new RunInputError(`station ${s.name} is to be weighted but has no σ: give sdEastMm/sdNorthMm/sdHeightMm`, 'holds')
+      }
+      controls.push(rec)
+    } else {
+      const e = s.controlEast ?? s.approxEast
+      const n = s.controlNorth ?? s.approxNorth
+      const h = s.controlHeight ?? s.approxHeight
+      if (e !== null || n !== null || h !== null) approximate.push({ station: s.name, ...(e !== null ? { east: e } : {}), ...(n !== null ? { north: n } : {}), ...(h !== null ? { height: h } : {}) })
+    }
+  }
+
+  // One instrument profile per run goes to the engine (the one most observations
+  // use); observations of sets measured with another profile get their σ here,
+  // with lengths taken from measured distances of the same line.
+  const setProfile = new Map(usedSets.map((s) => [s.id, s.instrumentProfileId]))
+  const countByProfile = new Map<number | null, number>()
+  for (const o of obsRows) countByProfile.set(setProfile.get(o.setId) ?? null, (countByProfile.get(setProfile.get(o.setId) ?? null) ?? 0) + 1)
+  const mainProfileId = [...countByProfile].sort((a, b) => b[1] - a[1])[0]![0]
+  const lengths = new Map<string, number>()
+  const key = (a: string, b: string) => (a < b ? `${a}\u0000${b}` : `${b}\u0000${a}`)
+  for (const o of obsRows) if (o.kind === 'slope_distance' || o.kind === 'horizontal_distance') lengths.set(key(o.at, o.to), o.value)
+  const coords = new Map<string, [number, number]>()
+  for (const s of stationRows) {
+    const e = s.controlEast ?? s.approxEast
+    const n = s.controlNorth ?? s.approxNorth
+    if (e !== null && n !== null) coords.set(s.name, [e, n])
+  }
+  const lengthOf = (a: string, b: string): number | null => {
+    const d = lengths.get(key(a, b))
+    if (d !== undefined) return d
+    const p = coords.get(a)
+    const q = coords.get(b)
+    return p && q ? Math.hypot(p[0] - q[0], p[1] - q[1]) : null
+  }
+
+  const records: ObservationRecord[] = obsRows.map((o) => {
+    let sigma = o.sigma
+    const pid = setProfile.get(o.setId) ?? null
+    if (sigma === null && pid !== mainProfileId && pid !== null) {
+      const p = profiles.get(pid)!
+      const dTo = lengthOf(o.at, o.to)
+      if (o.kind === 'slope_distance' || o.kind === 'horizontal_distance') sigma = distanceSigma(p, o.value)
+      else if (o.kind === 'zenith') sigma = zenithSigma(p)
+      else if (o.kind === 'height_difference' && o.lengthKm !== null) sigma = levellingSigma(p, o.lengthKm)
+      else if ((o.kind === 'direction' || o.kind === 'azimuth') && dTo !== null) sigma = directionSigma(p, dTo)
+      else if (o.kind === 'angle' && o.from) {
+        const dB = lengthOf(o.at, o.from)
+        const dBF = lengthOf(o.from, o.to)
+        if (dB !== null && dTo !== null && dBF !== null) sigma = angleSigma(p, dB, dTo, dBF)
+      }
+      if (sigma === null) warnings.push(`line ${o.line} of set ${o.setId}: σ taken from the run's main instrument profile (no length known to apply its own)`)
+    }
+    return {
+      id: o.id, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to, value: o.value, sigma,
+      hi: o.hi, ht: o.ht, set: o.setName, lengthKm: o.lengthKm, note: o.note, excluded: o.excluded,
+    }
+  })
+
+  const resolved = { ...settings, observationSetIds: setIds, toleranceProfileId }
+  const hashed = {
+    settings: resolved,
+    sets: usedSets.map((s) => ({ id: s.id, sha256: s.sha256, instrumentProfileId: s.instrumentProfileId })),
+    profiles: [...profiles].sort((a, b) => a[0] - b[0]),
+    observations: obsRows.map((o) => ({
+      id: o.id, setId: o.setId, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to, value: o.value, sigma: o.sigma,
+      hi: o.hi, ht: o.ht, setName: o.setName, lengthKm: o.lengthKm, excluded: o.excluded,
+    })),
+    stations: stationRows.map((s) => ({
+      name: s.name, kind: s.kind, controlEast: s.controlEast, controlNorth: s.controlNorth, controlHeight: s.controlHeight,
+      sdEast: s.sdEast, sdNorth: s.sdNorth, sdHeight: s.sdHeight, approxEast: s.approxEast, approxNorth: s.approxNorth, approxHeight: s.approxHeight,
+    })),
+    tolerance,
+  }
+  const hash = createHash('sha256').update(canonicalJson(hashed)).digest('hex')
+  const mainProfile = mainProfileId === null ? undefined : profiles.get(mainProfileId)
+  return {
+    input: { controls, observations: records, ...(mainProfile ? { profile: mainProfile } : {}), approximate },
+    engineSettings: { datum: settings.datum === 'free' ? 'free' : 'as-given', scaling: settings.scaling, confidence: settings.confidence },
+    settings: resolved,
+    tolerance,
+    stationKinds: new Map(stationRows.map((s) => [s.name, s.kind])),
+    hash,
+    warnings,
+  }
+}

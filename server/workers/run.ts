@@ -1,0 +1,48 @@
+// The adjustment worker: takes queued runs from pg-boss and computes them.
+// Start more with `npm run worker` (this or another host, same DATABASE_URL).
+// On start and every 30 s it sweeps runs left `running` by a worker that died.
+// Env: TIEPOINT_QUEUE (default 'adjust'), TIEPOINT_WORKER_TEST_DELAY_MS (tests only).
+import type PgBoss from 'pg-boss'
+import { closeDb } from '../db/client'
+import { processRun, sweepStuckRuns } from '../services/adjustments'
+import { ADJUST_QUEUE, ensureQueue, stopBoss, useBoss, type AdjustJob } from '../services/run-queue'
+
+const queue = process.env.TIEPOINT_QUEUE || ADJUST_QUEUE
+const log = (...a: unknown[]) => console.error('[tiepoint worker]', ...a)
+
+async function sweep(boss: PgBoss) {
+  const r = await sweepStuckRuns(async (name, id) => { await boss.fail(name, id, { reason: 'worker stopped' }) })
+  if (r.requeued || r.failed) log(`swept stuck runs: ${r.requeued} queued again, ${r.failed} failed`)
+}
+
+async function main() {
+  const boss = await useBoss({ work: true })
+  await ensureQueue(boss, queue)
+  await sweep(boss)
+  const timer = setInterval(() => { sweep(boss).catch((e) => log('sweep failed:', e.message)) }, 30_000)
+  await boss.work<AdjustJob>(queue, { batchSize: 1, pollingIntervalSeconds: 0.5, includeMetadata: true }, async ([job]) => {
+    if (!job) return
+    const final = job.retryCount >= job.retryLimit
+    const out = await processRun(job.data, { final })
+    log(`run ${job.data.adjustmentId}: ${out.status}${out.reason ? ` (${out.reason})` : ''}`)
+  })
+  log(`working on queue '${queue}' (pid ${process.pid})`)
+
+  let stopping = false
+  const stop = async () => {
+    if (stopping) return
+    stopping = true
+    clearInterval(timer)
+    log('stopping')
+    await stopBoss()
+    await closeDb()
+    process.exit(0)
+  }
+  process.on('SIGTERM', stop)
+  process.on('SIGINT', stop)
+}
+
+main().catch((e) => {
+  log('could not start:', e)
+  process.exit(1)
+})
