@@ -1,0 +1,248 @@
+// Observation uploads and edits against the real server and database
+// (DESIGN.md sections 4, 6, 7): counts come from counting the fixture rows
+// here, not from our own output; bytes are compared by SHA-256.
+import { readFileSync } from 'node:fs'
+import { and, eq } from 'drizzle-orm'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { closeDb, useDb } from '../../server/db/client'
+import { observations } from '../../server/db/schema'
+import { as, DEMO, type Client } from '../support/http'
+import { auditRows, counts, fileForm, freshProject, outsiderCrewClient, sha256 } from './fielddata-helpers'
+
+const DEMO_CSV = readFileSync('server/db/demo/demo-network.csv')
+const DEMO_XML = readFileSync('server/db/demo/demo-network.xml')
+const HEADER = 'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note'
+
+/** Data rows of a Tiepoint CSV, counted independently of the reader: not blank, not '#', not the header. */
+function dataRows(text: string) {
+  return text.split('\n').map((l) => l.trim()).filter((l) => l !== '' && !l.startsWith('#')).slice(1)
+}
+
+let chief: Client, crew: Client, client: Client, other: Client
+const base = (p: number) => `/api/firms/${DEMO.firm}/projects/${p}`
+
+beforeAll(async () => {
+  ;[chief, crew, client, other] = await Promise.all([as(DEMO.chief), as(DEMO.crew), as(DEMO.client), as(DEMO.other)])
+})
+afterAll(async () => { await closeDb() })
+
+describe('upload', () => {
+  it('stores a good CSV with every observation, the control and the bytes (201 with counts)', async () => {
+    const p = await freshProject(chief, 'Upload good')
+    const text = DEMO_CSV.toString('utf8')
+    const rows = dataRows(text)
+    const controlRows = rows.filter((r) => r.startsWith('control,')).length
+    const r = await crew.post(`${base(p)}/observation-sets`, fileForm('demo-network.csv', DEMO_CSV))
+    expect(r.status).toBe(201)
+    expect(r.body.sha256).toBe(sha256(DEMO_CSV))
+    expect(r.body.controls).toBe(controlRows)
+    expect(r.body.observations).toBe(rows.length - controlRows)
+    expect(Array.isArray(r.body.warnings)).toBe(true)
+    const c = await counts(p)
+    expect(c.observations).toBe(rows.length - controlRows)
+    expect(c.sets).toBe(1)
+    // every station named in the file exists: control ones as control, the rest as new
+    const names = new Set<string>()
+    for (const row of rows) {
+      const f = row.split(',')
+      names.add(f[1]!)
+      if (f[2]) names.add(f[2])
+      if (f[3]) names.add(f[3])
+    }
+    const st = await chief.get(`${base(p)}/stations`)
+    expect(new Set(st.body.map((s: { name: string }) => s.name))).toEqual(names)
+    const cp1 = st.body.find((s: { name: string }) => s.name === 'CP1')
+    expect(cp1.kind).toBe('control')
+    expect(cp1.controlEast).toBe(1163.455) // first control line of the file: "1163.455 5112.797"
+    expect(cp1.controlNorth).toBe(5112.797)
+    // the upload is audited with who and what
+    const audit = await auditRows('observation_set', r.body.id)
+    expect(audit.map((a) => a.action)).toContain('observation_set.upload')
+    // source lines are the editor's line numbers: the first direction row of the file
+    const firstDirection = text.split('\n').findIndex((l) => l.startsWith('direction,')) + 1
+    const list = await crew.get(`${base(p)}/observations?setId=${r.body.id}&sort=line&pageSize=1`)
+    expect(list.body.rows[0].line).toBe(firstDirection)
+  })
+
+  it('reads LandXML 1.2 detected by extension and by content', async () => {
+    const p = await freshProject(chief, 'Upload xml')
+    const raw = DEMO_XML.toString('utf8').match(/<RawObservation\b/g)!.length
+    const r = await chief.post(`${base(p)}/observation-sets`, fileForm('network.xml', DEMO_XML))
+    expect(r.status).toBe(201)
+    expect(r.body.controls).toBe(DEMO_XML.toString('utf8').match(/pntSurv="control"/g)!.length)
+    expect(r.body.observations).toBeGreaterThanOrEqual(raw) // each RawObservation gives one to three observations
+    const sets = await chief.get(`${base(p)}/observation-sets`)
+    expect(sets.body[0].format).toBe('landxml')
+    // same content without an .xml name: still LandXML by its content; but same bytes → 409
+    const again = await chief.post(`${base(p)}/observation-sets`, fileForm('network.dat', DEMO_XML))
+    expect(again.status).toBe(409)
+  })
+
+  it('refuses a file with bad lines (422 listing every one) and writes nothing', async () => {
+    const p = await freshProject(chief, 'Upload bad')
+    const before = await counts(p)
+    const bad = [
+      HEADER,
+      'control,A1,,,1000 2000,m,,,,,,',
+      'direction,A1,,B2,12 30 00,dms,,,,,,',
+      'slope_distance,A1,,B2,12x.5,m,,,,,,', // line 4: not a number
+      'zenith,A1,,B2,91 00 00,dms,,,,,,',
+      'teleport,A1,,B2,1,m,,,,,,', // line 6: unknown kind
+      'horizontal_distance,A1,,,100.0,m,,,,,,', // line 7: no target
+      'horizontal_distance,A1,,B2,100.0,m,,,,,,',
+    ].join('\n')
+    const r = await crew.post(`${base(p)}/observation-sets`, fileForm('bad.csv', bad))
+    expect(r.status).toBe(422)
+    expect(r.body.statusCode).toBe(422)
+    const lines = [...new Set(r.body.errors.map((e: { line: number }) => e.line))].sort()
+    expect(lines).toEqual([4, 6, 7])
+    const byLine = Object.fromEntries(r.body.errors.map((e: { line: number; column: string }) => [e.line, e.column]))
+    expect(byLine[4]).toBe('value')
+    expect(byLine[6]).toBe('kind')
+    expect(byLine[7]).toBe('to')
+    expect(r.body.message).toMatch(/3 bad lines/)
+    expect(await counts(p)).toEqual(before)
+  })
+
+  it('answers 409 for the same bytes twice, naming the earlier set', async () => {
+    const p = await freshProject(chief, 'Upload dup')
+    const text = `${HEADER}\nhorizontal_distance,A,,B,10.000,m,2,,,,,\n`
+    const first = await chief.post(`${base(p)}/observation-sets`, fileForm('one.csv', text))
+    expect(first.status).toBe(201)
+    const second = await chief.post(`${base(p)}/observation-sets`, fileForm('renamed.csv', text))
+    expect(second.status).toBe(409)
+    expect(second.body.message).toContain(`set ${first.body.id}`)
+    expect(second.body.message).toContain('one.csv')
+    expect((await counts(p)).sets).toBe(1)
+  })
+
+  it('answers 413 for a file over 20 MB and for more than 200,000 lines', async () => {
+    const p = await freshProject(chief, 'Upload big')
+    const big = Buffer.alloc(20 * 1024 * 1024 + 10, 0x23) // '#' bytes: size alone decides
+    const r = await chief.post(`${base(p)}/observation-sets`, fileForm('big.csv', big))
+    expect(r.status).toBe(413)
+    expect(r.body.message).toMatch(/20 MB/)
+    const manyLines = `${HEADER}\n` + '#\n'.repeat(200_000)
+    const r2 = await chief.post(`${base(p)}/observation-sets`, fileForm('long.csv', manyLines))
+    expect(r2.status).toBe(413)
+    expect(r2.body.message).toMatch(/200,000 lines/)
+    expect((await counts(p)).sets).toBe(0)
+  })
+
+  it('returns the original bytes byte-identical with type and file name', async () => {
+    const p = await freshProject(chief, 'Download')
+    const withCrlf = Buffer.from(`\uFEFF${HEADER}\r\nhorizontal_distance,Ä1,,B2,10.000,m,2,,,,,"note, with comma"\r\n`, 'utf8')
+    const up = await chief.post(`${base(p)}/observation-sets`, fileForm('crlf föö.csv', withCrlf))
+    expect(up.status).toBe(201)
+    const res = await chief.raw(`${base(p)}/observation-sets/${up.body.id}/file`)
+    expect(res.status).toBe(200)
+    const got = Buffer.from(await res.arrayBuffer())
+    expect(sha256(got)).toBe(sha256(withCrlf))
+    expect(res.headers.get('content-type')).toMatch(/text\/csv/)
+    expect(res.headers.get('content-disposition')).toMatch(/attachment; filename=/)
+    expect(res.headers.get('content-disposition')).toContain(encodeURIComponent('crlf föö.csv'))
+  })
+})
+
+describe('who may upload', () => {
+  it("hides a project from another firm (404) and from clients (404)", async () => {
+    const p = await freshProject(chief, 'Isolation')
+    const form = () => fileForm('x.csv', `${HEADER}\nhorizontal_distance,A,,B,10.5,m,2,,,,,\n`)
+    expect((await other.post(`${base(p)}/observation-sets`, form())).status).toBe(404)
+    expect((await other.get(`${base(p)}/observation-sets`)).status).toBe(404)
+    expect((await other.get(`/api/firms/${DEMO.otherFirm}/projects/${p}/observation-sets`)).status).toBe(404)
+    expect((await client.post(`${base(p)}/observation-sets`, form())).status).toBe(404)
+    expect((await client.get(`${base(p)}/observations`)).status).toBe(404)
+    expect((await counts(p)).sets).toBe(0)
+  })
+
+  it('refuses field crew of a crew not assigned to the project', async () => {
+    const p = await freshProject(chief, 'Crew check')
+    const outsider = await outsiderCrewClient()
+    const r = await outsider.post(`${base(p)}/observation-sets`, fileForm('x.csv', `${HEADER}\nhorizontal_distance,A,,B,11.5,m,2,,,,,\n`))
+    expect([403, 404]).toContain(r.status)
+    expect((await counts(p)).sets).toBe(0)
+    // while the assigned crew member may, and the set records their crew
+    const ok = await crew.post(`${base(p)}/observation-sets`, fileForm('x.csv', `${HEADER}\nhorizontal_distance,A,,B,11.5,m,2,,,,,\n`))
+    expect(ok.status).toBe(201)
+    const sets = await crew.get(`${base(p)}/observation-sets`)
+    expect(sets.body[0].crew.name).toBe('North crew')
+    expect(sets.body[0].uploadedBy.name).toBeTruthy()
+  })
+})
+
+describe('observations', () => {
+  it('pages, filters and sorts on the server', async () => {
+    const p = await freshProject(chief, 'Paging')
+    const text = DEMO_CSV.toString('utf8')
+    const up = await chief.post(`${base(p)}/observation-sets`, fileForm('demo.csv', DEMO_CSV))
+    expect(up.status).toBe(201)
+    const zeniths = dataRows(text).filter((r) => r.startsWith('zenith,')).length
+    const page1 = await chief.get(`${base(p)}/observations?kind=zenith&pageSize=10&page=1`)
+    expect(page1.body.total).toBe(zeniths)
+    expect(page1.body.rows).toHaveLength(Math.min(10, zeniths))
+    expect(page1.body.rows.every((r: { kind: string }) => r.kind === 'zenith')).toBe(true)
+    const sorted = await chief.get(`${base(p)}/observations?kind=slope_distance&sort=value&dir=desc&pageSize=500`)
+    const values = sorted.body.rows.map((r: { value: number }) => r.value)
+    expect(values).toEqual([...values].sort((a: number, b: number) => b - a))
+    const atCp1 = dataRows(text).filter((r) => { const f = r.split(','); return f[0] !== 'control' && (f[1] === 'CP1' || f[2] === 'CP1' || f[3] === 'CP1') }).length
+    const st = await chief.get(`${base(p)}/observations?station=CP1&pageSize=1`)
+    expect(st.body.total).toBe(atCp1)
+    expect((await chief.get(`${base(p)}/observations?pageSize=5000`)).status).toBe(422)
+  })
+
+  it('edits a value and excludes an observation, audited, original value and file kept', async () => {
+    const p = await freshProject(chief, 'Edit')
+    const text = `${HEADER}\nhorizontal_distance,A,,B,100.0000,m,2,,,,,\ndirection,A,,B,10 00 00,dms,,,,,,\n`
+    const up = await crew.post(`${base(p)}/observation-sets`, fileForm('edit.csv', text))
+    expect(up.status).toBe(201)
+    const list = await crew.get(`${base(p)}/observations?sort=line`)
+    const dist = list.body.rows.find((r: { kind: string }) => r.kind === 'horizontal_distance')
+    const dir = list.body.rows.find((r: { kind: string }) => r.kind === 'direction')
+    expect(dir.display).toBe(`10°00'00.0"`)
+    const e = await crew.patch(`${base(p)}/observations/${dist.id}`, { valueText: '100.0125' })
+    expect(e.status).toBe(200)
+    expect(e.body.value).toBeCloseTo(100.0125, 10)
+    expect(e.body.originalValue).toBe(100)
+    expect(e.body.edited).toBe(true)
+    const x = await chief.patch(`${base(p)}/observations/${dir.id}`, { excluded: true })
+    expect(x.body.excluded).toBe(true)
+    const bad = await chief.patch(`${base(p)}/observations/${dir.id}`, { valueText: '10 61 00' })
+    expect(bad.status).toBe(422)
+    const a1 = await auditRows('observation', dist.id)
+    expect(a1).toHaveLength(1)
+    expect(a1[0]!.action).toBe('observation.update')
+    expect((a1[0]!.before as { value: number }).value).toBe(100)
+    expect((a1[0]!.after as { value: number }).value).toBeCloseTo(100.0125, 10)
+    expect(a1[0]!.userId).not.toBeNull()
+    const a2 = await auditRows('observation', dir.id)
+    expect(a2.map((a) => a.action)).toEqual(['observation.exclude'])
+    const [row] = await useDb().select().from(observations).where(and(eq(observations.id, dir.id)))
+    expect(row!.excluded).toBe(true)
+    const file = await crew.raw(`${base(p)}/observation-sets/${up.body.id}/file`)
+    expect(Buffer.from(await file.arrayBuffer()).toString('utf8')).toBe(text)
+    // another firm cannot touch it
+    expect((await other.patch(`${base(p)}/observations/${dist.id}`, { excluded: true })).status).toBe(404)
+  })
+
+  it('adds typed-in rows through the same validation, as a manual set', async () => {
+    const p = await freshProject(chief, 'Manual')
+    const bad = await crew.post(`${base(p)}/observation-sets/manual`, {
+      rows: [
+        { kind: 'horizontal_distance', at: 'A', to: 'B', value: '50.5', sigma: '2' },
+        { kind: 'horizontal_distance', at: 'A', to: 'B', value: 'fifty' },
+        { kind: 'angle', at: 'A', to: 'B', value: '90 00 00' },
+      ],
+    })
+    expect(bad.status).toBe(422)
+    expect(bad.body.errors.map((e: { message: string }) => e.message.split(',')[0]).sort()).toEqual(['row 2', 'row 3'])
+    expect((await counts(p)).sets).toBe(0)
+    const good = await crew.post(`${base(p)}/observation-sets/manual`, {
+      rows: [{ kind: 'horizontal_distance', at: 'A', to: 'B', value: '50.5', sigma: '2' }, { kind: 'zenith', at: 'A', to: 'B', value: '90 00 10', sigma: '3' }],
+    })
+    expect(good.status).toBe(201)
+    expect(good.body.observations).toBe(2)
+    const sets = await crew.get(`${base(p)}/observation-sets`)
+    expect(sets.body[0].format).toBe('manual')
+  })
+})
