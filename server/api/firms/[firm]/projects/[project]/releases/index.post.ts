@@ -1,10 +1,12 @@
 // POST /api/firms/:firm/projects/:project/releases — publish a signed coordinate list as client deliverables
-import { CHIEFS } from '../../../../../../../shared/roles'
+import { CHIEFS, STAFF } from '../../../../../../../shared/roles'
 import { createRelease, releaseCreateSchema } from '../../../../../../../server/services/releases'
 
 export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
+  // project first, so another firm's project answers 404 whatever the role
+  const ctx = await requireFirmMember(event, STAFF)
   const project = await requireProject(event, ctx)
+  if (!CHIEFS.includes(ctx.role)) throw forbidden()
   const body = await parseBody(event, releaseCreateSchema)
   const release = await createRelease(ctx, project, body)
   setResponseStatus(event, 201)

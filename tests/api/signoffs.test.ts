@@ -1,0 +1,172 @@
+// Licensed sign-off through the API: who may sign, the licence and password
+// checks, what is stored and hashed, immutability in SQL, superseded state
+// when the inputs change, and the sign-off request and completion e-mails.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { and, eq } from 'drizzle-orm'
+import { closeDb, useDb, usePool } from '../../server/db/client'
+import { adjustedStations, adjustments, memberships, firms, observations, signoffs, users } from '../../server/db/schema'
+import { hashPassword } from '../../server/services/passwords'
+import { signoffHash } from '../../server/services/signoffs'
+import type { SignedStation } from '../../server/services/signoffs'
+import { as, DEMO, type Client } from '../support/http'
+import { finishedRun, mailsSince } from './signoffs-fixture'
+
+let chief: Client
+let surveyor: Client
+let fx: Awaited<ReturnType<typeof finishedRun>>
+const started = new Date()
+const statement = 'I reviewed this adjustment and certify the listed control points for construction staking.'
+
+beforeAll(async () => {
+  chief = await as(DEMO.chief)
+  surveyor = await as(DEMO.surveyor)
+  fx = await finishedRun(chief, 'Sign-off suite')
+})
+afterAll(async () => { await closeDb() })
+
+const signPath = () => `${fx.base}/adjustments/${fx.runNumber}/signoffs`
+
+describe('before signing', () => {
+  it('the preview lists the accuracy check of every connected pair with value, allowable and verdict', async () => {
+    const r = await surveyor.get(`${fx.base}/signoffs/preview?run=${fx.runNumber}`)
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    expect(r.body.check.profile.source).toBe('invented rule for tests')
+    expect(r.body.check.items.length).toBeGreaterThan(0)
+    for (const i of r.body.check.items) {
+      expect(i.type).toBe('pair')
+      // 100 mm + 100 ppm, the rule the fixture created
+      expect(i.allowable).toBeCloseTo(0.1 + 100e-6 * i.distance, 12)
+      expect(i.passes).toBe(i.value <= i.allowable)
+    }
+    const news = r.body.stations.filter((s: any) => s.kind === 'new').map((s: any) => s.name).sort()
+    expect(r.body.defaultStations).toEqual(news)
+  })
+})
+
+describe('who may sign', () => {
+  it('a party chief gets 403, field crew 403, a client 404 and another firm 404', async () => {
+    const body = { statement, password: 'tiepoint-demo' }
+    expect((await chief.post(signPath(), body)).status).toBe(403)
+    expect((await (await as(DEMO.crew)).post(signPath(), body)).status).toBe(403)
+    expect((await (await as(DEMO.client)).post(signPath(), body)).status).toBe(404)
+    expect((await (await as(DEMO.other)).post(signPath(), body)).status).toBe(404)
+    expect((await (await as(DEMO.other)).post(`/api/firms/${DEMO.otherFirm}/projects/${fx.projectId}/adjustments/${fx.runNumber}/signoffs`, body)).status).toBe(404)
+  })
+
+  it('a licensed surveyor without licence number and jurisdiction gets 422 saying so', async () => {
+    const db = useDb()
+    const email = `unlicensed-${Date.now()}@tiepoint.test`
+    const [u] = await db.insert(users).values({ email, name: 'Ada Unlicensed (invented)', passwordHash: await hashPassword('tiepoint-demo') }).returning()
+    const [firm] = await db.select().from(firms).where(eq(firms.slug, DEMO.firm))
+    await db.insert(memberships).values({ firmId: firm!.id, userId: u!.id, role: 'licensed_surveyor' })
+    const r = await (await as(email)).post(signPath(), { statement, password: 'tiepoint-demo' })
+    expect(r.status).toBe(422)
+    expect(r.body.message).toMatch(/licence number and jurisdiction/)
+    expect(r.body.errors.map((e: any) => e.field)).toEqual(['licenceNumber', 'licenceJurisdiction'])
+  })
+
+  it('a wrong password answers 422 on the password field and signs nothing', async () => {
+    const before = await useDb().select().from(signoffs).where(eq(signoffs.projectId, fx.projectId))
+    const r = await surveyor.post(signPath(), { statement, password: 'not-my-password' })
+    expect(r.status).toBe(422)
+    expect(r.body.errors[0].field).toBe('password')
+    expect(await useDb().select().from(signoffs).where(eq(signoffs.projectId, fx.projectId))).toHaveLength(before.length)
+  })
+
+  it('an unknown station is named in the 422', async () => {
+    const r = await surveyor.post(signPath(), { statement, password: 'tiepoint-demo', stations: ['KF01', 'NOPE9'] })
+    expect(r.status).toBe(422)
+    expect(r.body.errors).toEqual([{ field: 'stations.1', message: expect.stringContaining("'NOPE9' is not a station") }])
+  })
+})
+
+describe('a sign-off', () => {
+  let signed: any
+  it('answers 201 with id and SHA-256 and stores the run, stations, signer, licence and statement', async () => {
+    const r = await surveyor.post(signPath(), { statement, password: 'tiepoint-demo' })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    signed = r.body
+    expect(signed.sha256).toMatch(/^[0-9a-f]{64}$/)
+    const [row] = await useDb().select().from(signoffs).where(eq(signoffs.id, signed.id))
+    expect(row).toMatchObject({ projectId: fx.projectId, signerName: 'Tomasz Reyne', licenceNumber: 'LS-DEMO-0417', statement, sha256: signed.sha256 })
+    const [run] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, fx.projectId), eq(adjustments.number, fx.runNumber)))
+    expect(row!.adjustmentId).toBe(run!.id)
+    expect(row!.inputHash).toBe(run!.inputHash)
+    // the signed coordinates are the run's adjusted coordinates (rounded to 0.01 mm)
+    const adjusted = await useDb().select().from(adjustedStations).where(eq(adjustedStations.adjustmentId, run!.id))
+    const stored = row!.stations as unknown as SignedStation[]
+    expect(stored.map((s) => s.name)).toEqual(adjusted.filter((a) => a.kind === 'new').map((a) => a.name).sort())
+    for (const s of stored) {
+      const a = adjusted.find((x) => x.name === s.name)!
+      expect(Math.abs(s.east - a.east!)).toBeLessThanOrEqual(0.000005 + 1e-12)
+      expect(Math.abs(s.north - a.north!)).toBeLessThanOrEqual(0.000005 + 1e-12)
+      expect(Math.abs(s.semiMajor95! - a.semiMajor95!)).toBeLessThanOrEqual(0.000005 + 1e-12)
+    }
+  })
+
+  it('its SHA-256 recomputed from the stored coordinate list and input hash matches', async () => {
+    const [row] = await useDb().select().from(signoffs).where(eq(signoffs.id, signed.id))
+    expect(signoffHash(row!.stations as unknown as SignedStation[], row!.inputHash)).toBe(row!.sha256)
+    // and a one-hundredth-of-a-millimetre change would not
+    const tampered = (row!.stations as unknown as SignedStation[]).map((s, i) => (i === 0 ? { ...s, east: s.east + 0.00001 } : s))
+    expect(signoffHash(tampered, row!.inputHash)).not.toBe(row!.sha256)
+  })
+
+  it('cannot be changed or removed in SQL: the trigger refuses UPDATE and DELETE', async () => {
+    await expect(usePool().query('update signoffs set statement = $1 where id = $2', ['edited later', signed.id])).rejects.toThrow(/immutable/)
+    await expect(usePool().query('delete from signoffs where id = $1', [signed.id])).rejects.toThrow(/immutable/)
+    const [row] = await useDb().select().from(signoffs).where(eq(signoffs.id, signed.id))
+    expect(row!.statement).toBe(statement)
+  })
+
+  it('tells the owner and party chiefs by e-mail, with the hash and a link to releases', async () => {
+    const mails = await mailsSince(started, 'Signed off:')
+    const mine = mails.filter((m) => m.text.includes(signed.sha256))
+    expect(mine.map((m) => m.to)).toEqual(expect.arrayContaining([DEMO.chief, DEMO.owner]))
+    expect(mine.map((m) => m.to)).not.toContain(DEMO.client)
+    expect(mine[0]!.text).toContain(`/f/${DEMO.firm}/projects/${fx.projectId}/releases`)
+    expect(mine[0]!.text).toContain('Larchmere Survey Co.')
+    expect(mine[0]!.html).toContain('<a href=')
+  })
+
+  it('is listed with its hash and not superseded while the inputs are unchanged', async () => {
+    const r = await chief.get(`${fx.base}/signoffs`)
+    expect(r.status).toBe(200)
+    expect(r.body[0]).toMatchObject({ id: signed.id, sha256: signed.sha256, superseded: false, runNumber: fx.runNumber })
+    expect((await (await as(DEMO.client)).get(`${fx.base}/signoffs`)).status).toBe(404)
+  })
+
+  it('shows as superseded by newer data after an observation changes, and is left unchanged', async () => {
+    const db = useDb()
+    const [obs] = await db.select().from(observations).where(and(eq(observations.projectId, fx.projectId), eq(observations.kind, 'slope_distance'))).limit(1)
+    await db.update(observations).set({ value: obs!.value + 0.003 }).where(eq(observations.id, obs!.id))
+    const r = await chief.get(`${fx.base}/signoffs`)
+    expect(r.body[0].superseded).toBe(true)
+    expect(r.body[0].supersededReason).toMatch(/Superseded by newer data/)
+    const [row] = await db.select().from(signoffs).where(eq(signoffs.id, signed.id))
+    expect(row!.sha256).toBe(signed.sha256)
+    expect(signoffHash(row!.stations as unknown as SignedStation[], row!.inputHash)).toBe(signed.sha256)
+    // a superseded sign-off cannot be released
+    const rel = await chief.post(`${fx.base}/releases`, { signoffId: signed.id })
+    expect(rel.status).toBe(409)
+    await db.update(observations).set({ value: obs!.value }).where(eq(observations.id, obs!.id))
+    expect((await chief.get(`${fx.base}/signoffs`)).body[0].superseded).toBe(false)
+  })
+})
+
+describe('asking for a sign-off', () => {
+  it('a party chief asks and every licensed surveyor of the firm gets an e-mail with a link to the run', async () => {
+    const since = new Date()
+    const r = await chief.post(`${fx.base}/adjustments/${fx.runNumber}/signoff-request`, { note: 'Bridge staking starts Monday.' })
+    expect(r.status, JSON.stringify(r.body)).toBe(202)
+    const mails = (await mailsSince(since, 'Sign-off requested')).filter((m) => m.text.includes(`/projects/${fx.projectId}/signoff?run=${fx.runNumber}`))
+    expect(mails.map((m) => m.to)).toContain(DEMO.surveyor)
+    expect(mails.map((m) => m.to)).not.toContain(DEMO.chief)
+    expect(mails[0]!.text).toContain('Bridge staking starts Monday.')
+  })
+
+  it('field crew may not ask (403); a client gets 404', async () => {
+    expect((await (await as(DEMO.crew)).post(`${fx.base}/adjustments/${fx.runNumber}/signoff-request`, {})).status).toBe(403)
+    expect((await (await as(DEMO.client)).post(`${fx.base}/adjustments/${fx.runNumber}/signoff-request`, {})).status).toBe(404)
+  })
+})
