@@ -1,0 +1,80 @@
+// Bench: parse and store a 100,000-line observation CSV and a ~10 MB LandXML
+// file into PostgreSQL through the upload service, in a throw-away project.
+// Prints rows/s and peak RSS. Targets (not asserted): < 10 s, < 300 MB.
+// Needs DATABASE_URL (e.g. the test cluster); skips with a message without it.
+import { eq } from 'drizzle-orm'
+
+if (!process.env.DATABASE_URL) {
+  console.log('[bench store] skipped: DATABASE_URL is not set (run against a Tiepoint database, e.g. the test cluster)')
+  process.exit(0)
+}
+
+const { closeDb, useDb } = await import('../../server/db/client')
+const { firms, projects, users } = await import('../../server/db/schema')
+const { uploadObservationSet } = await import('../../server/services/observations')
+
+let peak = process.memoryUsage().rss
+const sampler = setInterval(() => { peak = Math.max(peak, process.memoryUsage().rss) }, 20)
+
+const HEADER = 'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note'
+function csvText(lines: number): string {
+  const out: string[] = [HEADER]
+  for (let i = 1; i < lines; i++) {
+    const at = `S${i % 500}`
+    const to = `S${(i * 7 + 1) % 500 === i % 500 ? (i + 1) % 500 : (i * 7 + 1) % 500}`
+    switch (i % 4) {
+      case 0: out.push(`direction,${at},,${to},${i % 360} ${i % 60} ${(i % 600) / 10},dms,,,,${at}-R1,,`); break
+      case 1: out.push(`zenith,${at},,${to},${80 + (i % 20)} 12 30.5,dms,,1.550,1.600,,,`); break
+      case 2: out.push(`slope_distance,${at},,${to},${(100 + (i % 900) + 0.1234).toFixed(4)},m,,1.550,1.600,,,`); break
+      default: out.push(`height_difference,${at},,${to},${((i % 200) / 100 - 1).toFixed(4)},m,,,,,0.${(i % 9) + 1},`)
+    }
+  }
+  return out.join('\n') + '\n'
+}
+function xmlText(targetBytes: number): string {
+  const parts = ['<?xml version="1.0" encoding="UTF-8"?>', '<LandXML xmlns="http://www.landxml.org/schema/LandXML-1.2" version="1.2">',
+    '<Units><Metric linearUnit="meter" angularUnit="decimal degrees" directionUnit="decimal degrees"/></Units>',
+    '<CgPoints><CgPoint name="S0" pntSurv="control">5000.000 1000.000</CgPoint></CgPoints>', '<Survey>']
+  let size = parts.join('\n').length
+  for (let s = 0; size < targetBytes; s++) {
+    const setup = [`<InstrumentSetup id="SET${s}" stationName="S${s % 500}" instrumentHeight="1.550">`, `<InstrumentPoint pntRef="S${s % 500}"/>`]
+    for (let k = 1; k <= 8; k++) {
+      setup.push(`<RawObservation horizAngle="${((s * 13 + k * 41) % 360) + 0.1234567}" zenithAngle="${88 + (k % 4) + 0.25}" slopeDistance="${(150 + k * 11 + (s % 50)).toFixed(4)}" targetHeight="1.600"><TargetPoint pntRef="S${(s + k) % 500 === s % 500 ? (s + k + 1) % 500 : (s + k) % 500}"/></RawObservation>`)
+    }
+    setup.push('</InstrumentSetup>')
+    const chunk = setup.join('\n')
+    parts.push(chunk)
+    size += chunk.length + 1
+  }
+  parts.push('</Survey>', '</LandXML>')
+  return parts.join('\n') + '\n'
+}
+
+const db = useDb()
+const [firm] = await db.select().from(firms).limit(1)
+const [user] = await db.select().from(users).limit(1)
+if (!firm || !user) {
+  console.log('[bench store] skipped: the database has no firm or user yet (run the seed first)')
+  process.exit(0)
+}
+const ctx = { user: { id: user.id, email: user.email, name: user.name, licenceNumber: null, licenceJurisdiction: null, via: 'session' as const }, firm, role: 'owner' as const }
+
+async function run(label: string, name: string, text: string) {
+  const [project] = await db.insert(projects).values({ firmId: firm!.id, name: `bench ${label} ${Date.now()}`, crs: 'local', units: 'm' }).returning()
+  const bytes = Buffer.from(text, 'utf8')
+  const t0 = performance.now()
+  const r = await uploadObservationSet(ctx, project!, { name, bytes })
+  const s = (performance.now() - t0) / 1000
+  console.log(`[bench store] ${label}: ${(bytes.length / 1048576).toFixed(1)} MB, ${text.split('\n').length - 1} lines → ${r.observations} observations stored in ${s.toFixed(2)} s (${Math.round(r.observations / s).toLocaleString('en')} rows/s)${s < 10 ? '' : '  ABOVE the 10 s target'}`)
+  await db.delete(projects).where(eq(projects.id, project!.id))
+}
+
+try {
+  await run('CSV 100,000 lines', 'bench.csv', csvText(100_000))
+  await run('LandXML ~10 MB', 'bench.xml', xmlText(10 * 1024 * 1024))
+} finally {
+  clearInterval(sampler)
+  await closeDb()
+  peak = Math.max(peak, process.memoryUsage().rss)
+  console.log(`[bench store] peak RSS ${(peak / 1048576).toFixed(0)} MB (target < 300 MB)`)
+}
