@@ -15,7 +15,15 @@ export default defineNuxtConfig({
     'leaflet/dist/leaflet.css',
     '~/assets/css/main.css',
   ],
-  typescript: { strict: true },
+  // Strict everywhere, but without noUncheckedIndexedAccess: the engine's hot
+  // loops index Float64Arrays by computed offsets, where `!` on every read
+  // would hide real mistakes among thousands of harmless ones.
+  typescript: {
+    strict: true,
+    tsConfig: { compilerOptions: { noUncheckedIndexedAccess: false } },
+    sharedTsConfig: { compilerOptions: { noUncheckedIndexedAccess: false } },
+    nodeTsConfig: { compilerOptions: { noUncheckedIndexedAccess: false } },
+  },
   app: {
     head: {
       title: 'Tiepoint',
@@ -37,6 +45,7 @@ export default defineNuxtConfig({
   },
   tailwindcss: { cssPath: false, viewer: false },
   nitro: {
+    typescript: { tsConfig: { compilerOptions: { noUncheckedIndexedAccess: false } } },
     output: { dir: process.env.NUXT_OUTPUT_DIR || '.output' },
     externals: { external: ['pdfkit', 'pg-boss', 'smtp-server', 'nodemailer', 'mailparser'] },
   },

@@ -11,7 +11,7 @@ export default defineEventHandler(async (event) => {
   const body = await readBody(event).catch(() => ({})) as { email?: string }
   const wait = await throttleState(String(body?.email ?? ''), ip)
   if (wait > 0) {
-    setResponseHeader(event, 'retry-after', String(wait))
+    setResponseHeader(event, 'retry-after', wait)
     setResponseStatus(event, 429)
     return { statusCode: 429, message: `Too many sign-in attempts. Try again in ${Math.ceil(wait / 60)} minutes.` }
   }
