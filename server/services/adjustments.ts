@@ -117,7 +117,7 @@ export async function getRun(ctx: FirmContext, project: Project, number: number)
     number: run.number, status: run.status, attempts: run.attempts, settings: run.settings, inputHash: run.inputHash,
     createdAt: run.createdAt.toISOString(), startedAt: run.startedAt?.toISOString() ?? null, finishedAt: run.finishedAt?.toISOString() ?? null,
     createdBy: by?.name ?? null, errorText: run.errorText, summary: run.summary,
-    project: { units: project.units, angleFormat: project.angleFormat, crs: project.crs, crsDefinition: project.crsDefinition },
+    project: { units: project.units, angleFormat: project.angleFormat, crs: project.crs, crsDefinition: project.crsDefinition, tileUrl: ctx.firm.settings?.tileUrl ?? null },
   }
   if (run.status !== 'done' || !run.result) return { ...base, result: null, stations: [], observations: [], relative: [] }
   const result = run.result as unknown as AdjustmentResult

@@ -1,0 +1,87 @@
+// A party chief adjusts the invented demo network in the browser, finds the
+// planted blunder at the top of the residual table, excludes it with one
+// click, sees the new run pass, the map with ellipses, and the comparison.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Browser, Page } from 'playwright-core'
+import { closeDb } from '../../server/db/client'
+import { launch, newPage, shot, signIn } from '../support/browser'
+import { DEMO } from '../support/http'
+import { BLUNDER, DEMO_CSV, projectWithNetwork } from '../api/adjustments-fixture'
+
+let browser: Browser
+let page: Page
+let base: string
+
+beforeAll(async () => {
+  const fx = await projectWithNetwork(DEMO.firm, 'Kestrel Ford e2e', DEMO_CSV)
+  base = `/f/${DEMO.firm}/projects/${fx.projectId}`
+  browser = await launch()
+  page = await newPage(browser)
+  await signIn(page, DEMO.chief)
+})
+afterAll(async () => {
+  await browser?.close()
+  await closeDb()
+})
+
+describe('runs in the browser', () => {
+  it('starts the demo adjustment and shows the blunder at the top of the residual table', async () => {
+    await page.goto(`${base}/runs`)
+    await page.getByRole('button', { name: 'Start run' }).click()
+    await page.waitForURL(/\/runs\/1$/)
+    await page.getByTestId('verdict').waitFor({ timeout: 60_000 })
+    const verdict = await page.getByTestId('verdict').innerText()
+    expect(verdict).toContain('does not fit')
+    const first = page.locator('[data-testid="residual-table"] tbody tr').first()
+    expect(await first.getAttribute('data-line')).toBe(String(BLUNDER.line))
+    expect(await first.getAttribute('data-rating')).toBe('fail')
+    await page.screenshot({ path: 'tests/screenshots/runs-1-top.png' })
+    await shot(page, 'runs-1-blunder')
+  })
+
+  it('excludes the blunder with one click; the new run passes the global test', async () => {
+    const first = page.locator('[data-testid="residual-table"] tbody tr').first()
+    await first.getByRole('button', { name: /Exclude line/ }).click()
+    await page.waitForURL(/\/runs\/2$/)
+    await page.getByTestId('verdict').waitFor({ timeout: 60_000 })
+    expect(await page.getByTestId('verdict').innerText()).toContain('global test passed')
+    const row = page.locator(`[data-testid="residual-table"] tbody tr[data-line="${BLUNDER.line}"]`).first()
+    expect(await row.getAttribute('data-rating')).toBe('excluded')
+  })
+
+  it('draws the network with exaggerated ellipses on the map', async () => {
+    const map = page.getByTestId('network-map')
+    await map.locator('.leaflet-interactive').first().waitFor({ timeout: 20_000 })
+    // stations (circle markers) + observation lines + ellipses are SVG paths
+    expect(await map.locator('path.leaflet-interactive').count()).toBeGreaterThan(20)
+    expect(await map.locator('path').count()).toBeGreaterThan(await map.locator('path.leaflet-interactive').count())
+    expect(await page.getByTestId('ellipse-scale').innerText()).toMatch(/exaggerated ×[\d,]+/)
+    await map.scrollIntoViewIfNeeded()
+    await map.screenshot({ path: 'tests/screenshots/runs-2-map.png' })
+    await shot(page, 'runs-2-report')
+    // clicking a station on the map highlights its row in the coordinates table
+    await map.locator('path.leaflet-interactive').last().click({ force: true })
+    await page.locator('tr.outline').first().waitFor({ timeout: 5_000 })
+    expect(await page.locator('tr.outline').count()).toBeGreaterThan(0)
+  })
+
+  it('compares the two runs: the shifts and the excluded observation', async () => {
+    await page.goto(`${base}/compare?a=1&b=2`)
+    await page.getByTestId('shift-table').waitFor()
+    const rows = await page.locator('[data-testid="shift-table"] tbody tr').count()
+    expect(rows).toBeGreaterThan(5)
+    expect(await page.getByText(`excluded in run 2: line ${BLUNDER.line}`).count()).toBe(1)
+    expect(await page.getByTestId('sigma0-change').innerText()).toMatch(/→/)
+    await shot(page, 'runs-3-compare')
+  })
+
+  it('the runs list works at 390 px', async () => {
+    const small = await newPage(browser, 390, 800)
+    await signIn(small, DEMO.chief)
+    await small.goto(`${base}/runs`)
+    await small.locator('[data-run="2"]').waitFor()
+    expect(await small.locator('[data-run]').count()).toBe(2)
+    await shot(small, 'runs-4-list-390')
+    await small.context().close()
+  })
+})
