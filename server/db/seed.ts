@@ -10,7 +10,7 @@ import { seedFieldData } from './seed-fielddata'
 import { closeDb, useDb } from './client'
 import type { Db } from './client'
 import {
-  crewMembers, crews, firms, instrumentProfiles, memberships, projectAccess, projectCrews, projects, stations, toleranceProfiles, users,
+  crewMembers, crews, firms, instrumentProfiles, memberships, projectAccess, projectCrews, projects, toleranceProfiles, users,
 } from './schema'
 
 export const DEMO_FIRM = 'larchmere'
@@ -82,7 +82,7 @@ export async function seedFoundation(db: Db) {
   ]).onConflictDoNothing()
 
   const project = await upsertProject(db, demo.id, 'Harrow Creek bridge control',
-    'Invented demo: control network for a new footbridge over Harrow Creek. Two held control points, a levelling loop, direction sets and distances.', people['chief@tiepoint.test']!)
+    'Invented demo: control network for a new footbridge over Harrow Creek. Two held pillars (CP1, CP2), a benchmark (BM1), direction sets, distances and a levelling loop.', people['chief@tiepoint.test']!)
   if (alta && project.toleranceProfileId === null) {
     await db.update(projects).set({ toleranceProfileId: alta.id }).where(eq(projects.id, project.id))
   }
@@ -93,13 +93,6 @@ export async function seedFoundation(db: Db) {
   await db.insert(crewMembers).values({ firmId: demo.id, crewId: north!.id, userId: people['crew@tiepoint.test']! }).onConflictDoNothing()
   await db.insert(projectCrews).values({ firmId: demo.id, projectId: project.id, crewId: north!.id }).onConflictDoNothing()
   await db.insert(projectAccess).values({ firmId: demo.id, projectId: project.id, userId: people['client@tiepoint.test']!, grantedBy: people['chief@tiepoint.test']! }).onConflictDoNothing()
-
-  // A few stations so the project is not empty before any upload (invented local coordinates, metres).
-  await db.insert(stations).values([
-    { firmId: demo.id, projectId: project.id, name: 'HC01', description: 'Brass disc in concrete, east abutment (invented)', kind: 'control', controlEast: 1500, controlNorth: 5500, controlHeight: 52.314 },
-    { firmId: demo.id, projectId: project.id, name: 'HC02', description: 'Brass disc, west abutment (invented)', kind: 'control', controlEast: 1912.418, controlNorth: 5623.907 },
-    { firmId: demo.id, projectId: project.id, name: 'HC10', description: 'Iron pin, north approach (invented)', kind: 'new' },
-  ]).onConflictDoNothing()
 
   return { demo, other, people, project }
 }

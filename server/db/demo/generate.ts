@@ -1,5 +1,5 @@
 // Generates the demo observation files for an invented project: the control
-// network of the "Kestrel Ford footbridge" site, a creek crossing in a local
+// network of the "Harrow Creek footbridge" site, a creek crossing in a local
 // plane system (metres, E 1000–2500, N 5000–6500, heights 40–90 m). Nothing here
 // is real: the stations, the terrain and every measurement are made up.
 //
@@ -124,7 +124,7 @@ export function buildDemo() {
   const push = (row: Array<string | number>) => lines.push(row.join(','))
 
   lines.push(
-    '# Tiepoint demo network: Kestrel Ford footbridge control (invented site and data).',
+    '# Tiepoint demo network: Harrow Creek footbridge control (invented site and data).',
     '# Local plane system, metres. CP1 and CP2 are held fixed; BM1 is the height benchmark.',
     '# One observation in this file is a deliberate blunder. Adjust, read the residuals, and find it.',
     'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note',
@@ -230,12 +230,12 @@ export function buildDemo() {
     .map((n) => byName(n))
     .map((s) => `    <CgPoint name="${s.name}" pntSurv="control">${s.n.toFixed(3)} ${s.e.toFixed(3)}</CgPoint>`)
   const xml = `<?xml version="1.0" encoding="UTF-8"?>
-<!-- Tiepoint demo: Kestrel Ford footbridge control, first ${XML_SETUPS} set-ups (invented site and data). -->
+<!-- Tiepoint demo: Harrow Creek footbridge control, first ${XML_SETUPS} set-ups (invented site and data). -->
 <LandXML xmlns="http://www.landxml.org/schema/LandXML-1.2" version="1.2" date="2026-03-02" time="08:00:00">
   <Units>
     <Metric linearUnit="meter" areaUnit="squareMeter" volumeUnit="cubicMeter" angularUnit="decimal degrees" directionUnit="decimal degrees"/>
   </Units>
-  <Project name="Kestrel Ford footbridge"/>
+  <Project name="Harrow Creek footbridge"/>
   <CgPoints>
 ${control.join('\n')}
   </CgPoints>
