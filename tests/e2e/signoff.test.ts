@@ -1,0 +1,91 @@
+// Browser: a licensed surveyor signs off a finished run, a party chief
+// publishes the release, and the client signs in, finds it on their page and
+// downloads the PDF and CSV, whose bytes match the SHA-256 shown beside them.
+import { createHash } from 'node:crypto'
+import { readFileSync } from 'node:fs'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Browser } from 'playwright-core'
+import { closeDb } from '../../server/db/client'
+import { launch, newPage, shot, signIn } from '../support/browser'
+import { as, DEMO } from '../support/http'
+import { finishedRun } from '../api/signoffs-fixture'
+
+let browser: Browser
+let fx: Awaited<ReturnType<typeof finishedRun>>
+let page: string
+beforeAll(async () => {
+  browser = await launch()
+  const chief = await as(DEMO.chief)
+  fx = await finishedRun(chief, 'Browser sign-off')
+  const granted = await chief.post(`${fx.base}/access`, { email: DEMO.client })
+  expect(granted.status).toBe(201)
+  page = `/f/${DEMO.firm}/projects/${fx.projectId}`
+})
+afterAll(async () => { await browser?.close(); await closeDb() })
+
+describe('sign-off to client download', () => {
+  it('a licensed surveyor reads the check, signs off with the password and sees the SHA-256', async () => {
+    const p = await newPage(browser)
+    await signIn(p, DEMO.surveyor)
+    await p.goto(`${page}/signoff`)
+    await expect.poll(() => p.getByTestId('accuracy-table').count()).toBe(1)
+    expect(await p.getByTestId('caution').innerText()).toContain('local regulations and licensed practice')
+    const checked = await p.locator('[data-testid="signoff-stations"] input[type=checkbox]:checked').count()
+    expect(checked).toBeGreaterThan(0)
+    await p.getByTestId('statement').fill('Reviewed and certified for the footbridge set-out (browser test).')
+    await p.getByTestId('signoff-password').fill('tiepoint-demo')
+    await shot(p, 'signoff-page-before')
+    await p.getByTestId('sign-button').click()
+    await expect.poll(() => p.getByTestId('signed').count(), { timeout: 20_000 }).toBe(1)
+    expect(await p.getByTestId('signed').innerText()).toMatch(/[0-9a-f]{64}/)
+    await expect.poll(() => p.locator('[data-signoff]').count()).toBe(1)
+    await shot(p, 'signoff-page-signed')
+    await p.context().close()
+  })
+
+  it('a party chief publishes the release from the signed list', async () => {
+    const p = await newPage(browser)
+    await signIn(p, DEMO.chief)
+    await p.goto(`${page}/releases`)
+    await p.getByTestId('publish-button').click()
+    await expect.poll(() => p.locator('[data-release]').count(), { timeout: 30_000 }).toBe(1)
+    expect(await p.locator('[data-format]').count()).toBe(3)
+    await shot(p, 'releases-chief')
+    await p.context().close()
+  })
+
+  it('the client finds it on their page and downloads the PDF and CSV, matching the SHA-256 shown', async () => {
+    const p = await newPage(browser)
+    await signIn(p, DEMO.client)
+    await p.goto(`/client?firm=${DEMO.firm}&project=${fx.projectId}`)
+    const section = p.locator(`section[data-project="${fx.projectId}"]`)
+    await expect.poll(() => section.locator('[data-release]').count()).toBe(1)
+    expect(await p.getByText('Harrow Creek bridge control').count()).toBeGreaterThan(0)
+    for (const format of ['pdf', 'csv']) {
+      const row = section.locator(`[data-format="${format}"]`)
+      const shown = (await row.locator('code').innerText()).replace('SHA-256', '').trim()
+      const [download] = await Promise.all([p.waitForEvent('download'), row.getByTestId(`download-${format}`).click()])
+      const bytes = readFileSync((await download.path())!)
+      expect(createHash('sha256').update(bytes).digest('hex')).toBe(shown)
+      if (format === 'pdf') expect(bytes.subarray(0, 5).toString()).toBe('%PDF-')
+      if (format === 'csv') expect(bytes.toString('utf8')).toContain('# CRS: local')
+    }
+    expect(await p.getByText('sha256sum').count()).toBeGreaterThan(0)
+    await shot(p, 'client-releases')
+    // nothing else of the firm: staff pages answer "not found" for a client
+    const res = await p.request.get(`/api/firms/${DEMO.firm}/projects/${fx.projectId}/signoffs`)
+    expect(res.status()).toBe(404)
+    await p.context().close()
+  })
+
+  it('the client page holds up at phone width', async () => {
+    const p = await newPage(browser, 390, 844)
+    await signIn(p, DEMO.client)
+    await p.goto('/client')
+    await expect.poll(() => p.locator('[data-release]').count()).toBeGreaterThan(0)
+    const overflow = await p.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)
+    expect(overflow).toBeLessThanOrEqual(1)
+    await shot(p, 'client-releases-phone')
+    await p.context().close()
+  })
+})
