@@ -34,7 +34,8 @@ function dto(r: Row, usedBySets?: number): InstrumentDto {
 export async function listInstruments(ctx: FirmContext): Promise<InstrumentDto[]> {
   const rows = await useDb().select({
     p: instrumentProfiles,
-    n: sql<number>`(select count(*)::int from ${observationSets} s where s.firm_id = ${instrumentProfiles.firmId} and s.instrument_profile_id = ${instrumentProfiles.id})`,
+    // Qualified by hand: without a join drizzle renders columns unqualified, which the subquery would bind to s.
+    n: sql<number>`(select count(*)::int from ${observationSets} s where s.firm_id = "instrument_profiles"."firm_id" and s.instrument_profile_id = "instrument_profiles"."id")`,
   }).from(instrumentProfiles).where(eq(instrumentProfiles.firmId, ctx.firm.id)).orderBy(asc(instrumentProfiles.name))
   return rows.map((r) => dto(r.p, r.n))
 }

@@ -271,8 +271,8 @@ export async function listObservationSets(ctx: FirmContext, project: Project): P
     sha256: observationSets.sha256, uploadedAt: observationSets.uploadedAt, parseReport: observationSets.parseReport,
     crewId: crews.id, crewName: crews.name, profileId: instrumentProfiles.id, profileName: instrumentProfiles.name,
     userId: users.id, userName: users.name,
-    n: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = ${observationSets.firmId} and o.set_id = ${observationSets.id})`,
-    nx: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = ${observationSets.firmId} and o.set_id = ${observationSets.id} and o.excluded)`,
+    n: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = "observation_sets"."firm_id" and o.set_id = "observation_sets"."id")`,
+    nx: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = "observation_sets"."firm_id" and o.set_id = "observation_sets"."id" and o.excluded)`,
   }).from(observationSets)
     .leftJoin(crews, and(eq(crews.id, observationSets.crewId), eq(crews.firmId, ctx.firm.id)))
     .leftJoin(instrumentProfiles, and(eq(instrumentProfiles.id, observationSets.instrumentProfileId), eq(instrumentProfiles.firmId, ctx.firm.id)))

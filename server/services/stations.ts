@@ -61,8 +61,9 @@ export function stationDto(s: Station, observationCount?: number): StationDto {
 export async function listStations(ctx: FirmContext, project: Project): Promise<StationDto[]> {
   const rows = await useDb().select({
     station: stations,
-    n: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = ${stations.firmId} and o.project_id = ${stations.projectId}
-      and (o.at = ${stations.name} or o.to = ${stations.name} or o."from" = ${stations.name}))`,
+    // Qualified by hand: without a join drizzle renders ${stations.x} unqualified, which the subquery would bind to o.
+    n: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = "stations"."firm_id" and o.project_id = "stations"."project_id"
+      and (o.at = "stations"."name" or o.to = "stations"."name" or o."from" = "stations"."name"))`,
   }).from(stations)
     .where(and(eq(stations.firmId, ctx.firm.id), eq(stations.projectId, project.id)))
     .orderBy(asc(stations.name))

@@ -55,6 +55,9 @@ describe('upload', () => {
     expect(cp1.kind).toBe('control')
     expect(cp1.controlEast).toBe(1163.455) // first control line of the file: "1163.455 5112.797"
     expect(cp1.controlNorth).toBe(5112.797)
+    // counted within this project only (the seed holds the same file in another project)
+    const cp1Uses = rows.filter((row) => { const f = row.split(','); return f[0] !== 'control' && (f[1] === 'CP1' || f[2] === 'CP1' || f[3] === 'CP1') }).length
+    expect(cp1.observationCount).toBe(cp1Uses)
     // the upload is audited with who and what
     const audit = await auditRows('observation_set', r.body.id)
     expect(audit.map((a) => a.action)).toContain('observation_set.upload')
