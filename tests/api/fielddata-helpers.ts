@@ -11,7 +11,7 @@ export const sha256 = (b: Buffer | string) => createHash('sha256').update(b).dig
 
 export function fileForm(name: string, content: Buffer | string, fields: Record<string, string> = {}): FormData {
   const form = new FormData()
-  form.append('file', new Blob([typeof content === 'string' ? Buffer.from(content, 'utf8') : content]), name)
+  form.append('file', new Blob([new Uint8Array(typeof content === 'string' ? Buffer.from(content, 'utf8') : content)]), name)
   for (const [k, v] of Object.entries(fields)) form.append(k, v)
   return form
 }
