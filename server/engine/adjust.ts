@@ -813,9 +813,17 @@ function buildPlaneProblem(
   const order = cuthillMcKee(nS, rows.flatMap(({ def }) => (def.type === 'coord' ? [] : def.type === 'angle' ? [[def.at, def.to], [def.at, def.from]] : [[def.at, def.to]])))
   const stationCols = names.map(() => Int32Array.from([-1, -1]))
   const labels: string[] = []
-  for (let s = 0; s < nSets; s++) labels.push(`orientation of direction set ${setLabel[s] ? `'${setLabel[s]}' ` : ''}at station ${setStation[s]}`)
-  let u = nSets
+  // each set's orientation sits just before its station's coordinates: keeps R banded
+  const setCol = new Int32Array(nSets)
+  const setsAt = names.map(() => [] as number[])
+  const nameIdx = new Map(names.map((s, k) => [s, k]))
+  for (let s = 0; s < nSets; s++) setsAt[nameIdx.get(setStation[s])!].push(s)
+  let u = 0
   for (const k of order) {
+    for (const s of setsAt[k]) {
+      setCol[s] = u++
+      labels.push(`orientation of direction set ${setLabel[s] ? `'${setLabel[s]}' ` : ''}at station ${setStation[s]}`)
+    }
     const c = control[k]
     if (free || !c || c.sdEast !== null) {
       stationCols[k][0] = u++
@@ -829,8 +837,8 @@ function buildPlaneProblem(
   const x0 = new Float64Array(u)
   const tolerance = new Float64Array(u)
   for (let s = 0; s < nSets; s++) {
-    x0[s] = orientation[s]
-    tolerance[s] = TOL_ANGLE
+    x0[setCol[s]] = orientation[s]
+    tolerance[setCol[s]] = TOL_ANGLE
   }
   for (let k = 0; k < nS; k++) {
     const [ce, cn] = stationCols[k]
@@ -873,8 +881,8 @@ function buildPlaneProblem(
       switch (def.type) {
         case 'direction': {
           const az = dirTerms(def.at, def.to, 1)
-          add(def.set, -1)
-          computed = az - x[def.set]
+          add(setCol[def.set], -1)
+          computed = az - x[setCol[def.set]]
           misclosure = wrapPi(def.value - computed)
           break
         }
@@ -938,7 +946,7 @@ function buildPlaneProblem(
           g[3][in_] = n
           weights[ie] = weights[in_] = 1
         }
-        for (let s = 0; s < nSets; s++) g[2][s] = 1
+        for (let s = 0; s < nSets; s++) g[2][setCol[s]] = 1
         return { g, weights }
       }
     : undefined

@@ -9,7 +9,7 @@
 // S-transformations and criterion matrices, Netherlands Geodetic Commission,
 // Publications on Geodesy 5(1): x_S = (I − G(BᵀG)⁻¹Bᵀ)·x, Qxx_S = S·Qxx·Sᵀ.
 
-import { cofactor, factorize, inverseR, solve, type QrFactorization } from './qr'
+import { cofactor, compressRows, factorize, inverseR, solve, type QrFactorization } from './qr'
 
 /** One linearized observation: a·dx ≈ l, unwhitened (metres / radians). */
 export interface LinearRow {
@@ -66,23 +66,19 @@ export function solveNonlinear(problem: NonlinearProblem, maxIterations: number)
     const rows = problem.linearize(x)
     // rows sorted by their first unknown keep each reflector's rows close together
     if (!order) order = rowOrder(rows)
-    const m = rows.length
-    const a = new Float64Array(m * u)
-    const l = new Float64Array(m)
-    for (let t = 0; t < m; t++) {
-      const row = rows[order[t]]
-      const w = 1 / row.sigma
-      for (let c = 0; c < row.cols.length; c++) a[row.cols[c] * m + t] += row.coef[c] * w
-      l[t] = row.misclosure * w
-    }
-    const columnNorms = new Float64Array(u)
-    for (let j = 0; j < u; j++) {
-      let s = 0
-      for (let i = 0; i < m; i++) s += a[j * m + i] * a[j * m + i]
-      columnNorms[j] = Math.sqrt(s)
-    }
     const t0 = performance.now()
-    const f = factorize(a, m, u, l)
+    const columnNorms = new Float64Array(u)
+    const whitened = Array.from(order, (idx) => {
+      const row = rows[idx]
+      const w = 1 / row.sigma
+      const values = row.coef.map((c) => c * w)
+      for (let c = 0; c < values.length; c++) columnNorms[row.cols[c]] += values[c] * values[c]
+      return { cols: row.cols, values, rhs: row.misclosure * w }
+    })
+    for (let j = 0; j < u; j++) columnNorms[j] = Math.sqrt(columnNorms[j])
+    // tall sparse system → square R₀ by row reflections, then pivoted Householder QR on R₀
+    const compressed = compressRows(whitened, u)
+    const f = factorize(compressed.r0, u, u, compressed.qtb)
     timings.factorizationMs += performance.now() - t0
 
     let datum: Datum | null = null
@@ -127,7 +123,11 @@ export function solveNonlinear(problem: NonlinearProblem, maxIterations: number)
 }
 
 function rowOrder(rows: LinearRow[]): Int32Array {
-  const first = rows.map((r) => (r.cols.length ? Math.min(...r.cols) : Infinity))
+  const first = rows.map((r) => {
+    let f = Infinity
+    for (const c of r.cols) if (c < f) f = c
+    return f
+  })
   const idx = Array.from(rows.keys())
   idx.sort((p, q) => first[p] - first[q] || p - q)
   return Int32Array.from(idx)

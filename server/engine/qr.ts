@@ -92,19 +92,31 @@ export function factorize(
   let rank = 0
   const steps = Math.min(m, n)
   for (let k = 0; k < steps; k++) {
-    // choose the pivot
+    // choose the pivot: classical largest norm when threshold ≥ 1; otherwise the
+    // earliest column (caller's order) whose remaining norm relative to its initial
+    // norm is within the threshold of the best, which is scale-invariant and keeps fill low
+    let maxRel = 0
     let maxNorm = 0
+    let argMax = -1
     for (let j = k; j < n; j++) {
-      if (vn1[j] > rankTol * norm0[j] && vn1[j] > maxNorm) maxNorm = vn1[j]
+      if (!(vn1[j] > rankTol * norm0[j])) continue
+      const rel = vn1[j] / norm0[j]
+      if (rel > maxRel) maxRel = rel
+      if (vn1[j] > maxNorm) {
+        maxNorm = vn1[j]
+        argMax = j
+      }
     }
-    if (maxNorm === 0) break
-    let p = -1
-    let best = n
-    const limit = threshold * maxNorm
-    for (let j = k; j < n; j++) {
-      if (vn1[j] > rankTol * norm0[j] && vn1[j] >= limit && perm[j] < best) {
-        best = perm[j]
-        p = j
+    if (argMax < 0) break
+    let p = argMax
+    if (threshold < 1) {
+      let best = n
+      const limit = threshold * maxRel
+      for (let j = k; j < n; j++) {
+        if (vn1[j] > rankTol * norm0[j] && vn1[j] >= limit * norm0[j] && perm[j] < best) {
+          best = perm[j]
+          p = j
+        }
       }
     }
     if (p !== k) swapColumns(a, m, k, p, perm, vn1, vn2, norm0, lo, hi)
@@ -324,4 +336,82 @@ export function cofactor(f: QrFactorization, rInv: Float64Array = inverseR(f)): 
     }
   }
   return q
+}
+
+/**
+ * Row-by-row orthogonal compression of a tall sparse whitened system to a square
+ * upper-triangular R₀ (n×n, column-major) and Qᵀ·rhs (first n entries), with the
+ * squared norm of the annihilated part of the right-hand side. Each incoming row
+ * is reduced against the rows of R₀ with 2-element Householder reflections
+ * (George, A. & Heath, M.T. (1980) Solution of sparse linear least squares
+ * problems using Givens rotations, Linear Algebra and its Applications 34, 69–83);
+ * a row reaching an empty slot of R₀ is stored there. Rows sorted by their first
+ * unknown keep the work near O(m·b²) for bandwidth b. The pivoted factorize() on
+ * R₀ then does the rank detection: A = Q₁[R₀; 0] and R₀·Π = Q₂R give A·Π = Q₁Q₂R.
+ */
+export function compressRows(
+  rows: { cols: ArrayLike<number>; values: ArrayLike<number>; rhs: number }[],
+  n: number,
+): { r0: Float64Array; qtb: Float64Array; residualSq: number } {
+  const r = new Float64Array(n * n) // row-major while building: row operations are contiguous
+  const filled = new Uint8Array(n)
+  const rowLast = new Int32Array(n).fill(-1)
+  const qtb = new Float64Array(n)
+  const x = new Float64Array(n)
+  let residualSq = 0
+  for (const row of rows) {
+    let first = n
+    let last = -1
+    for (let t = 0; t < row.cols.length; t++) {
+      const c = row.cols[t]
+      x[c] += row.values[t]
+      if (c < first) first = c
+      if (c > last) last = c
+    }
+    let b = row.rhs
+    let placed = false
+    for (let k = first; k <= last; k++) {
+      const xk = x[k]
+      if (xk === 0) continue
+      const base = k * n
+      if (!filled[k]) {
+        for (let j = k; j <= last; j++) {
+          r[base + j] = x[j]
+          x[j] = 0
+        }
+        filled[k] = 1
+        rowLast[k] = last
+        qtb[k] = b
+        placed = true
+        break
+      }
+      // reflection of the pair (R_kk, x_k) onto (ρ, 0)
+      const rk = r[base + k]
+      const rho = Math.hypot(rk, xk)
+      const c = rk / rho
+      const s = xk / rho
+      const end = Math.max(last, rowLast[k])
+      for (let j = k; j <= end; j++) {
+        const rj = r[base + j]
+        const xj = x[j]
+        r[base + j] = c * rj + s * xj
+        x[j] = s * rj - c * xj
+      }
+      x[k] = 0
+      const qk = qtb[k]
+      qtb[k] = c * qk + s * b
+      b = s * qk - c * b
+      rowLast[k] = end
+      last = end
+    }
+    if (!placed) residualSq += b * b
+    for (let j = first; j <= last; j++) x[j] = 0
+  }
+  // column-major copy for the pivoted factorization
+  const r0 = new Float64Array(n * n)
+  for (let i = 0; i < n; i++) {
+    const e = rowLast[i]
+    for (let j = i; j <= e; j++) r0[j * n + i] = r[i * n + j]
+  }
+  return { r0, qtb, residualSq }
 }
