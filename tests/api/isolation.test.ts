@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
 import type { Db } from '../../server/db/client'
-import { firms, invitations, memberships, projects } from '../../server/db/schema'
+import { firms, instrumentProfiles, invitations, memberships, projects } from '../../server/db/schema'
 import { as, Client, DEMO } from '../support/http'
 
 afterAll(() => closeDb())
@@ -32,11 +32,25 @@ export const ROUTES: RouteRow[] = [
   { method: 'POST', path: '/api/firms/:firm/invitations', body: { email: 'isolation-probe@tiepoint.test', role: 'client' } },
   { method: 'DELETE', path: '/api/firms/:firm/invitations/:invitation' },
   { method: 'GET', path: '/api/firms/:firm/mailbox' },
+  { method: 'GET', path: '/api/firms/:firm/audit' },
+  { method: 'GET', path: '/api/firms/:firm/crews' },
+  { method: 'GET', path: '/api/firms/:firm/instruments' },
+  { method: 'DELETE', path: '/api/firms/:firm/instruments/:instrument' },
+  { method: 'GET', path: '/api/firms/:firm/tolerance-profiles' },
+  { method: 'GET', path: '/api/firms/:firm/projects/:project/access' },
+  { method: 'GET', path: '/api/firms/:firm/projects/:project/adjustments' },
+  { method: 'GET', path: '/api/firms/:firm/projects/:project/crews' },
+  { method: 'GET', path: '/api/firms/:firm/projects/:project/observation-sets' },
+  { method: 'GET', path: '/api/firms/:firm/projects/:project/observations' },
+  { method: 'GET', path: '/api/firms/:firm/projects/:project/releases' },
+  { method: 'GET', path: '/api/firms/:firm/projects/:project/signoffs' },
+  { method: 'GET', path: '/api/firms/:firm/projects/:project/stations' },
 ]
 
 /** For each :param, an id belonging to the other firm (kestrel). */
 export const FOREIGN_IDS: Record<string, (db: Db, firmId: number) => Promise<number>> = {
   project: async (db, firmId) => (await db.select({ id: projects.id }).from(projects).where(eq(projects.firmId, firmId)).limit(1))[0]!.id,
+  instrument: async (db, firmId) => (await db.select({ id: instrumentProfiles.id }).from(instrumentProfiles).where(eq(instrumentProfiles.firmId, firmId)).limit(1))[0]!.id,
   member: async (db, firmId) => (await db.select({ id: memberships.id }).from(memberships).where(eq(memberships.firmId, firmId)).limit(1))[0]!.id,
   invitation: async (db, firmId) => {
     const [existing] = await db.select({ id: invitations.id }).from(invitations).where(eq(invitations.firmId, firmId)).limit(1)
@@ -73,6 +87,7 @@ async function snapshot() {
     projects: await db.select().from(projects).where(eq(projects.firmId, kestrel!.id)).orderBy(projects.id),
     members: await db.select().from(memberships).where(eq(memberships.firmId, kestrel!.id)).orderBy(memberships.id),
     invitations: await db.select().from(invitations).where(eq(invitations.firmId, kestrel!.id)).orderBy(invitations.id),
+    instruments: await db.select().from(instrumentProfiles).where(eq(instrumentProfiles.firmId, kestrel!.id)).orderBy(instrumentProfiles.id),
   })
 }
 
