@@ -71,12 +71,13 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
 
   if (coords.size === 0 && input.seedIfEmpty) seed(input, coords, orientation)
 
+  const byStation = indexByStation(input)
   let allowAmbiguous = false
   for (let guard = 0; guard < 10 * input.stations.length + 10; guard++) {
     let progress = orientSets(input, coords, orientation)
     for (const st of input.stations) {
       if (coords.has(st)) continue
-      const p = place(st, input, coords, orientation, allowAmbiguous)
+      const p = place(st, byStation.get(st) ?? EMPTY, coords, orientation, allowAmbiguous)
       if (p) {
         coords.set(st, p)
         progress = true
@@ -176,9 +177,30 @@ function orientSets(input: PlaneApproxInput, coords: Map<string, XY>, orientatio
   return progress
 }
 
+type StationObs = Pick<PlaneApproxInput, 'directions' | 'angles' | 'distances' | 'azimuths'>
+const EMPTY: StationObs = { directions: [], angles: [], distances: [], azimuths: [] }
+
+/** Observations that involve each station (for the directions: as target or as set station). */
+function indexByStation(input: PlaneApproxInput): Map<string, StationObs> {
+  const m = new Map<string, StationObs>()
+  const get = (s: string) => {
+    let e = m.get(s)
+    if (!e) m.set(s, (e = { directions: [], angles: [], distances: [], azimuths: [] }))
+    return e
+  }
+  for (const d of input.directions) {
+    get(d.to).directions.push(d)
+    if (d.at !== d.to) get(d.at).directions.push(d)
+  }
+  for (const g of input.angles) for (const s of new Set([g.at, g.from, g.to])) get(s).angles.push(g)
+  for (const d of input.distances) for (const s of new Set([d.at, d.to])) get(s).distances.push(d)
+  for (const z of input.azimuths) for (const s of new Set([z.at, z.to])) get(s).azimuths.push(z)
+  return m
+}
+
 function place(
   st: string,
-  input: PlaneApproxInput,
+  input: StationObs,
   coords: Map<string, XY>,
   orientation: Float64Array,
   allowAmbiguous: boolean,
