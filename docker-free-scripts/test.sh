@@ -19,7 +19,7 @@ ensure_chromium
 ensure_auth_secret
 PG_EXTRA_OPTS="-c fsync=off -c synchronous_commit=off" pg_up pg-test "$PGPORT"
 OWN_PG_STOP="${TIEPOINT_KEEP_TEST_DB:-}"
-cleanup() { [ -z "$OWN_PG_STOP" ] && pg_down pg-test; }
+cleanup() { [ -n "$OWN_PG_STOP" ] || pg_down pg-test; }
 trap cleanup EXIT
 pg_database "$PGPORT" "${TIEPOINT_TEST_DB:-tiepoint_test}" fresh
 migrate

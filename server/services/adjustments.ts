@@ -14,6 +14,7 @@ import { ApiError, notFound } from '../utils/api'
 import type { FirmContext } from '../utils/guard'
 import { checkRelative, describeTolerance, semiMajorAt95, type ToleranceSpec } from './accuracy'
 import { audit } from './audit'
+import { notifyRunFailed } from './notifications'
 import { loadRunInputs, RunInputError } from './run-inputs'
 import { ADJUST_QUEUE, sendAdjustJob, type AdjustJob } from './run-queue'
 
@@ -250,8 +251,19 @@ export async function processRun(job: AdjustJob, attempt: { final: boolean } = {
 }
 
 async function finishFailed(run: Adjustment, message: string, summary?: Record<string, unknown>) {
-  await useDb().update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: message, ...(summary ? { summary } : {}) })
+  const changed = await useDb().update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: message, ...(summary ? { summary } : {}) })
     .where(and(eq(adjustments.firmId, run.firmId), eq(adjustments.id, run.id), sql`${adjustments.status} in ('queued', 'running')`))
+    .returning({ id: adjustments.id })
+  if (changed.length) await tellRunFailed(run.id)
+}
+
+/** The e-mail is a courtesy: a mail server that is down must not change the run's outcome. */
+async function tellRunFailed(runId: number) {
+  try {
+    await notifyRunFailed(runId)
+  } catch (e) {
+    console.error(`[tiepoint] could not send the run-failed e-mail for run ${runId}:`, (e as Error).message)
+  }
 }
 
 async function computeAndStore(run: Adjustment): Promise<ProcessOutcome> {
@@ -365,6 +377,7 @@ export async function sweepStuckRuns(failJob: (queue: string, jobId: string) => 
         } else {
           await db.update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: 'The worker computing this run stopped and no retry is left; start the run again' }).where(where)
           failed++
+          await tellRunFailed(s.id)
         }
       } finally {
         await unlock(client, s.id)

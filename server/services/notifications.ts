@@ -95,12 +95,11 @@ export async function notifyRunFailed(runId: number): Promise<number> {
   if (!run) return 0
   const pf = await projectAndFirm(run.firmId, run.projectId)
   if (!pf) return 0
-  const chiefs = await firmPeople(run.firmId, ['owner', 'party_chief'])
-  const recipients = chiefs.map((c) => c.email)
-  if (run.createdBy) {
-    const [creator] = await db.select({ email: users.email }).from(users).where(eq(users.id, run.createdBy)).limit(1)
-    if (creator) recipients.unshift(creator.email)
-  }
+  // The person who started the run is told; a run without a known starter goes to the party chiefs.
+  const [creator] = run.createdBy
+    ? await db.select({ email: users.email }).from(users).where(eq(users.id, run.createdBy)).limit(1)
+    : []
+  const recipients = creator ? [creator.email] : (await firmPeople(run.firmId, ['owner', 'party_chief'])).map((c) => c.email)
   return deliver(recipients, {
     subject: `Run ${run.number} of ${pf.project.name} did not finish`,
     paragraphs: [

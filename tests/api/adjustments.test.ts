@@ -4,7 +4,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
-import { adjustedStations, adjustments, observations, projects, toleranceProfiles } from '../../server/db/schema'
+import { adjustedStations, adjustments, mailboxMessages, observations, projects, toleranceProfiles } from '../../server/db/schema'
 import { adjustNetwork } from '../../server/engine/index'
 import { as, DEMO, type Client } from '../support/http'
 import { BLUNDER, DEMO_CSV, projectWithNetwork, readCsv, waitForRun } from './adjustments-fixture'
@@ -179,6 +179,17 @@ describe('an unsolvable network', () => {
     expect(run.status).toBe('failed')
     if (!expected.ok) expect(run.errorText).toBe(expected.reason)
     expect(run.result).toBeNull()
+  })
+
+  it('e-mails the person who started the failed run, with the reason', async () => {
+    const subject = 'did not finish'
+    let mails: { to: string; subject: string; text: string }[] = []
+    for (let i = 0; i < 40 && !mails.length; i++) {
+      mails = (await useDb().select().from(mailboxMessages)).filter((m) => m.subject.includes('Unsolvable') && m.subject.includes(subject))
+      if (!mails.length) await new Promise((r) => setTimeout(r, 250))
+    }
+    expect(mails.map((m) => m.to)).toEqual([DEMO.chief])
+    expect(mails[0]!.text).toContain('Reason:')
   })
 })
 
