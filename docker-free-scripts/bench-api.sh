@@ -1,6 +1,8 @@
 #!/usr/bin/env bash
-# The API benchmark (tests/bench/api.ts): its own fresh database on the test
-# cluster, the built app and a worker, like test.sh. Figures only.
+# The benchmarks that need PostgreSQL: storing uploads (tests/bench/store.ts)
+# and a run through the API and the queue (tests/bench/api.ts). Its own fresh
+# database on the test cluster, the built app and a worker, like test.sh.
+# Figures only.
 source "$(dirname "$0")/lib.sh"
 cd "$ROOT"
 PGPORT="${TIEPOINT_TEST_PG_PORT:-54339}"
@@ -8,11 +10,11 @@ export TIEPOINT_TEST_APP_PORT="${TIEPOINT_BENCH_APP_PORT:-${TIEPOINT_TEST_APP_PO
 export TIEPOINT_TEST_SMTP_PORT="${TIEPOINT_TEST_SMTP_PORT:-$((TIEPOINT_TEST_APP_PORT + 1000))}"
 export AUTH_ORIGIN="http://127.0.0.1:$TIEPOINT_TEST_APP_PORT/api/auth"
 export NUXT_OUTPUT_DIR="${NUXT_OUTPUT_DIR:-.output}"
-export NODE_ENV=production
 ensure_node_modules
 ensure_auth_secret
 PG_EXTRA_OPTS="-c fsync=off -c synchronous_commit=off" pg_up pg-test "$PGPORT"
 pg_database "$PGPORT" "${TIEPOINT_BENCH_DB:-tiepoint_bench}" fresh
 migrate
 ensure_build
+node --import tsx tests/bench/store.ts
 node --import tsx tests/bench/api.ts

@@ -6,6 +6,5 @@ ensure_node_modules
 for b in tests/bench/engine.ts tests/bench/import.ts; do
   [ -f "$b" ] && { log "bench: $b"; node --expose-gc --import tsx "$b"; }
 done
-if [ -f tests/bench/api.ts ]; then
-  log "bench: tests/bench/api.ts"; bash docker-free-scripts/bench-api.sh
-fi
+log "bench: storing uploads and a run through the queue (tests/bench/store.ts, tests/bench/api.ts)"
+bash docker-free-scripts/bench-api.sh

@@ -12,7 +12,6 @@ export TIEPOINT_TEST_APP_PORT="${TIEPOINT_TEST_APP_PORT:-3939}"
 export TIEPOINT_TEST_SMTP_PORT="${TIEPOINT_TEST_SMTP_PORT:-$((TIEPOINT_TEST_APP_PORT + 1000))}"
 export AUTH_ORIGIN="http://127.0.0.1:$TIEPOINT_TEST_APP_PORT/api/auth"
 export NUXT_OUTPUT_DIR="${NUXT_OUTPUT_DIR:-.output}"
-export NODE_ENV=production
 
 ensure_node_modules
 ensure_chromium

@@ -48,9 +48,11 @@ export async function listProjects(ctx: FirmContext): Promise<ProjectDto[]> {
     : eq(projects.firmId, ctx.firm.id)
   const rows = await db.select({
     project: projects,
-    stations: sql<number>`(select count(*)::int from ${stations} s where s.firm_id = ${projects.firmId} and s.project_id = ${projects.id})`,
-    observations: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = ${projects.firmId} and o.project_id = ${projects.id})`,
-    runs: sql<number>`(select count(*)::int from ${adjustments} a where a.firm_id = ${projects.firmId} and a.project_id = ${projects.id})`,
+    // The outer columns are written out in full: in a single-table query Drizzle
+    // renders ${projects.id} unqualified, which would bind to the subquery's table.
+    stations: sql<number>`(select count(*)::int from ${stations} s where s.firm_id = "projects"."firm_id" and s.project_id = "projects"."id")`,
+    observations: sql<number>`(select count(*)::int from ${observations} o where o.firm_id = "projects"."firm_id" and o.project_id = "projects"."id")`,
+    runs: sql<number>`(select count(*)::int from ${adjustments} a where a.firm_id = "projects"."firm_id" and a.project_id = "projects"."id")`,
   }).from(projects).where(where).orderBy(desc(projects.updatedAt))
   return rows.map((r) => ({ ...projectDto(r.project), counts: { stations: r.stations, observations: r.observations, runs: r.runs } }))
 }

@@ -54,6 +54,16 @@ describe('projects', () => {
     expect(shared.body.map((p: { name: string }) => p.name)).toEqual(['Harrow Creek bridge control'])
   })
 
+  it('counts in the project list belong to each project, not to the whole firm (regression)', async () => {
+    const chief = await as(DEMO.chief)
+    const fresh = await chief.post(base, { name: 'Empty counts check', crs: 'local', units: 'm' })
+    const list = await chief.get(base)
+    const row = list.body.find((p: { id: number }) => p.id === fresh.body.id)
+    expect(row.counts).toEqual({ stations: 0, observations: 0, runs: 0 })
+    const demo = list.body.find((p: { name: string }) => p.name === 'Harrow Creek bridge control')
+    expect(demo.counts.observations).toBeGreaterThan(0)
+  })
+
   it('field crew may not create projects (403); a client gets 404', async () => {
     const crew = await as(DEMO.crew)
     expect((await crew.post(base, { name: 'x', crs: 'local', units: 'm' })).status).toBe(403)

@@ -28,6 +28,7 @@ export async function setup() {
   await closeDb()
   const env = {
     ...process.env,
+    NODE_ENV: 'production',
     PORT: String(appPort),
     NITRO_PORT: String(appPort),
     HOST: '127.0.0.1',
