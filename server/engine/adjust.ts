@@ -14,6 +14,7 @@
 // Trigonometric heights use the combined curvature and refraction term
 // (1 − k)·D²/(2R) with k = 0.13, R = 6 371 km (common practice).
 
+import { BLOCK as COFACTOR_BLOCK } from './cofactor'
 import { approximateHeights, approximatePlane, type XY } from './approx'
 import { azimuth, ellipseFromCovariance, RAD_TO_DEG, RHO_ARCSEC, wrapPi } from './geometry'
 import { solveNonlinear, type LinearRow, type NonlinearProblem } from './lsq'
@@ -493,12 +494,13 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
     const isCoordCol = new Uint8Array(u)
     for (const c of stationCols) for (const j of c) if (j >= 0) isCoordCol[j] = 1
 
+    const pending: { out: ObservationResult; cols: number[]; ac: number[]; k: number }[] = []
     rows.forEach((row, i) => {
       const out = outputs[rowOut[i]]
       const sc = rowScale[i]
       const ac = row.coef.map((c) => c / row.sigma)
       let qa = 0
-      for (let p = 0; p < ac.length; p++) for (let q = 0; q < ac.length; q++) qa += ac[p] * qxx[row.cols[q] * u + row.cols[p]] * ac[q]
+      for (let p = 0; p < ac.length; p++) for (let q = 0; q < ac.length; q++) qa += ac[p] * qxx.get(row.cols[p], row.cols[q]) * ac[q]
       const ri = Math.min(Math.max(1 - qa, 0), 1)
       const v = -row.misclosure
       out.residual = v * sc
@@ -518,28 +520,61 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
         }
         const mdb = (row.sigma * d0) / Math.sqrt(ri)
         out.mdb = mdb * Math.abs(sc)
-        // Δx = Qxx·ãᵀ·(MDB/σ): the coordinate shift an undetected error of MDB size causes
-        const k = mdb / row.sigma
+        pending.push({ out, cols: row.cols, ac, k: mdb / row.sigma })
+      }
+    })
+
+    // Δx = Qxx·ãᵀ·(MDB/σ): the coordinate shift an undetected error of MDB size
+    // causes. It needs whole columns of Qxx; observations are taken in the order
+    // of their last unknown in R, so only a band of columns is held at a time.
+    if (pending.length) {
+      const ready = pending.map((p) => Math.max(...p.cols.map((c) => qxx.position(c))))
+      const order = Array.from(pending.keys()).sort((a, b) => ready[a] - ready[b] || a - b)
+      const lastIdx = new Int32Array(u).fill(-1)
+      order.forEach((pi, t) => {
+        for (const c of pending[pi].cols) lastIdx[c] = t
+      })
+      // columns in order of first need; a missing one is solved for together with
+      // the next few (one pass over R serves the whole block)
+      const need: number[] = []
+      const seenCol = new Uint8Array(u)
+      for (const pi of order) for (const c of pending[pi].cols) if (!seenCol[c]) {
+        seenCol[c] = 1
+        need.push(c)
+      }
+      let next = 0
+      const cache = new Map<number, Float64Array>()
+      order.forEach((pi, t) => {
+        const { out, cols, ac, k } = pending[pi]
+        for (const c of cols) {
+          if (cache.has(c)) continue
+          while (need[next] !== c) next++
+          const block = need.slice(next, next + COFACTOR_BLOCK)
+          qxx.columns(block).forEach((q, b) => cache.set(block[b], q))
+          next += block.length
+        }
+        const colQ = cols.map((c) => cache.get(c)!)
         let worst = 0
-        for (const cols of stationCols) {
+        for (const sc of stationCols) {
           let s2 = 0
-          for (const j of cols) {
+          for (const j of sc) {
             if (j < 0) continue
             let dxj = 0
-            for (let p = 0; p < ac.length; p++) dxj += qxx[row.cols[p] * u + j] * ac[p]
+            for (let p = 0; p < ac.length; p++) dxj += colQ[p][j] * ac[p]
             s2 += (dxj * k) ** 2
           }
           if (s2 > worst) worst = s2
         }
         out.mdbEffect = Math.sqrt(worst)
-      }
-    })
+        for (const c of cols) if (lastIdx[c] === t) cache.delete(c)
+      })
+    }
 
     const scale95 = ellipseScale(settings.confidence, estimated, r)
     names.forEach((name, k) => {
       const cols = stationCols[k]
       const st = stationOut.get(name)!
-      const q = (a: number, b: number) => (a >= 0 && b >= 0 ? qxx[b * u + a] * varFactor : 0)
+      const q = (a: number, b: number) => (a >= 0 && b >= 0 ? qxx.get(a, b) * varFactor : 0)
       if (kind === 'plane') {
         const [ce, cn] = cols
         st.east = ce >= 0 ? x[ce] : pControl[k]!.east
@@ -572,7 +607,7 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
           const [ae, an] = stationCols[a]
           const [be, bn] = stationCols[b]
           if (ae < 0 && an < 0 && be < 0 && bn < 0) continue
-          const q = (i: number, j: number) => (i >= 0 && j >= 0 ? qxx[j * u + i] : 0)
+          const q = (i: number, j: number) => (i >= 0 && j >= 0 ? qxx.get(i, j) : 0)
           const qee = q(be, be) + q(ae, ae) - 2 * q(ae, be)
           const qnn = q(bn, bn) + q(an, an) - 2 * q(an, bn)
           const qen = q(be, bn) + q(ae, an) - q(ae, bn) - q(be, an)
@@ -951,8 +986,20 @@ function buildPlaneProblem(
       }
     : undefined
 
+  // the statistics read each station's block and the blocks between connected stations
+  const cofactorGroups = () => {
+    const own = (k: number) => [...stationCols[k]].filter((c) => c >= 0)
+    const groups = names.map((_, k) => own(k))
+    for (const { def } of rows) {
+      if (def.type === 'coord') continue
+      groups.push([...own(def.at), ...own(def.to)])
+      if (def.type === 'angle') groups.push([...own(def.at), ...own(def.from)])
+    }
+    return groups
+  }
+
   return {
-    problem: { u, labels, tolerance, x0, linearize, nullSpace } satisfies NonlinearProblem,
+    problem: { u, labels, tolerance, x0, linearize, nullSpace, cofactorGroups } satisfies NonlinearProblem,
     rowOut: rows.map((r) => r.def.out),
     rowScale: rows.map((r) => r.outScale),
     stationCols,

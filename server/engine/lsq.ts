@@ -9,7 +9,8 @@
 // S-transformations and criterion matrices, Netherlands Geodetic Commission,
 // Publications on Geodesy 5(1): x_S = (I − G(BᵀG)⁻¹Bᵀ)·x, Qxx_S = S·Qxx·Sᵀ.
 
-import { cofactor, compressRows, factorize, inverseR, solve, type QrFactorization } from './qr'
+import { Cofactor } from './cofactor'
+import { compressRows, factorize, solve, type QrFactorization } from './qr'
 
 /** One linearized observation: a·dx ≈ l, unwhitened (metres / radians). */
 export interface LinearRow {
@@ -31,6 +32,8 @@ export interface NonlinearProblem {
   linearize(x: Float64Array): LinearRow[]
   /** free datum: candidate null-space vectors at x and the datum weights (1 = takes part) */
   nullSpace?(x: Float64Array): { g: Float64Array[]; weights: Float64Array }
+  /** groups of unknowns whose mutual cofactors the caller will read (stations, connected pairs) */
+  cofactorGroups?(): Iterable<ArrayLike<number>>
 }
 
 export interface LsqTimings {
@@ -45,8 +48,12 @@ export type LsqOutcome =
       iterations: number
       rank: number
       datumDefect: number
-      /** cofactor matrix of the unknowns (u×u, column-major), σ0 = 1 a priori */
-      qxx: Float64Array
+      /**
+       * cofactor matrix of the unknowns (σ0 = 1 a priori), S-transformed for a free
+       * network: entries within each row's unknowns, the diagonal and the caller's
+       * cofactorGroups are selected; whole columns on demand
+       */
+      qxx: Cofactor
       /** linearization at the adjusted unknowns: misclosure = −v */
       rows: LinearRow[]
       conditionEstimate: number
@@ -100,10 +107,11 @@ export function solveNonlinear(problem: NonlinearProblem, maxIterations: number)
     lastStep = step
     if (converged) {
       const t1 = performance.now()
-      const rInv = inverseR(f)
-      let qxx = cofactor(f, rInv)
-      if (datum) qxx = sTransformMatrix(datum, qxx, u)
-      const health = condition(f, rInv, columnNorms, qxx)
+      const qxx = new Cofactor(f, datum)
+      const groups: ArrayLike<number>[] = rows.map((row) => row.cols)
+      if (problem.cofactorGroups) for (const g of problem.cofactorGroups()) groups.push(g)
+      qxx.select(groups)
+      const health = condition(f, columnNorms, qxx)
       timings.cofactorMs += performance.now() - t1
       return {
         ok: true,
@@ -211,57 +219,12 @@ function sTransformVector(datum: Datum, x: Float64Array): Float64Array {
   return out
 }
 
-/** S·Q·Sᵀ with S = I − K·Bᵀ, in O(u²·d). */
-function sTransformMatrix(datum: Datum, q: Float64Array, u: number): Float64Array {
-  const d = datum.g.length
-  if (d === 0) return q
-  // QB = Q·B (u×d), C = BᵀQB (d×d)
-  const qb: Float64Array[] = []
-  for (let p = 0; p < d; p++) {
-    const col = new Float64Array(u)
-    const bp = datum.b[p]
-    for (let j = 0; j < u; j++) {
-      const bj = bp[j]
-      if (bj === 0) continue
-      for (let i = 0; i < u; i++) col[i] += q[j * u + i] * bj
-    }
-    qb.push(col)
-  }
-  const c: number[][] = []
-  for (let p = 0; p < d; p++) {
-    c.push([])
-    for (let r = 0; r < d; r++) {
-      let s = 0
-      for (let i = 0; i < u; i++) s += datum.b[p][i] * qb[r][i]
-      c[p].push(s)
-    }
-  }
-  const out = Float64Array.from(q)
-  const k = datum.k
-  for (let j = 0; j < u; j++) {
-    for (let i = 0; i < u; i++) {
-      let s = 0
-      for (let p = 0; p < d; p++) {
-        s -= k[p][i] * qb[p][j] + qb[p][i] * k[p][j]
-        for (let r = 0; r < d; r++) s += k[p][i] * c[p][r] * k[r][j]
-      }
-      out[j * u + i] += s
-    }
-  }
-  return out
-}
-
 /**
  * 1-norm condition estimate κ₁ = ‖R·D⁻¹‖₁·‖D·R⁻¹‖₁ of the column-scaled whitened
  * design (D = column norms, so units of the unknowns do not count), and the
  * unknown with the largest scaled variance D²·Qxx, which dominates it.
  */
-function condition(
-  f: QrFactorization,
-  rInv: Float64Array,
-  norms: Float64Array,
-  qxx: Float64Array,
-): { kappa: number; dominant: number | null } {
+function condition(f: QrFactorization, norms: Float64Array, qxx: Cofactor): { kappa: number; dominant: number | null } {
   const r = f.rank
   const m = f.m
   const u = f.n
@@ -273,16 +236,13 @@ function condition(
     for (let i = 0; i <= j; i++) s += Math.abs(f.a[j * m + i])
     normR = Math.max(normR, s / dj)
   }
-  let normInv = 0
-  for (let j = 0; j < r; j++) {
-    let s = 0
-    for (let i = 0; i <= j; i++) s += Math.abs(rInv[j * r + i]) * (norms[f.perm[i]] || 1)
-    normInv = Math.max(normInv, s)
-  }
+  const w = new Float64Array(r)
+  for (let i = 0; i < r; i++) w[i] = norms[f.perm[i]] || 1
+  const normInv = qxx.inverseNorm1(w)
   let dominant: number | null = null
   let worst = -1
   for (let j = 0; j < u; j++) {
-    const v = qxx[j * u + j] * norms[j] * norms[j]
+    const v = qxx.get(j, j) * norms[j] * norms[j]
     if (v > worst) {
       worst = v
       dominant = j
