@@ -16,6 +16,7 @@
 
 import { BLOCK as COFACTOR_BLOCK } from './cofactor'
 import { approximateHeights, approximatePlane, type XY } from './approx'
+import { elevationFactor, GridProjection } from './grid'
 import { azimuth, ellipseFromCovariance, RAD_TO_DEG, RHO_ARCSEC, wrapPi } from './geometry'
 import { solveNonlinear, type LinearRow, type NonlinearProblem } from './lsq'
 import {
@@ -33,6 +34,7 @@ import type {
   AdjustSettings,
   AdjustmentResult,
   ControlRecord,
+  GridReductionSummary,
   InstrumentProfile,
   NetworkSummary,
   ObservationRecord,
@@ -216,7 +218,7 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
     return k
   }
 
-  const planeDefs: { def: PlaneDef; rec: ObservationRecord; zenith?: number; slope?: number }[] = []
+  const planeDefs: { def: PlaneDef; rec: ObservationRecord; zenith?: number; slope?: number; cf?: number }[] = []
   const heightDefs: { out: number; at: number; to: number; value: number; rec: ObservationRecord; slope?: number; zenith?: number }[] = []
   const setKeys = new Map<string, number>()
   const setStationName: string[] = []
@@ -354,9 +356,18 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   }
   timings.approximationMs = performance.now() - ta
 
+  // ---- ground → grid (projected CRS only) ---------------------------------------
+  const gridReduction = reduceToGrid(input, planeNames, planeCoords, planeDefs, outputs, (s) => {
+    const k = heightIdx.get(s)
+    if (k !== undefined) return heights[k]
+    const c = controlByName.get(s)
+    if (c && c.height !== null) return c.height
+    return approxBy.get(s)?.height ?? null
+  })
+
   // ---- a-priori σ (from the approximate geometry) --------------------------------
   const dist = (a: number, b: number) => Math.hypot(planeCoords[b].e - planeCoords[a].e, planeCoords[b].n - planeCoords[a].n)
-  const planeRows: PlaneRowDef[] = planeDefs.map(({ def, rec, zenith, slope }) => {
+  const planeRows: PlaneRowDef[] = planeDefs.map(({ def, rec, zenith, slope, cf = 1 }) => {
     switch (def.type) {
       case 'direction':
       case 'azimuth':
@@ -368,11 +379,13 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
           outScale: RHO_ARCSEC,
         }
       case 'distance': {
-        if (zenith === undefined) return { def, sigma: rec.sigma ?? distanceSigma(profile, def.value), outScale: 1 }
+        // a grid distance is the ground one times cf: its σ scales by cf, and its
+        // residual goes back to ground metres by 1/cf
+        if (zenith === undefined) return { def, sigma: (rec.sigma ?? distanceSigma(profile, rec.value)) * cf, outScale: 1 / cf }
         const sS = rec.sigma ?? distanceSigma(profile, slope!)
         const sz = zenithSigma(profile)
         const sHd = Math.hypot(Math.sin(zenith) * sS, slope! * Math.cos(zenith) * sz)
-        return { def, sigma: sHd, outScale: 1 / Math.sin(zenith) }
+        return { def, sigma: sHd * cf, outScale: 1 / (Math.sin(zenith) * cf) }
       }
       case 'coord':
         return { def, sigma: 1, outScale: 1 }
@@ -715,10 +728,117 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
     counts: { n: totalN, u: totalU, r: totalR },
     critical: { w: wCrit, tau: planeSummary?.tauCritical ?? heightSummary?.tauCritical ?? null, delta0: d0 },
     settings,
+    gridReduction,
   }
   if (planeSummary) result.plane = planeSummary
   if (heightSummary) result.height = heightSummary
   return result
+}
+
+/**
+ * Reduces the plane distances from ground to grid in place (def.value ← value·cf)
+ * when the input names a projected CRS; see ./grid for the factors. Lines are
+ * placed by the approximate coordinates (a scale error of 1e-4 moves k by far
+ * less than 1e-9), heights are the stations' known or approximate heights.
+ */
+function reduceToGrid(
+  input: AdjustInput,
+  names: string[],
+  coords: XY[],
+  defs: { def: PlaneDef; rec: ObservationRecord; cf?: number }[],
+  outputs: ObservationResult[],
+  heightOf: (station: string) => number | null,
+): GridReductionSummary {
+  const none: GridReductionSummary = {
+    applied: false, method: null, radiusM: null, geoidSeparationM: null, distances: 0,
+    meanCombinedFactor: null, minCombinedFactor: null, maxCombinedFactor: null, meanScaleFactor: null, meanElevationFactor: null,
+    heightsAssumed: [],
+  }
+  const spec = input.projection
+  if (!spec) return none
+  if (typeof spec.proj4 !== 'string' || !spec.proj4.trim()) fail('input', 'projection, field proj4: the CRS definition is empty')
+  const method = spec.scaleFactorMethod ?? 'simpson'
+  if (method !== 'simpson' && method !== 'midpoint') fail('input', `projection, field scaleFactorMethod: must be 'simpson' or 'midpoint'`)
+  const geoid = spec.geoidSeparationM ?? 0
+  if (!Number.isFinite(geoid) || Math.abs(geoid) > 200) fail('input', 'projection, field geoidSeparationM: must be a number of metres between −200 and 200')
+  if (spec.meanRadiusM !== undefined && !(Number.isFinite(spec.meanRadiusM) && spec.meanRadiusM > 6.3e6 && spec.meanRadiusM < 6.4e6)) {
+    fail('input', 'projection, field meanRadiusM: must lie between 6 300 000 and 6 400 000 m')
+  }
+  let proj: GridProjection
+  try {
+    proj = new GridProjection(spec.proj4)
+  } catch (e) {
+    return fail('input', `projection, field proj4: ${e instanceof Error ? e.message : String(e)}`)
+  }
+  const distances = defs.filter((d) => d.def.type === 'distance')
+  if (!distances.length || !coords.length) return { ...none, applied: true, method, geoidSeparationM: geoid }
+  let radius = spec.meanRadiusM
+  try {
+    if (radius === undefined) {
+      let e = 0
+      let n = 0
+      for (const c of coords) {
+        e += c.e / coords.length
+        n += c.n / coords.length
+      }
+      radius = proj.gaussianRadius(proj.toGeographic(e, n).lat)
+    }
+  } catch (e) {
+    return fail('input', `projection: the network's centre ${e instanceof Error ? e.message : String(e)}; check that the control coordinates are in this CRS`)
+  }
+  const known = names.map(heightOf)
+  const given = known.filter((h): h is number => h !== null)
+  const fallback = given.length ? given.reduce((a, b) => a + b, 0) / given.length : 0
+  const assumed = new Set<string>()
+  const hAt = (k: number) => {
+    if (known[k] !== null) return known[k]!
+    assumed.add(names[k])
+    return fallback
+  }
+  let sum = 0
+  let sumK = 0
+  let sumE = 0
+  let min = Infinity
+  let max = -Infinity
+  for (const d of distances) {
+    if (d.def.type !== 'distance') continue
+    const a = coords[d.def.at]
+    const b = coords[d.def.to]
+    let k: number
+    try {
+      k = proj.lineScale(a.e, a.n, b.e, b.n, method)
+    } catch (e) {
+      return fail('input', `line ${d.rec.line}: ${e instanceof Error ? e.message : String(e)}; check that the control coordinates are in this CRS`)
+    }
+    const h = (hAt(d.def.at) + hAt(d.def.to)) / 2 + geoid
+    const ef = elevationFactor(radius, h)
+    const cf = ef * k
+    d.def.value *= cf
+    d.cf = cf
+    const out = outputs[d.def.out]
+    out.combinedFactor = cf
+    out.elevationFactor = ef
+    out.scaleFactor = k
+    sum += cf
+    sumK += k
+    sumE += ef
+    if (cf < min) min = cf
+    if (cf > max) max = cf
+  }
+  const cnt = distances.length
+  return {
+    applied: true,
+    method,
+    radiusM: radius,
+    geoidSeparationM: geoid,
+    distances: cnt,
+    meanCombinedFactor: sum / cnt,
+    minCombinedFactor: min,
+    maxCombinedFactor: max,
+    meanScaleFactor: sumK / cnt,
+    meanElevationFactor: sumE / cnt,
+    heightsAssumed: [...assumed].sort(),
+  }
 }
 
 function isControlled(c: ControlRecord | null, key: 'sdEast' | 'sdNorth' | 'sdHeight', free: boolean): boolean {

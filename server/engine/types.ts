@@ -97,11 +97,46 @@ export interface ApproximateCoordinate {
   height?: number
 }
 
+/**
+ * The projected CRS of the control coordinates. When given, measured (ground)
+ * horizontal and slope-reduced distances are reduced to the grid before the
+ * plane adjustment; without it the plane is local and nothing is reduced.
+ */
+export interface ProjectionInput {
+  /** proj4 definition, e.g. '+proj=utm +zone=33 +ellps=GRS80 +units=m' */
+  proj4: string
+  /** radius for the elevation factor R/(R + h); default the Gaussian mean radius at the network */
+  meanRadiusM?: number
+  /** geoid separation N for the whole network (ellipsoidal height = height + N); default 0 */
+  geoidSeparationM?: number
+  /** point scale factor of a line by Simpson's rule over ends and mid-point (default) or at the mid-point */
+  scaleFactorMethod?: 'simpson' | 'midpoint'
+}
+
 export interface AdjustInput {
   controls: ControlRecord[]
   observations: ObservationRecord[]
   profile?: InstrumentProfile
   approximate?: ApproximateCoordinate[]
+  projection?: ProjectionInput
+}
+
+/** How distances were reduced from ground to grid (applied: false on a local plane). */
+export interface GridReductionSummary {
+  applied: boolean
+  method: 'simpson' | 'midpoint' | null
+  /** radius used in the elevation factor, metres */
+  radiusM: number | null
+  geoidSeparationM: number | null
+  /** number of distances reduced */
+  distances: number
+  meanCombinedFactor: number | null
+  minCombinedFactor: number | null
+  maxCombinedFactor: number | null
+  meanScaleFactor: number | null
+  meanElevationFactor: number | null
+  /** stations without any known height: the mean of the known heights (or 0) stood in */
+  heightsAssumed: string[]
 }
 
 export interface Ellipse {
@@ -157,6 +192,14 @@ export interface ObservationResult {
   weak: boolean
   /** why an observation did not enter the adjustment, when it did not */
   remark: string | null
+  /**
+   * distances reduced to the grid (projected CRS only): grid = ground ·
+   * combinedFactor, combinedFactor = elevationFactor · scaleFactor. Residual, σ
+   * and MDB stay in ground metres.
+   */
+  combinedFactor?: number
+  elevationFactor?: number
+  scaleFactor?: number
 }
 
 export interface RelativeResult {
@@ -203,6 +246,8 @@ export interface AdjustmentResult {
   counts: { n: number; u: number; r: number }
   critical: { w: number; tau: number | null; delta0: number }
   settings: AdjustSettings
+  /** ground-to-grid reduction of distances (always set by adjustNetwork) */
+  gridReduction?: GridReductionSummary
 }
 
 export type AdjustFailureCode = 'singular' | 'not_converged' | 'unplaceable' | 'input'

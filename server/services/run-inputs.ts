@@ -162,8 +162,11 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
     }
   })
 
+  // a projected CRS: the engine reduces ground distances to the grid (local plane: nothing to reduce)
+  const projection = project.crs !== 'local' && project.crsDefinition ? { proj4: project.crsDefinition } : undefined
   const resolved = { ...settings, observationSetIds: setIds, toleranceProfileId }
   const hashed = {
+    projection,
     settings: resolved,
     sets: usedSets.map((s) => ({ id: s.id, sha256: s.sha256, instrumentProfileId: s.instrumentProfileId })),
     profiles: [...profiles].sort((a, b) => a[0] - b[0]),
@@ -180,7 +183,7 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
   const hash = createHash('sha256').update(canonicalJson(hashed)).digest('hex')
   const mainProfile = mainProfileId === null ? undefined : profiles.get(mainProfileId)
   return {
-    input: { controls, observations: records, ...(mainProfile ? { profile: mainProfile } : {}), approximate },
+    input: { controls, observations: records, ...(mainProfile ? { profile: mainProfile } : {}), approximate, ...(projection ? { projection } : {}) },
     engineSettings: { datum: settings.datum === 'free' ? 'free' : 'as-given', scaling: settings.scaling, confidence: settings.confidence },
     settings: resolved,
     tolerance,
