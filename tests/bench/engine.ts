@@ -1,19 +1,25 @@
 // Engine benchmark: invented perturbed-grid networks (≈ 6 neighbours per station,
 // a direction and a distance to each, 4 fixed corners). Prints size, time per
-// phase, peak RSS, and our pivoted QR against ml-matrix QrDecomposition on the
-// same whitened matrix. Targets: 300 stations < 5 s and < 500 MB; own QR ≥ 3×
-// faster than ml-matrix. Run: npx tsx tests/bench/engine.ts [--quick]
+// phase (approximations, factorization, statistics with every redundancy number,
+// ellipse and MDB effect), the process's peak RSS after the adjustment, and our
+// compression + pivoted QR against ml-matrix QrDecomposition on the same whitened
+// matrix. Each size runs in its own process (so peak RSS is that size's) after a
+// small warm-up network (so the JIT is not timed). Targets: 300 stations with
+// full statistics well under 5 s; 1,000 stations under a minute; own QR ≥ 3×
+// faster than ml-matrix. Run: npx tsx tests/bench/engine.ts [--quick] [--ml-all]
+// (--ml-all also times ml-matrix on 1,000 stations, which takes many minutes).
+import { spawnSync } from 'node:child_process'
+import { fileURLToPath } from 'node:url'
 import { Matrix, QrDecomposition } from 'ml-matrix'
 import { adjustNetworkTimed } from '../../server/engine/adjust'
 import { compressRows, factorize } from '../../server/engine/qr'
 import { gridNetwork } from '../unit/engine/helpers'
 
 const quick = process.argv.includes('--quick')
+const mlAll = process.argv.includes('--ml-all')
+const oneAt = process.argv.indexOf('--one')
 const sizes = quick ? [100] : [100, 300, 1000]
-let peakRss = process.memoryUsage().rss
-const sample = setInterval(() => {
-  peakRss = Math.max(peakRss, process.memoryUsage().rss)
-}, 20)
+const peakMb = () => process.resourceUsage().maxRSS / 1024
 
 /** The whitened design of one iteration, rebuilt here for the ml-matrix comparison. */
 function whitenedDirectionDistanceMatrix(side: number): { a: Float64Array; m: number; n: number } {
@@ -51,19 +57,16 @@ function whitenedDirectionDistanceMatrix(side: number): { a: Float64Array; m: nu
   return { a, m, n }
 }
 
-console.log('stations  rows  unknowns  approx ms  factor ms  stats ms  total ms  peak RSS MB  ownQR ms  ml-matrix QR ms  ratio')
-for (const stations of sizes) {
+function runOne(stations: number): string {
   const side = Math.round(Math.sqrt(stations))
+  adjustNetworkTimed(gridNetwork(5, 2)) // warm-up
   const net = gridNetwork(side, 1)
   const t0 = performance.now()
   const { outcome, timings } = adjustNetworkTimed(net)
   const total = performance.now() - t0
-  if (!outcome.ok) {
-    console.log(`${side * side} stations: failed: ${outcome.reason}`)
-    continue
-  }
+  if (!outcome.ok) return `${side * side} stations: failed: ${outcome.reason}`
   const res = outcome.result
-  peakRss = Math.max(peakRss, process.memoryUsage().rss)
+  const rss = peakMb()
   // QR comparison on one iteration's whitened design (all stations as unknowns, so
   // it has the datum defect; both factor the same matrix, only the time is compared)
   const { a, m, n } = whitenedDirectionDistanceMatrix(side)
@@ -89,7 +92,7 @@ for (const stations of sizes) {
   const own = performance.now() - t1
   let mlText = 'skipped'
   let ratio = '—'
-  if (stations <= 300) {
+  if (stations <= 300 || mlAll) {
     const mat = new Matrix(rows)
     const t2 = performance.now()
     new QrDecomposition(mat)
@@ -97,21 +100,31 @@ for (const stations of sizes) {
     mlText = ml.toFixed(0)
     ratio = `${(ml / own).toFixed(1)}×`
   }
-  peakRss = Math.max(peakRss, process.memoryUsage().rss)
-  console.log(
-    [
-      String(side * side).padStart(8),
-      String(res.counts.n).padStart(5),
-      String(res.counts.u).padStart(9),
-      timings.approximationMs.toFixed(0).padStart(10),
-      timings.factorizationMs.toFixed(0).padStart(10),
-      timings.statisticsMs.toFixed(0).padStart(9),
-      total.toFixed(0).padStart(9),
-      (peakRss / 2 ** 20).toFixed(0).padStart(12),
-      own.toFixed(0).padStart(9),
-      mlText.padStart(16),
-      ratio.padStart(6),
-    ].join(' '),
-  )
+  return [
+    String(side * side).padStart(8),
+    String(res.counts.n).padStart(5),
+    String(res.counts.u).padStart(9),
+    timings.approximationMs.toFixed(0).padStart(10),
+    timings.factorizationMs.toFixed(0).padStart(10),
+    timings.statisticsMs.toFixed(0).padStart(9),
+    total.toFixed(0).padStart(9),
+    rss.toFixed(0).padStart(12),
+    own.toFixed(0).padStart(9),
+    mlText.padStart(16),
+    ratio.padStart(6),
+  ].join(' ')
 }
-clearInterval(sample)
+
+if (oneAt >= 0) {
+  console.log(runOne(Number(process.argv[oneAt + 1])))
+} else {
+  console.log('stations  rows  unknowns  approx ms  factor ms  stats ms  total ms  peak RSS MB  ownQR ms  ml-matrix QR ms  ratio')
+  const self = fileURLToPath(import.meta.url)
+  for (const stations of sizes) {
+    const child = spawnSync(process.execPath, [...process.execArgv, self, '--one', String(stations), ...(mlAll ? ['--ml-all'] : [])], {
+      encoding: 'utf8',
+      maxBuffer: 1 << 20,
+    })
+    process.stdout.write(child.stdout || `${stations} stations: ${child.stderr}\n`)
+  }
+}

@@ -71,4 +71,28 @@ describe('npm run adjust (server/engine/cli.ts)', () => {
     expect(r.code).toBe(3)
     expect(r.err).toMatch(/no fixed orientation: hold an azimuth or a second point/)
   })
+  it('--profile key=value pairs set the a-priori σ: distance σ² = a² + (b·D)² + ci² + ct² (common practice, see sigma.ts)', () => {
+    const r = run(good, '--json', '--profile', 'a=5,b=10,dir=3,zen=4,ci=1,ct=1.5,lev=2')
+    expect(r.err).toBe('')
+    expect(r.code).toBe(0)
+    const o = JSON.parse(r.out).observations.find((x: { line: number }) => x.line === 8)
+    const d = 743.303
+    expect(o.sigma).toBeCloseTo(Math.sqrt(0.005 ** 2 + (10e-6 * d) ** 2 + 0.001 ** 2 + 0.0015 ** 2), 9)
+  })
+  it('--profile also takes a JSON file with full field names', () => {
+    const file = join(dir, 'profile.json')
+    writeFileSync(file, JSON.stringify({ distanceMm: 5, distancePpm: 10, centeringInstrumentMm: 1, centeringTargetMm: 1.5 }))
+    const r = run(good, '--json', `--profile=${file}`)
+    expect(r.code).toBe(0)
+    const o = JSON.parse(r.out).observations.find((x: { line: number }) => x.line === 8)
+    expect(o.sigma).toBeCloseTo(Math.sqrt(0.005 ** 2 + (10e-6 * 743.303) ** 2 + 0.001 ** 2 + 0.0015 ** 2), 9)
+  })
+  it('--profile with an unknown key or a negative value exits 2 naming the field', () => {
+    const bad = run(good, '--profile', 'a=2,dirr=3')
+    expect(bad.code).toBe(2)
+    expect(bad.err).toMatch(/--profile, field dirr: unknown/)
+    const neg = run(good, '--profile', 'a=-1')
+    expect(neg.code).toBe(2)
+    expect(neg.err).toMatch(/--profile, field a: must be a non-negative number/)
+  })
 })
