@@ -55,6 +55,14 @@ export const CAUTION = 'These coordinates are released for use under the respons
 const toUnits = (metres: number | null, units: Units) => (metres === null ? null : metres / METRES_PER_UNIT[units])
 const fmt = (v: number | null, d = DECIMALS) => (v === null ? '' : v.toFixed(d))
 
+/**
+ * The embedded IBM Plex Sans carries the Latin glyphs only: write the few
+ * mathematical signs our texts use in words so nothing prints as a blank box.
+ */
+export function pdfSafe(text: string): string {
+  return text.replace(/≤/g, 'at most').replace(/≥/g, 'at least').replace(/σ/g, 'sd')
+}
+
 export function fileBase(input: DeliverableInput): string {
   const slug = input.project.name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 40) || 'project'
   return `${slug}-release-${input.release.id}`
@@ -231,8 +239,8 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   const left = doc.page.margins.left
   const width = doc.page.width - doc.page.margins.left - doc.page.margins.right
   const bottom = () => doc.page.height - doc.page.margins.bottom
-  const heading = (t: string) => { doc.moveDown(0.8).font('bold').fontSize(12).fillColor('#1f5d5d').text(t, left).fillColor('#0f172a').font('body').fontSize(9) }
-  const line = (label: string, value: string) => { doc.font('bold').fontSize(9).text(`${label}: `, left, undefined, { continued: true }).font('body').text(value) }
+  const heading = (t: string) => { doc.moveDown(0.8).font('bold').fontSize(12).fillColor('#1f5d5d').text(pdfSafe(t), left).fillColor('#0f172a').font('body').fontSize(9) }
+  const line = (label: string, value: string) => { doc.font('bold').fontSize(9).text(`${pdfSafe(label)}: `, left, undefined, { continued: true }).font('body').text(pdfSafe(value)) }
 
   const table = (cols: Column[], rows: string[][]) => {
     const rowH = 13
@@ -250,7 +258,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
       if (doc.y + rowH > bottom()) { doc.addPage(); drawHeader() }
       let x = left
       const y = doc.y
-      r.forEach((cell, i) => { doc.text(cell, x, y, { width: cols[i]!.width - 4, align: cols[i]!.align ?? 'right', lineBreak: false }); x += cols[i]!.width })
+      r.forEach((cell, i) => { doc.text(pdfSafe(cell), x, y, { width: cols[i]!.width - 4, align: cols[i]!.align ?? 'right', lineBreak: false }); x += cols[i]!.width })
       doc.y = y + rowH
     }
     doc.x = left
@@ -282,11 +290,14 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     { title: 'Station', width: 62, align: 'left' },
     { title: `East (${u})`, width: 66 }, { title: `North (${u})`, width: 66 }, { title: `Height (${u})`, width: 52 },
     { title: `sd E (${pu})`, width: 42 }, { title: `sd N (${pu})`, width: 42 }, { title: `sd H (${pu})`, width: 42 },
-    { title: `95% a (${pu})`, width: 46 }, { title: `95% b (${pu})`, width: 46 }, { title: 'az (deg)', width: 51 },
+    { title: `A95 (${pu})`, width: 46 }, { title: `B95 (${pu})`, width: 46 }, { title: 'az (deg)', width: 51 },
   ], input.signoff.stations.map((s) => [
     s.name, fmt(toUnits(s.east, u)), fmt(toUnits(s.north, u)), s.height === null ? '—' : fmt(toUnits(s.height, u)),
     prec(s.sdEast), prec(s.sdNorth), prec(s.sdHeight), prec(s.semiMajor95), prec(s.semiMinor95), s.azimuthDeg === null ? '—' : s.azimuthDeg.toFixed(1),
   ]))
+  doc.moveDown(0.3).fontSize(7.5).fillColor('#475569')
+    .text('sd: standard deviation (1 sigma). A95, B95: semi-axes of the absolute error ellipse at 95 % confidence; az: azimuth of A95 clockwise from grid north.', left, undefined, { width })
+    .fillColor('#0f172a').fontSize(9)
 
   heading('Accuracy check')
   const c = input.signoff.accuracyCheck
@@ -294,7 +305,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     line('Tolerance', `${c.profile.name}: ${c.profile.rule}`)
     line('Source', c.profile.source)
   }
-  doc.text(c.note, left)
+  doc.text(pdfSafe(c.note), left)
   if (c.items.length) {
     doc.moveDown(0.3)
     table([

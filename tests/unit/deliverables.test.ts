@@ -9,7 +9,7 @@ import { extractText, getDocumentProxy } from 'unpdf'
 import { describe, expect, it } from 'vitest'
 import { findCrs } from '../../shared/crs'
 import { readLandXml } from '../../server/engine/io/landxml'
-import { buildCsv, buildDeliverables, buildGeoJson, buildLandXml, buildPdf, CAUTION } from '../../server/services/deliverables'
+import { buildCsv, buildDeliverables, buildGeoJson, buildLandXml, buildPdf, CAUTION, pdfSafe } from '../../server/services/deliverables'
 import type { DeliverableInput, Units } from '../../server/services/deliverables'
 import type { SignedStation } from '../../server/services/signoffs'
 import { sha256Hex } from '../../server/services/passwords'
@@ -130,6 +130,13 @@ describe('PDF report', () => {
     expect(text).toContain('LS-DEMO-0417')
     expect(text.replace(/\s+/g, ' ')).toContain('checked against local regulations and licensed practice')
     expect(CAUTION).toMatch(/responsibility of the signing licensed surveyor/)
+  })
+
+  it('writes signs the embedded Latin font lacks in words, so none prints blank (regression: "≤" printed as a box)', async () => {
+    expect(pdfSafe('relative precision at 95 % ≤ 20 mm; σ of unit weight')).toBe('relative precision at 95 % at most 20 mm; sd of unit weight')
+    const pdf = await buildPdf(utm)
+    const { text } = await extractText(await getDocumentProxy(new Uint8Array(pdf)), { mergePages: true })
+    expect(text).not.toMatch(/[≤≥σ]/)
   })
 
   it('embeds IBM Plex Sans', async () => {
