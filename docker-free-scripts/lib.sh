@@ -49,7 +49,7 @@ ensure_chromium() {
 
 # The OS user that owns the cluster: 'postgres' when we are root (initdb refuses root).
 pg_user() { if as_root; then echo postgres; else id -un; fi; }
-run_pg() { if as_root; then runuser -u postgres -- "$@"; else "$@"; fi; }
+run_pg() { if as_root; then (cd / && runuser -u postgres -- "$@"); else "$@"; fi; }
 
 # Data folder: inside the project when the postgres user can reach it, else a
 # folder under /var/tmp keyed by a hash of the project path (a CI clone may sit
