@@ -2,12 +2,13 @@
 // Each test that changes a password works on a person created for it, so the
 // demo accounts stay usable for every other test.
 import { afterAll, describe, expect, it } from 'vitest'
-import { desc, eq, ilike } from 'drizzle-orm'
+import { eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
-import { mailboxMessages, passwordResets, users } from '../../server/db/schema'
+import { passwordResets, users } from '../../server/db/schema'
 import { hashPassword, sha256Hex } from '../../server/services/passwords'
 import { as, Client, DEMO } from '../support/http'
 import { baseUrl } from '../support/env'
+import { mailTo } from '../support/mail'
 
 afterAll(() => closeDb())
 
@@ -19,16 +20,6 @@ async function newPerson(label: string, password: string): Promise<string> {
   return email
 }
 
-/** Waits for the newest message to an address to land in the development mailbox. */
-async function mailTo(email: string, timeoutMs = 15_000) {
-  const until = Date.now() + timeoutMs
-  while (Date.now() < until) {
-    const [m] = await useDb().select().from(mailboxMessages).where(ilike(mailboxMessages.to, `%${email}%`)).orderBy(desc(mailboxMessages.id)).limit(1)
-    if (m) return m
-    await new Promise((r) => setTimeout(r, 200))
-  }
-  throw new Error(`no mail to ${email} within ${timeoutMs} ms`)
-}
 
 describe('sign-in', () => {
   // Expected roles: the demo people of server/db/seed.ts, one per role of DESIGN.md section 2.

@@ -2,12 +2,13 @@
 // Every change is made to people created for the test; the demo people keep
 // their roles.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { and, desc, eq, ilike } from 'drizzle-orm'
+import { and, desc, eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
-import { auditLog, firms, invitations, mailboxMessages, memberships, users } from '../../server/db/schema'
+import { auditLog, firms, invitations, memberships, users } from '../../server/db/schema'
 import { hashPassword, sha256Hex } from '../../server/services/passwords'
 import { as, Client, DEMO } from '../support/http'
 import { baseUrl } from '../support/env'
+import { mailTo } from '../support/mail'
 
 afterAll(() => closeDb())
 
@@ -21,15 +22,6 @@ beforeAll(async () => {
   larchmereId = f!.id
 })
 
-async function mailTo(email: string, timeoutMs = 15_000) {
-  const until = Date.now() + timeoutMs
-  while (Date.now() < until) {
-    const [m] = await useDb().select().from(mailboxMessages).where(ilike(mailboxMessages.to, `%${email}%`)).orderBy(desc(mailboxMessages.id)).limit(1)
-    if (m) return m
-    await new Promise((r) => setTimeout(r, 200))
-  }
-  throw new Error(`no mail to ${email} within ${timeoutMs} ms`)
-}
 
 /** Invites an address and returns the one-time token from the e-mail it receives. */
 async function invite(email: string, role: string): Promise<string> {

@@ -3,13 +3,14 @@
 // link, chooses a name and password and lands signed in on the firm's home;
 // the owner then changes the new member's role. Screenshots go to tests/screenshots/.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { and, desc, eq, ilike } from 'drizzle-orm'
+import { and, eq } from 'drizzle-orm'
 import type { Browser, Page } from 'playwright-core'
 import { closeDb, useDb } from '../../server/db/client'
-import { firms, mailboxMessages, memberships, users } from '../../server/db/schema'
+import { firms, memberships, users } from '../../server/db/schema'
 import { baseUrl } from '../support/env'
 import { launch, newPage, shot, signIn } from '../support/browser'
 import { DEMO } from '../support/http'
+import { mailTo } from '../support/mail'
 
 let browser: Browser
 let owner: Page
@@ -25,15 +26,6 @@ beforeAll(async () => {
 })
 afterAll(async () => { await browser?.close(); await closeDb() })
 
-async function mailTo(email: string, timeoutMs = 15_000) {
-  const until = Date.now() + timeoutMs
-  while (Date.now() < until) {
-    const [m] = await useDb().select().from(mailboxMessages).where(ilike(mailboxMessages.to, `%${email}%`)).orderBy(desc(mailboxMessages.id)).limit(1)
-    if (m) return m
-    await new Promise((r) => setTimeout(r, 250))
-  }
-  throw new Error(`no mail to ${email} within ${timeoutMs} ms`)
-}
 
 async function roleOf(email: string) {
   const [row] = await useDb().select({ role: memberships.role }).from(memberships)
