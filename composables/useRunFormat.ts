@@ -1,49 +1,15 @@
 // Formatting shared by the run pages: project units, residual units and the
 // pass / watch / fail rating of an observation's tests.
+import { METRES_PER } from '~~/server/engine/io/units'
+import type { ObservationResult, StationResult } from '~~/server/engine/types'
+
 export type Rating = 'pass' | 'watch' | 'fail'
 
 export const UNIT_LABEL = { m: 'm', ft: 'ft', usft: 'US ft' } as const
-const METRES_PER = { m: 1, ft: 0.3048, usft: 1200 / 3937 } as const
 
-export interface RunObservation {
-  id: number | string | null
-  line: number
-  kind: string
-  component: string | null
-  at: string
-  from: string | null
-  to: string
-  observed: number
-  adjusted: number | null
-  residual: number | null
-  sigma: number | null
-  residualUnit: 'm' | 'arcsec'
-  redundancy: number | null
-  w: number | null
-  flagged: boolean
-  tau: number | null
-  tauFlagged: boolean
-  mdb: number | null
-  mdbEffect: number | null
-  excluded: boolean
-  weak: boolean
-  remark: string | null
-}
-
-export interface RunStation {
-  name: string
-  east: number | null
-  north: number | null
-  height: number | null
-  sdEast: number | null
-  sdNorth: number | null
-  sdHeight: number | null
-  ellipse: { semiMajor: number; semiMinor: number; azimuthDeg: number } | null
-  ellipse95: { semiMajor: number; semiMinor: number; azimuthDeg: number } | null
-  fixed: boolean
-  kind: 'control' | 'new'
-  controlled: { east: boolean; north: boolean; height: boolean }
-}
+/** The run routes return the engine's own result shapes for observations and stations. */
+export type RunObservation = ObservationResult
+export type RunStation = StationResult
 
 /** |w| above 2 but under the critical value is worth a look (common practice). */
 export const WATCH_W = 2

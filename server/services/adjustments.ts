@@ -9,6 +9,7 @@ import { usePool, useDb } from '../db/client'
 import { adjustedStations, adjustments, observationResults, observations, projects, relativePrecisions, users } from '../db/schema'
 import type { Adjustment, Project } from '../db/schema'
 import { adjustNetwork } from '../engine/index'
+import { METRES_PER } from '../engine/io/units'
 import type { AdjustmentResult } from '../engine/types'
 import { ApiError, notFound } from '../utils/api'
 import type { FirmContext } from '../utils/guard'
@@ -141,7 +142,6 @@ export async function getRunStatus(ctx: FirmContext, project: Project, number: n
 
 // ── export ──────────────────────────────────────────────────────────────────
 
-const METRES_PER_UNIT = { m: 1, ft: 0.3048, usft: 1200 / 3937 } as const
 const csvCell = (v: unknown) => {
   if (v === null || v === undefined) return ''
   const s = String(v)
@@ -154,7 +154,7 @@ export async function exportCsv(ctx: FirmContext, project: Project, number: numb
   if (run.status !== 'done' || !run.result) throw new ApiError(409, `Run ${number} has no results (${run.status})`)
   const r = run.result as unknown as AdjustmentResult
   const u = project.units
-  const k = METRES_PER_UNIT[u]
+  const k = METRES_PER[u]
   const len = (v: number | null | undefined, d = 4) => (v === null || v === undefined ? null : (v / k).toFixed(d))
   const head = [`# Tiepoint run ${number} of project "${project.name}"; input SHA-256 ${run.inputHash}`,
     '# Coordinates must be checked against local regulations and licensed practice before use.']

@@ -9,6 +9,7 @@ import Papa from 'papaparse'
 import proj4 from 'proj4'
 import PDFDocument from 'pdfkit'
 import { XMLBuilder } from 'fast-xml-parser'
+import { METRES_PER } from '../engine/io/units'
 import type { AccuracyCheck } from './accuracy-check'
 import type { RunSummaryDto, SignedStation } from './signoffs'
 import { sha256Hex } from './passwords'
@@ -43,9 +44,8 @@ export interface DeliverableFile {
   sha256: string
 }
 
-// International foot 0.3048 m exactly; U.S. survey foot 1200/3937 m
-// (Federal Register 24 FR 5348, 1959).
-export const METRES_PER_UNIT: Record<Units, number> = { m: 1, ft: 0.3048, usft: 1200 / 3937 }
+// Foot definitions and their sources live with the unit helpers (server/engine/io/units.ts).
+export const METRES_PER_UNIT: Readonly<Record<Units, number>> = METRES_PER
 export const UNIT_LABEL: Record<Units, string> = { m: 'm', ft: 'ft', usft: 'US survey ft' }
 const DECIMALS = 4
 
@@ -102,8 +102,8 @@ export function metresPerCrsUnit(definition: string): number {
   const toMeter = /\+to_meter=([0-9.eE+-]+)/.exec(definition)
   if (toMeter) return Number(toMeter[1])
   const unit = /\+units=([\w-]+)/.exec(definition)?.[1] ?? 'm'
-  if (unit === 'us-ft') return 1200 / 3937
-  if (unit === 'ft') return 0.3048
+  if (unit === 'us-ft') return METRES_PER.usft
+  if (unit === 'ft') return METRES_PER.ft
   return 1
 }
 
