@@ -28,6 +28,17 @@ export function formatReport(result: AdjustmentResult): string {
   out.push('')
   out.push(`Settings: datum ${result.settings.datum}, scaling ${result.settings.scaling}, α = ${result.settings.alpha}, α0 = ${result.settings.alpha0}, β0 = ${result.settings.beta0}`)
   out.push(`Iterations ${result.iterations}; observations n = ${result.counts.n}, unknowns u = ${result.counts.u}, redundancy r = ${result.counts.r}`)
+  const gr = result.gridReduction
+  if (gr?.applied) {
+    out.push(
+      `Grid and ground: ${gr.distances} distance${gr.distances === 1 ? '' : 's'} reduced to the grid; combined factor mean ${f(gr.meanCombinedFactor, 8)} ` +
+        `(${f(gr.minCombinedFactor, 8)} … ${f(gr.maxCombinedFactor, 8)}) = scale factor ${f(gr.meanScaleFactor, 8)} × elevation factor ${f(gr.meanElevationFactor, 8)}; ` +
+        `R ${f(gr.radiusM, 0)} m, geoid separation ${f(gr.geoidSeparationM, 2)} m, k by ${gr.method === 'midpoint' ? 'mid-point' : "Simpson's rule"}` +
+        (gr.heightsAssumed.length ? `; no height known for ${gr.heightsAssumed.join(', ')} (mean known height used)` : ''),
+    )
+  } else if (gr) {
+    out.push('Grid and ground: local plane, distances used as measured.')
+  }
   out.push('')
   out.push('Global test (two-sided χ² on vᵀPv)')
   const netLine = (name: string, s: NetworkSummary) =>

@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest'
 import fc from 'fast-check'
 import proj4 from 'proj4'
 import { elevationFactor, GridProjection } from '../../../server/engine/grid'
-import { adjustNetwork, type AdjustmentResult, type ObservationRecord } from '../../../server/engine/index'
+import { adjustNetwork, formatReport, type AdjustmentResult, type ObservationRecord } from '../../../server/engine/index'
 import { ARC, az, fixed, obs } from './helpers'
 
 const D2R = Math.PI / 180
@@ -198,6 +198,12 @@ describe('UTM-projected network: ground distances reduced to the grid', () => {
     const r = ok(adjustNetwork({ ...input, approximate: net.approximate.filter((a) => a.station !== 'D'), projection: { proj4: UTM33 } }))
     expect(r.gridReduction!.heightsAssumed).toEqual(['D'])
     expect(r.gridReduction!.radiusM!).toBeGreaterThan(6.36e6)
+  })
+
+  it('the report shows the combined factor (or says the plane is local)', () => {
+    const text = formatReport(projected)
+    expect(text).toContain(`Grid and ground: 9 distances reduced to the grid; combined factor mean ${projected.gridReduction!.meanCombinedFactor!.toFixed(8)}`)
+    expect(formatReport(local)).toContain('Grid and ground: local plane, distances used as measured.')
   })
 
   it('bad projection input fails as input, naming the field', () => {
