@@ -72,6 +72,19 @@ describe('point scale factor of a projection (proj4, central differences)', () =
     expect(1 - elevationFactor(6_371_000, 1000)).toBeCloseTo(1.5694e-4, 8)
   })
 
+  it('a CRS in US survey feet works in metres inside the engine (stations are stored in metres)', () => {
+    // invented Lambert conformal conic zone in US survey feet (1 ft = 1200/3937 m, US Federal
+    // Register 1959 definition, from memory); proj4's own transform gives feet
+    const def = '+proj=lcc +lat_1=40 +lat_2=42 +lat_0=39.5 +lon_0=-105 +x_0=600000 +y_0=300000 +ellps=GRS80 +units=us-ft +no_defs'
+    const [eFt, nFt] = proj4(def).forward([-104.2, 40.7])
+    const p = new GridProjection(def)
+    const g = p.toGrid(-104.2 * D2R, 40.7 * D2R)
+    expect(g.e).toBeCloseTo((eFt * 1200) / 3937, 6)
+    expect(g.n).toBeCloseTo((nFt * 1200) / 3937, 6)
+    // the scale factor does not depend on the length unit: a conformal conic's k is near 1 between its standard parallels
+    expect(Math.abs(p.scaleAtGrid(g.e, g.n) - 1)).toBeLessThan(1e-3)
+  })
+
   it('a geographic CRS or an unreadable definition is refused with a readable reason', () => {
     expect(() => new GridProjection('+proj=longlat +datum=WGS84 +no_defs')).toThrow(/geographic/)
     expect(() => new GridProjection('+proj=nosuchthing')).toThrow(/could not be read/)
