@@ -557,6 +557,9 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
       }
       let next = 0
       const cache = new Map<number, Float64Array>()
+      // coordinate unknowns of each station that has any, flat (stride = columns per station)
+      const stride = stationCols.length ? stationCols[0].length : 1
+      const coordCols = Int32Array.from(stationCols.filter((sc) => sc.some((j) => j >= 0)).flatMap((sc) => [...sc]))
       order.forEach((pi, t) => {
         const { out, cols, ac, k } = pending[pi]
         for (const c of cols) {
@@ -568,9 +571,10 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
         }
         const colQ = cols.map((c) => cache.get(c)!)
         let worst = 0
-        for (const sc of stationCols) {
+        for (let st = 0; st < coordCols.length; st += stride) {
           let s2 = 0
-          for (const j of sc) {
+          for (let c = st; c < st + stride; c++) {
+            const j = coordCols[c]
             if (j < 0) continue
             let dxj = 0
             for (let p = 0; p < ac.length; p++) dxj += colQ[p][j] * ac[p]
