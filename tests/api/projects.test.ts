@@ -3,7 +3,7 @@
 import { afterAll, describe, expect, it } from 'vitest'
 import { eq } from 'drizzle-orm'
 import { as, Client, DEMO } from '../support/http'
-import { closeDb, useDb } from '../../server/db/client'
+import { closeDb, useDb, usePool } from '../../server/db/client'
 import { projects } from '../../server/db/schema'
 
 const base = `/api/firms/${DEMO.firm}/projects`
@@ -37,7 +37,7 @@ describe('projects', () => {
     expect(patched.status).toBe(200)
     expect(patched.body.units).toBe('usft')
     expect(patched.body.angleFormat).toBe('gon')
-    const { rows } = await (await import('../../server/db/client')).usePool()
+    const { rows } = await usePool()
       .query('select action from audit_log where entity_type = $1 and entity_id = $2 order by id', ['project', String(created.body.id)])
     expect(rows.map((r) => r.action)).toEqual(['project.create', 'project.update'])
   })
@@ -51,7 +51,14 @@ describe('projects', () => {
     const client = await as(DEMO.client)
     const shared = await client.get(base)
     expect(shared.status).toBe(200)
-    expect(shared.body.map((p: { name: string }) => p.name)).toEqual(['Harrow Creek bridge control'])
+    // Other suites may share more projects with the client: the list must be exactly the granted ones.
+    const { rows } = await usePool().query(
+      `select pa.project_id from project_access pa join users u on u.id = pa.user_id join firms f on f.id = pa.firm_id
+       where u.email = $1 and f.slug = $2 order by 1`, [DEMO.client, DEMO.firm])
+    const granted = rows.map((r) => r.project_id)
+    expect(shared.body.map((p: { id: number }) => p.id).sort((a: number, b: number) => a - b)).toEqual(granted)
+    expect(shared.body.map((p: { name: string }) => p.name)).toContain('Harrow Creek bridge control')
+    expect(granted.length).toBeLessThan(all.body.length)
   })
 
   it('counts in the project list belong to each project, not to the whole firm (regression)', async () => {
