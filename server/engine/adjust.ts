@@ -524,7 +524,9 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
       else if (out.valueUnit === 'deg') out.adjusted = out.observed + (v * sc) / 3600
       else out.adjusted = out.observed + v * sc
       if (ri > UNCONTROLLED) {
-        const w = v / (row.sigma * Math.sqrt(ri))
+        // w takes the sign of the residual as reported: rows converted with a
+        // negative scale (a zenith carried by its trigonometric height) flip both.
+        const w = (v / (row.sigma * Math.sqrt(ri))) * Math.sign(sc)
         out.w = w
         out.flagged = Math.abs(w) > wCrit
         if (sigma0 !== null && sigma0 > 0 && tCrit !== null) {
