@@ -1,7 +1,10 @@
-// Formatting shared by the run pages: project units, residual units and the
+// Formatting shared by the run pages: project units, residual units (angles in
+// arcseconds or centesimal seconds, as the project prefers) and the
 // pass / watch / fail rating of an observation's tests.
-import { METRES_PER } from '~~/server/engine/io/units'
-import type { ObservationResult, StationResult } from '~~/server/engine/types'
+// Relative imports (not ~~) so the unit tests can load this module without Nuxt.
+import { METRES_PER } from '../server/engine/io/units'
+import type { ObservationResult, StationResult } from '../server/engine/types'
+import { useProject } from './useProject'
 
 export type Rating = 'pass' | 'watch' | 'fail'
 
@@ -24,7 +27,39 @@ export function rateObservation(o: RunObservation): Rating {
 export const RATING_WORD: Record<Rating, string> = { pass: 'passes', watch: 'watch', fail: 'fails' }
 export const RATING_ICON: Record<Rating, string> = { pass: '✓', watch: '!', fail: '✕' }
 
-export function useRunFormat(units: () => 'm' | 'ft' | 'usft') {
+export type AngleFormat = 'dms' | 'gon'
+
+/** Arcseconds in a full turn: 360° · 60′ · 60″ (sexagesimal degree). */
+export const ARCSEC_PER_TURN = 360 * 60 * 60
+/** Centesimal seconds in a full turn: 400 gon · 100 c · 100 cc (the gon is 1/400 of a full turn, ISO 80000-3). */
+export const CC_PER_TURN = 400 * 100 * 100
+
+/**
+ * Arcseconds to centesimal seconds, derived from the two definitions of a full
+ * turn (1 gon = 3240″ = 10 000 cc, so 1 cc = 0.324″); multiplied first so
+ * whole-gon values stay exact in floating point.
+ */
+export function arcsecToCc(arcsec: number): number {
+  return (arcsec * CC_PER_TURN) / ARCSEC_PER_TURN
+}
+
+/** A small angle (residual, σ, MDB) held in arcseconds, in the project's angular unit. */
+export function smallAngle(arcsec: number, format: AngleFormat): number {
+  return format === 'gon' ? arcsecToCc(arcsec) : arcsec
+}
+
+/** The label of a small angle: ″ for DMS projects, cc for gon projects. */
+export function smallAngleUnit(format: AngleFormat): '″' | 'cc' {
+  return format === 'gon' ? 'cc' : '″'
+}
+
+/**
+ * `angleFormat` defaults to the project the page belongs to (loaded by the
+ * project shell), so every run view shows angles the way the project prefers.
+ */
+export function useRunFormat(units: () => 'm' | 'ft' | 'usft', angleFormat?: () => AngleFormat | null | undefined) {
+  const shell = angleFormat ? null : useProject().project
+  const angles = (): AngleFormat => (angleFormat ? angleFormat() : shell?.value?.angleFormat) ?? 'dms'
   const k = () => METRES_PER[units()]
   const unit = () => UNIT_LABEL[units()]
   /** a coordinate or length in project units */
@@ -35,11 +70,14 @@ export function useRunFormat(units: () => 'm' | 'ft' | 'usft') {
     return units() === 'm' ? (m * 1000).toFixed(d) : (m / k()).toFixed(4)
   }
   const smallUnit = () => (units() === 'm' ? 'mm' : unit())
-  /** a residual / MDB in its natural unit: mm for lengths, ″ for angles */
-  const natural = (v: number | null, u: 'm' | 'arcsec', d = 1) => (v === null ? '—' : u === 'm' ? (v * 1000).toFixed(d) : v.toFixed(d))
-  const naturalUnit = (u: 'm' | 'arcsec') => (u === 'm' ? 'mm' : '″')
+  /** a residual / σ / MDB in its natural unit: mm for lengths, ″ or cc for angles */
+  const natural = (v: number | null | undefined, u: 'm' | 'arcsec', d = 1) =>
+    (v === null || v === undefined ? '—' : u === 'm' ? (v * 1000).toFixed(d) : smallAngle(v, angles()).toFixed(d))
+  const naturalUnit = (u: 'm' | 'arcsec') => (u === 'm' ? 'mm' : smallAngleUnit(angles()))
+  /** words for the angular unit, for tooltips */
+  const angleWords = () => (angles() === 'gon' ? 'centesimal seconds (cc, 1 gon = 10 000 cc)' : 'arcseconds (″)')
   const num = (v: number | null | undefined, d = 2) => (v === null || v === undefined || !Number.isFinite(v) ? '—' : v.toFixed(d))
-  return { len, small, smallUnit, unit, natural, naturalUnit, num }
+  return { len, small, smallUnit, unit, natural, naturalUnit, angleWords, num }
 }
 
 export function kindLabel(kind: string): string {
