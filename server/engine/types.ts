@@ -58,6 +58,11 @@ export interface ObservationRecord {
   excluded?: boolean
   /** caller's key (e.g. database id), echoed in results */
   id?: number | string
+  /**
+   * the unit the source wrote the value in (m, ft, usft, deg, dms, gon, rad;
+   * LandXML may also give mm, cm, km, in); `value` is still SI. Kept for the record only.
+   */
+  unit?: string
 }
 
 /** A-priori precision of an instrument and its set-up. */
