@@ -352,6 +352,7 @@ function readRow(
     set: obsKind === 'direction' && setText !== '' ? setText : null,
     lengthKm,
     note: row('note'),
+    unit: isAngle ? angleUnit : lengthUnit,
   })
 }
 

@@ -54,6 +54,13 @@ const LINEAR_UNITS: Record<string, number> = {
 
 type AngularUnit = 'radians' | 'grads' | 'decimal degrees' | 'decimal dd.mm.ss'
 const ANGULAR_UNITS: readonly AngularUnit[] = ['radians', 'grads', 'decimal degrees', 'decimal dd.mm.ss']
+// Short symbols stored beside each value as "the unit the file used" (the
+// same symbols the CSV reader uses; the LandXML-only metric multiples and the
+// inch get their usual abbreviations). Packed dd.mmss is a DMS notation.
+const LINEAR_SYMBOLS: Record<string, string> = {
+  meter: 'm', millimeter: 'mm', centimeter: 'cm', kilometer: 'km', foot: 'ft', ussurveyfoot: 'usft', inch: 'in',
+}
+const ANGULAR_SYMBOLS: Record<AngularUnit, string> = { radians: 'rad', grads: 'gon', 'decimal degrees': 'deg', 'decimal dd.mm.ss': 'dms' }
 
 // Elements that describe the job rather than measure it; read past quietly.
 const METADATA = new Set([
@@ -231,6 +238,7 @@ class Context {
   controls: ControlRecord[] = []
   observations: ObservationRecord[] = []
   private metresPerUnit = 1
+  private linearSymbol = 'm'
   private angular: AngularUnit = 'decimal degrees'
   private direction: AngularUnit = 'decimal degrees'
   private setups = new Map<string, Setup>()
@@ -268,7 +276,10 @@ class Context {
     const factor = LINEAR_UNITS[linear.toLowerCase()]
     if (factor === undefined) {
       this.err(sys, 'linearUnit', `'${clip(linear)}' is not a supported linear unit (meter, millimeter, centimeter, kilometer, foot, USSurveyFoot, inch)`)
-    } else this.metresPerUnit = factor
+    } else {
+      this.metresPerUnit = factor
+      this.linearSymbol = LINEAR_SYMBOLS[linear.toLowerCase()] ?? 'm'
+    }
     const ang = this.angularUnit(sys, 'angularUnit')
     if (ang) this.angular = ang
     // directionUnit defaults to angularUnit when absent.
@@ -498,6 +509,7 @@ class Context {
         set: kind === 'direction' ? setup.set : null,
         lengthKm: null,
         note: (a.desc ?? '').trim(),
+        unit: kind === 'slope_distance' || kind === 'horizontal_distance' ? this.linearSymbol : ANGULAR_SYMBOLS[kind === 'azimuth' ? this.direction : this.angular],
       })
     }
   }

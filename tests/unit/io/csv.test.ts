@@ -309,3 +309,24 @@ describe('instrument profile', () => {
     expect(readObservationCsv(`${HEADER}\nslope_distance,A,,B,10,,2\n`, { profile: p }).ok).toBe(true)
   })
 })
+
+describe('the unit as written is kept beside the SI value', () => {
+  it('normalises the spellings people type to m, ft, usft, deg, dms, gon, rad', () => {
+    expect(one('slope_distance,A,,B,100,Feet,,,,,,').unit).toBe('ft')
+    expect(one('horizontal_distance,A,,B,100,US survey foot,,,,,,').unit).toBe('usft')
+    expect(one('height_difference,A,,B,1.2,Metres,3,,,,,').unit).toBe('m')
+    expect(one('direction,A,,B,12.5,Degrees,,,,,,').unit).toBe('deg')
+    expect(one('zenith,A,,B,100,grads,,,,,,').unit).toBe('gon')
+    expect(one('azimuth,A,,B,1.5,Radian,,,,,,').unit).toBe('rad')
+    expect(one('angle,A,C,B,12 30 00,DMS,,,,,,').unit).toBe('dms')
+  })
+  it('a blank unit cell records the default the value was read in: m for lengths, dms for angles', () => {
+    expect(one('slope_distance,A,,B,100,,,,,,,').unit).toBe('m')
+    expect(one('direction,A,,B,12 30 00,,,,,,,').unit).toBe('dms')
+  })
+  it('the value itself is still metres (ft = 0.3048 m, NIST Handbook 44 App. C)', () => {
+    const o = one('slope_distance,A,,B,100,ft,,,,,,')
+    expect(o.value).toBeCloseTo(30.48, 12)
+    expect(o.unit).toBe('ft')
+  })
+})

@@ -173,3 +173,30 @@ describe('errors and warnings name the element and its source line', () => {
     expect(b.observations).toEqual(a.observations)
   })
 })
+
+describe('the file unit is kept beside the SI value', () => {
+  it('U.S. survey feet for distances, grads for angles, the direction unit (radians) for the azimuth', () => {
+    const r = ok(readLandXml(fixture('landxml-imperial.xml')))
+    expect(r.observations.map((o) => [o.kind, o.unit])).toEqual([
+      ['direction', 'gon'],
+      ['zenith', 'gon'],
+      ['azimuth', 'rad'],
+      ['slope_distance', 'usft'],
+    ])
+    // 3937 US survey feet = 1200 m (1200/3937 m per foot, 24 FR 5348, 1959)
+    expect(r.observations[3]!.value).toBeCloseTo(1200, 9)
+  })
+  it('metres with decimal degrees; international feet with packed dd.mm.ss', () => {
+    const body = '<Survey><InstrumentSetup stationName="A"><RawObservation horizAngle="123.4506" slopeDistance="100"><TargetPoint pntRef="B"/></RawObservation></InstrumentSetup></Survey>'
+    expect(ok(readLandXml(doc(body))).observations.map((o) => o.unit)).toEqual(['deg', 'm'])
+    const feet = ok(readLandXml(doc(body, '<Units><Imperial linearUnit="foot" angularUnit="decimal dd.mm.ss"/></Units>')))
+    expect(feet.observations.map((o) => o.unit)).toEqual(['dms', 'ft'])
+    expect(feet.observations[1]!.value).toBeCloseTo(30.48, 12)
+  })
+  it('a metric multiple keeps its own symbol', () => {
+    const body = '<Survey><InstrumentSetup stationName="A"><RawObservation horizDistance="100000"><TargetPoint pntRef="B"/></RawObservation></InstrumentSetup></Survey>'
+    const r = ok(readLandXml(doc(body, '<Units><Metric linearUnit="millimeter" angularUnit="decimal degrees"/></Units>')))
+    expect(r.observations[0]).toMatchObject({ kind: 'horizontal_distance', unit: 'mm' })
+    expect(r.observations[0]!.value).toBeCloseTo(100, 12)
+  })
+})
