@@ -210,6 +210,24 @@ async function insertObservations(tx: Tx, firmId: number, projectId: number, set
 }
 
 /**
+ * PostgreSQL text cannot hold the NUL character (U+0000), so a name or note
+ * carrying one would fail in the database; it is refused here instead, with
+ * its line and column, like any other bad cell.
+ */
+function nulCharacters(read: Extract<ReadResult, { ok: true }>): ReadIssue[] {
+  const issues: ReadIssue[] = []
+  const check = (line: number, column: string, v: string | null | undefined) => {
+    if (v && v.includes('\u0000')) issues.push({ line, column, message: 'holds a NUL character (U+0000), which cannot be stored; remove it' })
+  }
+  for (const c of read.controls) check(c.line, 'at', c.station)
+  for (const o of read.observations) {
+    check(o.line, 'at', o.at); check(o.line, 'from', o.from); check(o.line, 'to', o.to)
+    check(o.line, 'set', o.set); check(o.line, 'note', o.note)
+  }
+  return issues
+}
+
+/**
  * Parses and stores one file. Any bad line → 422 listing every one; the same
  * bytes already in the project → 409 naming the earlier set; nothing is
  * written unless everything is.
@@ -236,6 +254,8 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
   const read = format === 'landxml' ? readLandXml(text) : readObservationCsv(text, profileRow ? { profile: profileOf(profileRow) } : {})
   text = undefined
   if (!read.ok) refuse(read)
+  const unstorable = nulCharacters(read)
+  if (unstorable.length > 0) refuse({ ok: false, errors: unstorable, warnings: read.warnings })
 
   const names = new Set<string>()
   for (const o of read.observations) { names.add(o.at); names.add(o.to); if (o.from) names.add(o.from) }

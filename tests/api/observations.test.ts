@@ -2,10 +2,10 @@
 // (DESIGN.md sections 4, 6, 7): counts come from counting the fixture rows
 // here, not from our own output; bytes are compared by SHA-256.
 import { readFileSync } from 'node:fs'
-import { and, eq } from 'drizzle-orm'
+import { and, asc, eq, sql } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { closeDb, useDb } from '../../server/db/client'
-import { observations } from '../../server/db/schema'
+import { auditLog, observations } from '../../server/db/schema'
 import { as, DEMO, type Client } from '../support/http'
 import { auditRows, counts, fileForm, freshProject, outsiderCrewClient, sha256 } from './fielddata-helpers'
 
@@ -247,5 +247,99 @@ describe('observations', () => {
     expect(good.body.observations).toBe(2)
     const sets = await crew.get(`${base(p)}/observation-sets`)
     expect(sets.body[0].format).toBe('manual')
+  })
+})
+
+describe('what is stored for each observation', () => {
+  const rowsOf = (setId: number) => useDb().select().from(observations).where(eq(observations.setId, setId)).orderBy(asc(observations.line), asc(observations.id))
+
+  it('keeps the unit the file used beside a value in metres or radians', async () => {
+    const p = await freshProject(chief, 'Units kept')
+    const text = [HEADER,
+      'horizontal_distance,A,,B,328.084,ft,2,,,,,', // line 2
+      'slope_distance,A,,B,100,usft,2,,,,,', // line 3
+      'direction,A,,B,100,gon,,,,,,', // line 4
+      'zenith,A,,B,90 00 00,,,,,,,', // line 5: blank unit, read as dms
+      'height_difference,A,,B,1.5,,3,,,,,', // line 6: blank unit, read as m
+    ].join('\n') + '\n'
+    const up = await chief.post(`${base(p)}/observation-sets`, fileForm('feet.csv', text))
+    expect(up.status).toBe(201)
+    const rows = await rowsOf(up.body.id)
+    expect(rows.map((r) => [r.line, r.unit])).toEqual([[2, 'ft'], [3, 'usft'], [4, 'gon'], [5, 'dms'], [6, 'm']])
+    // values are SI: ft = 0.3048 m and usft = 1200/3937 m (NIST Handbook 44 App. C), 100 gon = π/2 (ISO 80000-3)
+    expect(rows[0]!.value).toBeCloseTo(328.084 * 0.3048, 10)
+    expect(rows[1]!.value).toBeCloseTo(100 * 1200 / 3937, 10)
+    expect(rows[2]!.value).toBeCloseTo(Math.PI / 2, 12)
+    expect(rows[3]!.value).toBeCloseTo(Math.PI / 2, 12)
+    expect(rows.every((r) => r.originalValue === r.value)).toBe(true)
+  })
+
+  it('keeps the LandXML file units (U.S. survey feet, grads, radians for the azimuth)', async () => {
+    const p = await freshProject(chief, 'Units xml')
+    const xml = readFileSync('tests/fixtures/io/landxml-imperial.xml')
+    const up = await chief.post(`${base(p)}/observation-sets`, fileForm('imperial.xml', xml))
+    expect(up.status).toBe(201)
+    const rows = await rowsOf(up.body.id)
+    expect(rows.map((r) => [r.kind, r.unit]).sort()).toEqual([['azimuth', 'rad'], ['direction', 'gon'], ['slope_distance', 'usft'], ['zenith', 'gon']])
+    // 3937 US survey feet = 1200 m (24 FR 5348, 1959)
+    expect(rows.find((r) => r.kind === 'slope_distance')!.value).toBeCloseTo(1200, 9)
+  })
+
+  it('stores names, set names and notes with tabs, backslashes, line breaks and a literal \\N exactly; blanks stay null', async () => {
+    const p = await freshProject(chief, 'Escapes')
+    const text = [HEADER,
+      'direction,ST\\1,,B\\2,10 00 00,dms,,,,"R\t1",,"a\tb \\ c \\N d"', // line 2
+      'horizontal_distance,ST\\1,,B\\2,25.5,m,,,,,,"first line', // line 3 (the note spans two lines)
+      'second line\\"', // line 4
+      'height_difference,ST\\1,,B\\2,0.25,m,2,,,,,\\N', // line 5: a note that is literally backslash-N
+    ].join('\n') + '\n'
+    const up = await chief.post(`${base(p)}/observation-sets`, fileForm('escapes.csv', text))
+    expect(up.status).toBe(201)
+    const rows = await rowsOf(up.body.id)
+    expect(rows.map((r) => r.line)).toEqual([2, 3, 5])
+    expect(rows.map((r) => [r.at, r.to])).toEqual([['ST\\1', 'B\\2'], ['ST\\1', 'B\\2'], ['ST\\1', 'B\\2']])
+    expect(rows[0]!.setName).toBe('R\t1')
+    expect(rows[0]!.note).toBe('a\tb \\ c \\N d')
+    expect(rows[1]!.note).toBe('first line\nsecond line\\')
+    expect(rows[2]!.note).toBe('\\N')
+    // blank cells are SQL null, not empty strings or zeros
+    expect(rows[1]).toMatchObject({ from: null, sigma: null, hi: null, ht: null, setName: null, lengthKm: null, excluded: false })
+    expect(rows[2]!.sigma).toBeCloseTo(0.002, 15)
+  })
+
+  it('refuses a NUL character in a cell with its line and column, and writes nothing', async () => {
+    const p = await freshProject(chief, 'NUL')
+    const text = `${HEADER}\nhorizontal_distance,A,,B,10.5,m,2,,,,,ok\nhorizontal_distance,A,,B,10.6,m,2,,,,,bad\u0000note\n`
+    const r = await chief.post(`${base(p)}/observation-sets`, fileForm('nul.csv', text))
+    expect(r.status).toBe(422)
+    expect(r.body.errors).toEqual([expect.objectContaining({ line: 3, column: 'note' })])
+    expect(await counts(p)).toEqual({ observations: 0, sets: 0, stations: 0 })
+  })
+
+  it('rolls back the set, control, stations and audit row when the database refuses a row half-way through', async () => {
+    const p = await freshProject(chief, 'Rollback')
+    // A trigger that refuses one marked row stands in for any failure during the bulk write.
+    const marker = `refuse-${Date.now()}-${Math.random().toString(36).slice(2, 8)}`
+    const fn = `tp_test_refuse_${marker.replace(/-/g, '_')}`
+    const db = useDb()
+    await db.execute(sql.raw(`create function ${fn}() returns trigger language plpgsql as $$ begin raise exception 'refused by test'; end $$`))
+    await db.execute(sql.raw(`create trigger ${fn} before insert on observations for each row when (new.note = '${marker}') execute function ${fn}()`))
+    try {
+      const lines = [HEADER, 'control,K1,,,1000 2000,m,,,,,,']
+      for (let i = 0; i < 5000; i++) lines.push(`horizontal_distance,K1,,T${i % 50},${(100 + i / 1000).toFixed(3)},m,2,,,,,${i === 4000 ? marker : ''}`)
+      const r = await chief.post(`${base(p)}/observation-sets`, fileForm('refused.csv', lines.join('\n') + '\n'))
+      expect(r.status).toBe(500)
+    } finally {
+      await db.execute(sql.raw(`drop trigger if exists ${fn} on observations`))
+      await db.execute(sql.raw(`drop function if exists ${fn}()`))
+    }
+    expect(await counts(p)).toEqual({ observations: 0, sets: 0, stations: 0 })
+    const audits = await db.select().from(auditLog).where(and(eq(auditLog.projectId, p), eq(auditLog.action, 'observation_set.upload')))
+    expect(audits).toHaveLength(0)
+    // the connection went back to the pool in a usable state: the same file without the marker is stored
+    const lines = [HEADER, 'control,K1,,,1000 2000,m,,,,,,', 'horizontal_distance,K1,,T1,100.000,m,2,,,,,']
+    const again = await chief.post(`${base(p)}/observation-sets`, fileForm('after.csv', lines.join('\n') + '\n'))
+    expect(again.status).toBe(201)
+    expect(await counts(p)).toEqual({ observations: 1, sets: 1, stations: 2 })
   })
 })
