@@ -6,7 +6,7 @@
 import { createHash } from 'node:crypto'
 import { Readable } from 'node:stream'
 import { pipeline } from 'node:stream/promises'
-import pg from 'pg'
+import type { ClientBase } from 'pg'
 import { from as copyFrom } from 'pg-copy-streams'
 import { and, asc, desc, eq, ilike, or, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
@@ -148,7 +148,7 @@ const COPY_SPECIAL = /[\\\t\n\r]/
 const COPY_ESCAPES: Record<string, string> = { '\\': '\\\\', '\t': '\\t', '\n': '\\n', '\r': '\\r' }
 
 /** A text value in COPY text format. */
-export function copyText(v: string | null | undefined): string {
+function copyText(v: string | null | undefined): string {
   if (v === null || v === undefined) return '\\N'
   return COPY_SPECIAL.test(v) ? v.replace(/[\\\t\n\r]/g, (c) => COPY_ESCAPES[c]!) : v
 }
@@ -188,12 +188,12 @@ function* copyRows(firmId: number, projectId: number, setId: number, recs: Obser
  * turns a future change there into a clear error instead of a write outside
  * the transaction.
  */
-function clientOf(tx: Tx): pg.ClientBase {
+function clientOf(tx: Tx): ClientBase {
   const client = (tx._.session as unknown as { client?: unknown }).client
-  if (!(client instanceof pg.Client) && typeof (client as { query?: unknown })?.query !== 'function') {
+  if (typeof (client as { query?: unknown } | undefined)?.query !== 'function') {
     throw new Error('cannot reach the transaction\'s pg client for COPY (drizzle-orm internals changed)')
   }
-  return client as pg.ClientBase
+  return client as ClientBase
 }
 
 /**
