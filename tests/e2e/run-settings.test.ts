@@ -153,8 +153,15 @@ describe('crew members on the Instruments page', () => {
     expect(await editor.getByRole('alert').innerText()).toContain('are not members of this firm')
     await shot(page, 'run-settings-4-crew-editor')
 
-    await editor.getByRole('button', { name: 'Save 1 member' }).click()
-    await item.getByText('Ilse Brandvold').waitFor()
+    const [saved] = await Promise.all([
+      page.waitForResponse((r) => r.request().method() === 'PATCH' && /\/crews\/\d+$/.test(r.url())),
+      editor.getByRole('button', { name: 'Save 1 member' }).click(),
+    ])
+    expect(saved.status()).toBe(200)
+    expect(saved.request().postDataJSON()).toEqual({ memberIds: [expect.any(Number)] })
+    await editor.waitFor({ state: 'detached' })
+    // the crew's summary line (not the closed editor) now names the member
+    expect(await item.locator('> div').first().innerText()).toContain('Ilse Brandvold')
     const crews = await (await page.request.get(`/api/firms/${DEMO.firm}/crews`)).json() as { name: string; members: { email: string }[] }[]
     expect(crews.find((c) => c.name === crewName)?.members.map((m) => m.email)).toEqual([DEMO.crew])
     await shot(page, 'run-settings-5-crews')
