@@ -195,28 +195,8 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   }
 
   // ---- station indexing -----------------------------------------------------------
-  const planeNames: string[] = []
-  const planeIdx = new Map<string, number>()
-  const pIdx = (s: string) => {
-    let k = planeIdx.get(s)
-    if (k === undefined) {
-      k = planeNames.length
-      planeIdx.set(s, k)
-      planeNames.push(s)
-    }
-    return k
-  }
-  const heightNames: string[] = []
-  const heightIdx = new Map<string, number>()
-  const hIdx = (s: string) => {
-    let k = heightIdx.get(s)
-    if (k === undefined) {
-      k = heightNames.length
-      heightIdx.set(s, k)
-      heightNames.push(s)
-    }
-    return k
-  }
+  const { names: planeNames, index: planeIdx, add: pIdx } = stationIndex()
+  const { names: heightNames, index: heightIdx, add: hIdx } = stationIndex()
 
   const planeDefs: { def: PlaneDef; rec: ObservationRecord; zenith?: number; slope?: number; cf?: number }[] = []
   const heightDefs: { out: number; at: number; to: number; value: number; rec: ObservationRecord; slope?: number; zenith?: number }[] = []
@@ -1216,4 +1196,20 @@ function cuthillMcKee(n: number, edges: number[][]): number[] {
     }
   }
   return order
+}
+
+/** Station names numbered in order of first use: the unknowns' station index of one network. */
+function stationIndex() {
+  const names: string[] = []
+  const index = new Map<string, number>()
+  const add = (name: string) => {
+    let k = index.get(name)
+    if (k === undefined) {
+      k = names.length
+      index.set(name, k)
+      names.push(name)
+    }
+    return k
+  }
+  return { names, index, add }
 }

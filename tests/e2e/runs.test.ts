@@ -13,7 +13,7 @@ let page: Page
 let base: string
 
 beforeAll(async () => {
-  const fx = await projectWithNetwork(DEMO.firm, 'Kestrel Ford e2e', DEMO_CSV)
+  const fx = await projectWithNetwork(DEMO.firm, 'Harrow Creek e2e', DEMO_CSV)
   base = `/f/${DEMO.firm}/projects/${fx.projectId}`
   browser = await launch()
   page = await newPage(browser)
