@@ -31,6 +31,14 @@ fi
 
 log "running tests"
 status=0
-npx vitest run "$@" || status=$?
+summary="$ROOT/.data/vitest-summary.json"
+rm -f "$summary"
+npx vitest run --reporter=default --reporter=json --outputFile.json="$summary" "$@" || status=$?
+# One plain closing line that any CI reads the same way.
+if [ -f "$summary" ]; then
+  node -e 'const r = JSON.parse(require("fs").readFileSync(process.argv[1], "utf8"));
+    const skipped = (r.numPendingTests || 0) + (r.numTodoTests || 0);
+    console.log(`Tests: ${r.numPassedTests} passed, ${r.numFailedTests} failed` + (skipped ? `, ${skipped} skipped` : ""))' "$summary"
+fi
 log "tests finished in $(( $(date +%s) - started )) s"
 exit $status
