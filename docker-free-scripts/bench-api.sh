@@ -16,5 +16,6 @@ PG_EXTRA_OPTS="-c fsync=off -c synchronous_commit=off" pg_up pg-test "$PGPORT"
 pg_database "$PGPORT" "${TIEPOINT_BENCH_DB:-tiepoint_bench}" fresh
 migrate
 ensure_build
+npx tsx server/db/seed.ts
 node --import tsx tests/bench/store.ts
 node --import tsx tests/bench/api.ts
