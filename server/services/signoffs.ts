@@ -131,6 +131,8 @@ export interface SignoffPreview {
   check: AccuracyCheck
   stations: (SignedStation & { passes: boolean; selectedByDefault: boolean })[]
   defaultStations: string[]
+  /** statistical tests the run did not pass; signing then needs acknowledgeFailedTests */
+  testWarnings: string[]
 }
 
 /** What the sign-off page shows for one finished run before anyone signs. */
@@ -148,6 +150,7 @@ export async function previewSignoff(ctx: FirmContext, project: Project, runNumb
       .filter((s) => s.east !== null && s.north !== null)
       .map((s) => ({ ...toSignedStation(s), passes: !failing.has(s.name), selectedByDefault: defaults.includes(s.name) })),
     defaultStations: defaults,
+    testWarnings: failedTests(result),
   }
 }
 
@@ -157,6 +160,8 @@ export const signoffCreateSchema = z.object({
   statement: z.string().trim().min(10, 'is required: at least 10 characters saying what you certify').max(5000),
   password: z.string().min(1, 'is required: confirm with your password'),
   stations: z.array(z.string().trim().min(1)).min(1, 'must name at least one station').max(5000).optional(),
+  /** required when the run failed its global test or still has flagged observations */
+  acknowledgeFailedTests: z.boolean().optional(),
 }).strict()
 export type SignoffCreate = z.infer<typeof signoffCreateSchema>
 
@@ -208,8 +213,14 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
   }
   const run = await findRun(ctx.firm.id, project.id, runNumber)
   const result = doneResult(run)
+  const testWarnings = failedTests(result)
+  if (testWarnings.length && body.acknowledgeFailedTests !== true) {
+    throw new ApiError(422, `Run ${runNumber} did not pass its statistical tests: ${testWarnings.join('; ')}. Read the run report, then confirm that you sign regardless; nothing was signed.`, [
+      { field: 'acknowledgeFailedTests', message: `acknowledgeFailedTests: must be true to sign a run that ${testWarnings.join(' and ')}` },
+    ])
+  }
   const profile = await getToleranceProfile(ctx.firm.id, project.toleranceProfileId)
-  const check = checkAccuracy(profile, result)
+  const check = { ...checkAccuracy(profile, result), ...(testWarnings.length ? { acknowledgedFailedTests: testWarnings } : {}) }
   const byName = new Map(result.stations.map((s) => [s.name, s]))
   const names = body.stations ? [...new Set(body.stations)] : defaultSignStations(result, check)
   if (names.length === 0) {
@@ -245,12 +256,21 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
     }
     await audit(tx, {
       firmId: ctx.firm.id, userId: ctx.user.id, action: 'signoff.create', entityType: 'signoff', entityId: s!.id, projectId: project.id,
-      after: { run: run.number, stations: signed.map((x) => x.name), sha256, inputHash: run.inputHash },
+      after: { run: run.number, stations: signed.map((x) => x.name), sha256, inputHash: run.inputHash, ...(testWarnings.length ? { acknowledgedFailedTests: testWarnings } : {}) },
     })
     return s!
   })
   await notifySignoffCompleted({ firmId: ctx.firm.id, projectId: project.id, runNumber: run.number, signerName: signer.name, stationCount: signed.length, sha256 })
   return signoffDto(row, run.number, { superseded: false, reason: null })
+}
+
+/** What a signer must knowingly accept: a failed global test, flagged observations still in use. */
+export function failedTests(result: AdjustmentResult): string[] {
+  const out: string[] = []
+  if (!result.globalTest.passed) out.push('failed its global test')
+  const flagged = result.observations.filter((o) => !o.excluded && (o.flagged || o.tauFlagged)).length
+  if (flagged) out.push(`still uses ${flagged} flagged observation${flagged === 1 ? '' : 's'}`)
+  return out
 }
 
 export async function requestSignoff(ctx: FirmContext, project: Project, runNumber: number, note?: string) {

@@ -90,7 +90,7 @@ export const ROUTES: RouteRow[] = [
   { method: 'POST', path: '/api/firms/:firm/projects/:project/adjustments/:number/signoff-request', body: () => ({ note: MARK }) },
   {
     method: 'POST', path: '/api/firms/:firm/projects/:project/adjustments/:number/signoffs', actor: 'signer',
-    body: () => ({ statement: `${MARK}: certified by someone who must not be able to`, password: demoPassword }),
+    body: () => ({ statement: `${MARK}: certified by someone who must not be able to`, password: demoPassword, acknowledgeFailedTests: true }),
   },
   { method: 'GET', path: '/api/firms/:firm/projects/:project/crews' },
   { method: 'POST', path: '/api/firms/:firm/projects/:project/crews', body: (ids) => ({ crewId: ids.crew }) },

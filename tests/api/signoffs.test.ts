@@ -45,7 +45,7 @@ describe('before signing', () => {
 
 describe('who may sign', () => {
   it('a party chief gets 403, field crew 403, a client 404 and another firm 404', async () => {
-    const body = { statement, password: 'tiepoint-demo' }
+    const body = { statement, password: 'tiepoint-demo', acknowledgeFailedTests: true }
     expect((await chief.post(signPath(), body)).status).toBe(403)
     expect((await (await as(DEMO.crew)).post(signPath(), body)).status).toBe(403)
     expect((await (await as(DEMO.client)).post(signPath(), body)).status).toBe(404)
@@ -59,7 +59,7 @@ describe('who may sign', () => {
     const [u] = await db.insert(users).values({ email, name: 'Ada Unlicensed (invented)', passwordHash: await hashPassword('tiepoint-demo') }).returning()
     const [firm] = await db.select().from(firms).where(eq(firms.slug, DEMO.firm))
     await db.insert(memberships).values({ firmId: firm!.id, userId: u!.id, role: 'licensed_surveyor' })
-    const r = await (await as(email)).post(signPath(), { statement, password: 'tiepoint-demo' })
+    const r = await (await as(email)).post(signPath(), { statement, password: 'tiepoint-demo', acknowledgeFailedTests: true })
     expect(r.status).toBe(422)
     expect(r.body.message).toMatch(/licence number and jurisdiction/)
     expect(r.body.errors.map((e: any) => e.field)).toEqual(['licenceNumber', 'licenceJurisdiction'])
@@ -67,14 +67,14 @@ describe('who may sign', () => {
 
   it('a wrong password answers 422 on the password field and signs nothing', async () => {
     const before = await useDb().select().from(signoffs).where(eq(signoffs.projectId, fx.projectId))
-    const r = await surveyor.post(signPath(), { statement, password: 'not-my-password' })
+    const r = await surveyor.post(signPath(), { statement, password: 'not-my-password', acknowledgeFailedTests: true })
     expect(r.status).toBe(422)
     expect(r.body.errors[0].field).toBe('password')
     expect(await useDb().select().from(signoffs).where(eq(signoffs.projectId, fx.projectId))).toHaveLength(before.length)
   })
 
   it('an unknown station is named in the 422', async () => {
-    const r = await surveyor.post(signPath(), { statement, password: 'tiepoint-demo', stations: ['KF01', 'NOPE9'] })
+    const r = await surveyor.post(signPath(), { statement, password: 'tiepoint-demo', stations: ['KF01', 'NOPE9'], acknowledgeFailedTests: true })
     expect(r.status).toBe(422)
     expect(r.body.errors).toEqual([{ field: 'stations.1', message: expect.stringContaining("'NOPE9' is not a station") }])
   })
@@ -82,9 +82,25 @@ describe('who may sign', () => {
 
 describe('a sign-off', () => {
   let signed: any
-  it('answers 201 with id and SHA-256 and stores the run, stations, signer, licence and statement', async () => {
+  it('refuses a run that failed its tests unless the signer acknowledges it (422 naming the field), and writes nothing', async () => {
+    // The demo network still holds its planted blunder: the global test fails and one observation is flagged.
+    const before = (await useDb().select().from(signoffs)).length
     const r = await surveyor.post(signPath(), { statement, password: 'tiepoint-demo' })
+    expect(r.status).toBe(422)
+    expect(r.body.errors.map((e: { field: string }) => e.field)).toEqual(['acknowledgeFailedTests'])
+    expect(r.body.message).toMatch(/failed its global test/)
+    expect(r.body.message).toMatch(/flagged observation/)
+    expect((await useDb().select().from(signoffs)).length).toBe(before)
+    const preview = await surveyor.get(`/api/firms/${DEMO.firm}/projects/${fx.projectId}/signoffs/preview?run=${fx.runNumber}`)
+    expect(preview.status).toBe(200)
+    expect(preview.body.testWarnings).toEqual(expect.arrayContaining(['failed its global test']))
+  })
+
+  it('answers 201 with id and SHA-256 and stores the run, stations, signer, licence and statement', async () => {
+    const r = await surveyor.post(signPath(), { statement, password: 'tiepoint-demo', acknowledgeFailedTests: true })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
+    const [ack] = await useDb().select().from(signoffs).where(eq(signoffs.id, r.body.id))
+    expect((ack!.accuracyCheck as { acknowledgedFailedTests?: string[] }).acknowledgedFailedTests).toEqual(expect.arrayContaining(['failed its global test']))
     signed = r.body
     expect(signed.sha256).toMatch(/^[0-9a-f]{64}$/)
     const [row] = await useDb().select().from(signoffs).where(eq(signoffs.id, signed.id))

@@ -34,6 +34,9 @@ describe('sign-off to client download', () => {
     expect(checked).toBeGreaterThan(0)
     await p.getByTestId('statement').fill('Reviewed and certified for the footbridge set-out (browser test).')
     await p.getByTestId('signoff-password').fill('tiepoint-demo')
+    // the demo run failed its global test: signing needs an explicit acknowledgement
+    expect(await p.getByTestId('sign-button').isDisabled()).toBe(true)
+    await p.getByTestId('acknowledge-failed-tests').check()
     await shot(p, 'signoff-page-before')
     await p.getByTestId('sign-button').click()
     await expect.poll(() => p.getByTestId('signed').count(), { timeout: 20_000 }).toBe(1)
