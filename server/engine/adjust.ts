@@ -168,18 +168,10 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
       observed: isAngular(o.kind) ? o.value * RAD_TO_DEG : o.value,
       adjusted: null,
       valueUnit: isAngular(o.kind) ? 'deg' : 'm',
-      residual: null,
       sigma: null,
       residualUnit: isAngular(o.kind) ? 'arcsec' : 'm',
-      redundancy: null,
-      w: null,
-      flagged: false,
-      tau: null,
-      tauFlagged: false,
-      mdb: null,
-      mdbEffect: null,
+      ...notYetTested(),
       excluded: o.excluded === true,
-      weak: false,
       remark: o.excluded === true ? 'excluded by the user' : null,
     })
   }
@@ -410,18 +402,10 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
         observed: value,
         adjusted: null,
         valueUnit: 'm',
-        residual: null,
         sigma: sd,
         residualUnit: 'm',
-        redundancy: null,
-        w: null,
-        flagged: false,
-        tau: null,
-        tauFlagged: false,
-        mdb: null,
-        mdbEffect: null,
+        ...notYetTested(),
         excluded: false,
-        weak: false,
         remark: null,
       })
       return outputs.length - 1
@@ -1212,4 +1196,9 @@ function stationIndex() {
     return k
   }
   return { names, index, add }
+}
+
+/** The statistics of an observation before (or without) an adjustment: none yet. */
+function notYetTested(): Pick<ObservationResult, 'residual' | 'redundancy' | 'w' | 'flagged' | 'tau' | 'tauFlagged' | 'mdb' | 'mdbEffect' | 'weak'> {
+  return { residual: null, redundancy: null, w: null, flagged: false, tau: null, tauFlagged: false, mdb: null, mdbEffect: null, weak: false }
 }
