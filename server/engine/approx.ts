@@ -108,31 +108,40 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
 
 /** Least-squares rotation (or reflection, for mirror-ambiguous distance-only frames) + translation. */
 function fitRigid(pairs: { x: XY; p: XY }[]): (xy: XY) => XY {
-  const mx = mean(pairs.map((q) => q.x))
-  const mp = mean(pairs.map((q) => q.p))
-  const candidates = [1, -1].map((mirror) => {
-    let sa = 0
-    let sb = 0
-    for (const q of pairs) {
-      const xe = mirror * (q.x.e - mx.e)
-      const xn = q.x.n - mx.n
-      const pe = q.p.e - mp.e
-      const pn = q.p.n - mp.n
-      sa += xe * pe + xn * pn
-      sb += xn * pe - xe * pn
-    }
-    const th = Math.atan2(sb, sa)
-    const c = Math.cos(th)
-    const sn = Math.sin(th)
-    const map = (xy: XY): XY => {
-      const xe = mirror * (xy.e - mx.e)
-      const xn = xy.n - mx.n
-      return { e: mp.e + xe * c + xn * sn, n: mp.n - xe * sn + xn * c }
-    }
+  const candidates = ([1, -1] as const).map((mirror) => {
+    const map = rigidMap(pairs, mirror)
     const err = pairs.reduce((a, q) => a + Math.hypot(map(q.x).e - q.p.e, map(q.x).n - q.p.n), 0)
     return { map, err }
   })
   return candidates[0].err <= candidates[1].err ? candidates[0].map : candidates[1].map
+}
+
+/**
+ * The rotation (about the centroids) and translation that carry local points x
+ * onto placed points p in least squares; `mirror` −1 reflects the local east axis first.
+ * Local (e, n) rotated clockwise by th: e' = e cos + n sin, n' = −e sin + n cos.
+ */
+function rigidMap(pairs: { x: XY; p: XY }[], mirror: 1 | -1): (xy: XY) => XY {
+  const mx = mean(pairs.map((q) => q.x))
+  const mp = mean(pairs.map((q) => q.p))
+  let sa = 0
+  let sb = 0
+  for (const q of pairs) {
+    const xe = mirror * (q.x.e - mx.e)
+    const xn = q.x.n - mx.n
+    const pe = q.p.e - mp.e
+    const pn = q.p.n - mp.n
+    sa += xe * pe + xn * pn
+    sb += xn * pe - xe * pn
+  }
+  const th = Math.atan2(sb, sa)
+  const c = Math.cos(th)
+  const sn = Math.sin(th)
+  return (xy: XY): XY => {
+    const xe = mirror * (xy.e - mx.e)
+    const xn = xy.n - mx.n
+    return { e: mp.e + xe * c + xn * sn, n: mp.n - xe * sn + xn * c }
+  }
 }
 
 function seed(input: PlaneApproxInput, coords: Map<string, XY>, orientation: Float64Array): void {
@@ -321,23 +330,8 @@ function freeStation(dirs: ApproxDirection[], circles: { cName: string; r: numbe
     const r = circles.find((c) => c.cName === d.to)!.r
     loc.push({ x: { e: r * Math.sin(d.value), n: r * Math.cos(d.value) }, p: coords.get(d.to)! })
   }
-  const mx = mean(loc.map((l) => l.x))
-  const mp = mean(loc.map((l) => l.p))
-  let sa = 0
-  let sb = 0
-  for (const l of loc) {
-    const xe = l.x.e - mx.e
-    const xn = l.x.n - mx.n
-    const pe = l.p.e - mp.e
-    const pn = l.p.n - mp.n
-    sa += xe * pe + xn * pn
-    sb += xn * pe - xe * pn
-  }
-  const th = Math.atan2(sb, sa)
-  // local (e, n) rotated clockwise by th (azimuth offset): e' = e cos + n sin, n' = −e sin + n cos
-  const c = Math.cos(th)
-  const s = Math.sin(th)
-  return { e: mp.e - (mx.e * c + mx.n * s), n: mp.n - (-mx.e * s + mx.n * c) }
+  // the set's origin is the instrument station
+  return rigidMap(loc, 1)({ e: 0, n: 0 })
 }
 
 function mean(ps: XY[]): XY {
