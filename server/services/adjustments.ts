@@ -16,6 +16,7 @@ import type { FirmContext } from '../utils/guard'
 import { checkRelative, describeTolerance, semiMajorAt95, type ToleranceSpec } from './accuracy'
 import { audit } from './audit'
 import { notifyRunFailed } from './notifications'
+import type { RunWeighting } from '../../shared/types/run'
 import { loadRunInputs, RunInputError } from './run-inputs'
 import { ADJUST_QUEUE, sendAdjustJob, type AdjustJob } from './run-queue'
 
@@ -60,6 +61,8 @@ export async function queueRun(ctx: FirmContext, project: Project, body: unknown
     const [row] = await tx.insert(adjustments).values({
       firmId: ctx.firm.id, projectId: project.id, number: next, settings: inputs.settings as unknown as Record<string, unknown>,
       inputHash: inputs.hash, status: 'queued', createdBy: ctx.user.id,
+      // known before the run is computed, so a queued run's page already says how it will be weighted
+      summary: { weighting: inputs.weighting, warnings: inputs.warnings },
     }).returning()
     await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'adjustment.queue', entityType: 'adjustment', entityId: row!.id, projectId: project.id, after: { number: next, settings: inputs.settings, inputHash: inputs.hash } })
     return row!
@@ -119,6 +122,8 @@ export async function getRun(ctx: FirmContext, project: Project, number: number)
     number: run.number, status: run.status, attempts: run.attempts, settings: run.settings, inputHash: run.inputHash,
     createdAt: run.createdAt.toISOString(), startedAt: run.startedAt?.toISOString() ?? null, finishedAt: run.finishedAt?.toISOString() ?? null,
     createdBy: by?.name ?? null, errorText: run.errorText, summary: run.summary,
+    weighting: ((run.summary as { weighting?: RunWeighting[] } | null)?.weighting ?? null),
+    warnings: ((run.summary as { warnings?: string[] } | null)?.warnings ?? []),
     project: { units: project.units, angleFormat: project.angleFormat, crs: project.crs, crsDefinition: project.crsDefinition, tileUrl: ctx.firm.settings?.tileUrl ?? null },
   }
   if (run.status !== 'done' || !run.result) return { ...base, result: null, stations: [], observations: [], relative: [] }
@@ -273,7 +278,7 @@ async function computeAndStore(run: Adjustment): Promise<ProcessOutcome> {
   const outcome = adjustNetwork(inputs.input, inputs.engineSettings)
   const engineMs = Math.round(performance.now() - t0)
   if (!outcome.ok) {
-    await finishFailed(run, outcome.reason, { code: outcome.code, stations: outcome.stations ?? [], engineMs, warnings: inputs.warnings })
+    await finishFailed(run, outcome.reason, { code: outcome.code, stations: outcome.stations ?? [], engineMs, warnings: inputs.warnings, weighting: inputs.weighting })
     return { status: 'failed', reason: outcome.reason }
   }
   const r = outcome.result
@@ -283,7 +288,7 @@ async function computeAndStore(run: Adjustment): Promise<ProcessOutcome> {
     const sm95 = Math.abs(settings.confidence - 0.95) < 1e-9 ? rel.semiMajor95 : semiMajorAt95(rel.semiMajor, estimated, planeDof)
     return { rel, check: checkRelative(inputs.tolerance, { distance: rel.distance, semiMajor95: sm95 }) }
   })
-  const summary = buildSummary(r, inputs.tolerance, relChecks.map((c) => c.check.passes), engineMs, inputs.warnings)
+  const summary = buildSummary(r, inputs.tolerance, relChecks.map((c) => c.check.passes), engineMs, inputs.warnings, inputs.weighting)
   const db = useDb()
   await db.transaction(async (tx) => {
     const firmId = run.firmId
@@ -330,8 +335,9 @@ function stripResolved(s: Record<string, unknown>): RunSettings {
   return rest as unknown as RunSettings
 }
 
-function buildSummary(r: AdjustmentResult, tolerance: ToleranceSpec | null, passes: (boolean | null)[], engineMs: number, warnings: string[]) {
+function buildSummary(r: AdjustmentResult, tolerance: ToleranceSpec | null, passes: (boolean | null)[], engineMs: number, warnings: string[], weighting: RunWeighting[]) {
   const used = r.observations.filter((o) => !o.excluded && o.kind !== 'control')
+  const tested = used.filter((o) => o.w !== null).length
   return {
     converged: r.converged, iterations: r.iterations, dof: r.dof, sigma0: r.sigma0, globalTest: r.globalTest, counts: r.counts,
     health: r.health, critical: r.critical, plane: r.plane ?? null, height: r.height ?? null,
@@ -342,7 +348,9 @@ function buildSummary(r: AdjustmentResult, tolerance: ToleranceSpec | null, pass
     weakRedundancy: r.settings.weakRedundancy,
     tolerance: tolerance ? { ...tolerance, description: describeTolerance(tolerance) } : null,
     relative: { checked: passes.filter((p) => p !== null).length, passed: passes.filter((p) => p === true).length, failed: passes.filter((p) => p === false).length },
-    engineMs, warnings,
+    // data snooping tests each observation at α0: even a sound network flags about n·α0 by chance
+    chance: { tested, expectedFlags: tested * r.settings.alpha0 },
+    engineMs, warnings, weighting,
   }
 }
 

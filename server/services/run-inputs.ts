@@ -8,7 +8,8 @@ import type { RunSettings } from '../../shared/schemas/adjustments'
 import { useDb } from '../db/client'
 import type { Db, Tx } from '../db/client'
 import { instrumentProfiles, observationSets, observations, projects, stations, toleranceProfiles } from '../db/schema'
-import { angleSigma, directionSigma, distanceSigma, levellingSigma, zenithSigma } from '../engine/sigma'
+import { angleSigma, DEFAULT_PROFILE, directionSigma, distanceSigma, levellingSigma, zenithSigma } from '../engine/sigma'
+import type { RunWeighting, WeightingSource } from '../../shared/types/run'
 import type { AdjustInput, AdjustSettings, ApproximateCoordinate, ControlRecord, InstrumentProfile, ObservationRecord } from '../engine/types'
 import type { ToleranceSpec } from './accuracy'
 
@@ -27,6 +28,8 @@ export interface RunInputs {
   stationKinds: Map<string, 'control' | 'new'>
   hash: string
   warnings: string[]
+  /** how each observation set was weighted (shown at the top of the run report) */
+  weighting: RunWeighting[]
 }
 
 /** JSON with sorted keys: the same data always gives the same bytes. */
@@ -70,6 +73,7 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
     ? await db.select().from(instrumentProfiles).where(and(eq(instrumentProfiles.firmId, firmId), inArray(instrumentProfiles.id, profileIds)))
     : []
   const profiles = new Map(profileRows.map((p) => [p.id, profileOf(p)]))
+  const profileNames = new Map(profileRows.map((p) => [p.id, p.name]))
 
   const obsRows = await db.select().from(observations)
     .where(and(eq(observations.firmId, firmId), eq(observations.projectId, projectId), inArray(observations.setId, setIds)))
@@ -182,6 +186,29 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
   }
   const hash = createHash('sha256').update(canonicalJson(hashed)).digest('hex')
   const mainProfile = mainProfileId === null ? undefined : profiles.get(mainProfileId)
+
+  // What weighted each set: its own profile, the run's main profile (a set
+  // without a profile goes to the engine with the main one), or the engine's
+  // built-in default when no used set names a profile.
+  const weighting: RunWeighting[] = usedSets.map((set) => {
+    const rows = obsRows.filter((o) => o.setId === set.id)
+    const own = set.instrumentProfileId
+    const pid = own ?? mainProfileId
+    const source: WeightingSource = own !== null ? 'own profile' : pid !== null ? 'main profile' : 'built-in default'
+    return {
+      setId: set.id,
+      setName: set.name,
+      observations: rows.length,
+      sigmaFromFile: rows.filter((o) => o.sigma !== null).length,
+      source,
+      profile: pid === null ? { id: null, name: 'built-in default', values: { ...DEFAULT_PROFILE } } : { id: pid, name: profileNames.get(pid) ?? `profile ${pid}`, values: profiles.get(pid)! },
+    }
+  })
+  for (const w of weighting) {
+    if (w.source === 'built-in default' && w.sigmaFromFile < w.observations) {
+      warnings.push(`set ${w.setName}: ${w.observations - w.sigmaFromFile} observation${w.observations - w.sigmaFromFile === 1 ? ' is' : 's are'} weighted with the built-in default σ (invented values), not with an instrument profile of the firm`)
+    }
+  }
   return {
     input: { controls, observations: records, ...(mainProfile ? { profile: mainProfile } : {}), approximate, ...(projection ? { projection } : {}) },
     engineSettings: { datum: settings.datum === 'free' ? 'free' : 'as-given', scaling: settings.scaling, confidence: settings.confidence },
@@ -190,5 +217,6 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
     stationKinds: new Map(stationRows.map((s) => [s.name, s.kind])),
     hash,
     warnings,
+    weighting,
   }
 }
