@@ -16,7 +16,7 @@ import type { FirmContext } from '../utils/guard'
 import { checkRelative, describeTolerance, semiMajorAt95, type ToleranceSpec } from './accuracy'
 import { audit } from './audit'
 import { notifyRunFailed } from './notifications'
-import type { RunWeighting } from '../../shared/types/run'
+import type { RunDto, RunWeighting } from '../../shared/types/run'
 import { loadRunInputs, RunInputError } from './run-inputs'
 import { ADJUST_QUEUE, sendAdjustJob, type AdjustJob } from './run-queue'
 
@@ -114,7 +114,7 @@ export function cliShape(r: AdjustmentResult) {
   }
 }
 
-export async function getRun(ctx: FirmContext, project: Project, number: number) {
+export async function getRun(ctx: FirmContext, project: Project, number: number): Promise<RunDto> {
   const run = await findRun(ctx, project, number)
   const db = useDb()
   const [by] = run.createdBy ? await db.select({ name: users.name }).from(users).where(eq(users.id, run.createdBy)) : []
