@@ -44,6 +44,9 @@ export default defineNuxtConfig({
     publicUrl: '',
   },
   tailwindcss: { cssPath: false, viewer: false },
+  // A hydration mismatch names the element in the console even in the built
+  // app, so the browser test that fails on console errors says what broke.
+  vite: { define: { __VUE_PROD_HYDRATION_MISMATCH_DETAILS__: 'true' } },
   nitro: {
     typescript: { tsConfig: { compilerOptions: { noUncheckedIndexedAccess: false } } },
     output: { dir: process.env.NUXT_OUTPUT_DIR || '.output' },

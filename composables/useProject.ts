@@ -11,6 +11,7 @@ export interface ProjectView {
   toleranceProfileId: number | null
   createdAt: string
   updatedAt: string
+  counts?: { stations: number; observations: number; runs: number }
 }
 
 export function useProject() {

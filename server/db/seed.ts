@@ -5,12 +5,15 @@
 import { fileURLToPath } from 'node:url'
 import { and, eq } from 'drizzle-orm'
 import type { Role } from '../../shared/roles'
+import { queueRun } from '../services/adjustments'
 import { hashPassword } from '../services/passwords'
+import { stopBoss } from '../services/run-queue'
+import type { FirmContext } from '../utils/guard'
 import { seedFieldData } from './seed-fielddata'
 import { closeDb, useDb } from './client'
 import type { Db } from './client'
 import {
-  crewMembers, crews, firms, instrumentProfiles, memberships, projectAccess, projectCrews, projects, toleranceProfiles, users,
+  adjustments, crewMembers, crews, firms, instrumentProfiles, memberships, projectAccess, projectCrews, projects, toleranceProfiles, users,
 } from './schema'
 
 export const DEMO_FIRM = 'larchmere'
@@ -82,7 +85,9 @@ export async function seedFoundation(db: Db) {
   ]).onConflictDoNothing()
 
   const project = await upsertProject(db, demo.id, 'Harrow Creek bridge control',
-    'Invented demo: control network for a new footbridge over Harrow Creek. Two held pillars (CP1, CP2), a benchmark (BM1), direction sets, distances and a levelling loop.', people['chief@tiepoint.test']!)
+    'Invented demo: control network for a new footbridge over Harrow Creek. Two held pillars (CP1, CP2), a benchmark (BM1), direction sets, distances and a levelling loop. '
+      + 'One observation in the file is a planted blunder: open run 1, find it at the top of the residual table, exclude it and re-run. '
+      + 'The demo file names no instrument profile, so run 1 is weighted with the built-in default σ and says so.', people['chief@tiepoint.test']!)
   if (alta && project.toleranceProfileId === null) {
     await db.update(projects).set({ toleranceProfileId: alta.id }).where(eq(projects.id, project.id))
   }
@@ -97,9 +102,32 @@ export async function seedFoundation(db: Db) {
   return { demo, other, people, project }
 }
 
+/**
+ * The first start shows a finished run: when the demo project has no run yet,
+ * queue one with the default settings; the worker computes it. The demo file
+ * carries a planted blunder, so the run fails its global test and points at it.
+ */
+export async function seedDemoRun(db: Db, projectId: number, chiefId: number): Promise<void> {
+  const [project] = await db.select().from(projects).where(eq(projects.id, projectId)).limit(1)
+  if (!project) return
+  const [any] = await db.select({ id: adjustments.id }).from(adjustments)
+    .where(and(eq(adjustments.firmId, project.firmId), eq(adjustments.projectId, project.id))).limit(1)
+  if (any) return
+  const [firm] = await db.select().from(firms).where(eq(firms.id, project.firmId)).limit(1)
+  const [chief] = await db.select().from(users).where(eq(users.id, chiefId)).limit(1)
+  if (!firm || !chief) return
+  const ctx: FirmContext = {
+    user: { id: chief.id, email: chief.email, name: chief.name, licenceNumber: null, licenceJurisdiction: null, via: 'session' },
+    firm,
+    role: 'party_chief',
+  }
+  await queueRun(ctx, project, {})
+}
+
 export async function seedDemo(db: Db = useDb()) {
   const base = await seedFoundation(db)
   await seedFieldData(db, base.project.id)
+  await seedDemoRun(db, base.project.id, base.people['chief@tiepoint.test']!)
   return base
 }
 
@@ -110,5 +138,8 @@ if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
       console.error('[tiepoint] seeding failed:', error)
       process.exitCode = 1
     })
-    .finally(() => closeDb())
+    .finally(async () => {
+      await stopBoss()
+      await closeDb()
+    })
 }

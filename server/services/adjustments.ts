@@ -16,26 +16,14 @@ import type { FirmContext } from '../utils/guard'
 import { checkRelative, describeTolerance, semiMajorAt95, type ToleranceSpec } from './accuracy'
 import { audit } from './audit'
 import { notifyRunFailed } from './notifications'
-import type { RunDto, RunWeighting } from '../../shared/types/run'
+import type { RunDto, RunListItem, RunWeighting } from '../../shared/types/run'
+
+export type { RunListItem }
 import { loadRunInputs, RunInputError } from './run-inputs'
 import { ADJUST_QUEUE, sendAdjustJob, type AdjustJob } from './run-queue'
 
 export type RunStatus = Adjustment['status']
 
-export interface RunListItem {
-  number: number
-  status: RunStatus
-  createdAt: string
-  startedAt: string | null
-  finishedAt: string | null
-  createdBy: string | null
-  sigma0: number | null
-  globalTestPassed: boolean | null
-  flagged: number | null
-  errorText: string | null
-  inputHash: string
-  settings: Record<string, unknown>
-}
 
 // ── queueing ────────────────────────────────────────────────────────────────
 

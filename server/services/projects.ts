@@ -59,6 +59,18 @@ export async function listProjects(ctx: FirmContext): Promise<ProjectDto[]> {
   return rows.map((r) => ({ ...projectDto(r.project), counts: { stations: r.stations, observations: r.observations, runs: r.runs } }))
 }
 
+/** One project with its counts, so the overview can say what the next step really is. */
+export async function getProjectWithCounts(ctx: FirmContext, project: Project): Promise<ProjectDto> {
+  const db = useDb()
+  const count = async (table: typeof stations | typeof observations | typeof adjustments) => {
+    const [row] = await db.select({ n: sql<number>`count(*)::int` }).from(table)
+      .where(and(eq(table.firmId, ctx.firm.id), eq(table.projectId, project.id)))
+    return row?.n ?? 0
+  }
+  const [st, ob, ru] = await Promise.all([count(stations), count(observations), count(adjustments)])
+  return { ...projectDto(project), counts: { stations: st, observations: ob, runs: ru } }
+}
+
 export async function createProject(ctx: FirmContext, body: ProjectCreate): Promise<ProjectDto> {
   const db = useDb()
   return db.transaction(async (tx) => {

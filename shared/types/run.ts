@@ -67,3 +67,19 @@ export interface RunDto {
   observations: ObservationResult[]
   relative: { from: string; to: string; distance: number; semiMajor: number; semiMinor: number; azimuthDeg: number; semiMajor95: number; allowable: number | null; passes: boolean | null }[]
 }
+
+/** GET …/adjustments — one row of the runs list. */
+export interface RunListItem {
+  number: number
+  status: RunStatus
+  createdAt: string
+  startedAt: string | null
+  finishedAt: string | null
+  createdBy: string | null
+  sigma0: number | null
+  globalTestPassed: boolean | null
+  flagged: number | null
+  errorText: string | null
+  inputHash: string
+  settings: Record<string, unknown>
+}

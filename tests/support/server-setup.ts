@@ -24,7 +24,9 @@ export async function setup() {
   if (!process.env.DATABASE_URL || process.env.TIEPOINT_NO_SERVER === '1' || onlyUnit) return
   const { seedDemo } = await import('../../server/db/seed')
   const { closeDb } = await import('../../server/db/client')
+  const { stopBoss } = await import('../../server/services/run-queue')
   await seedDemo()
+  await stopBoss()
   await closeDb()
   const env = {
     ...process.env,
