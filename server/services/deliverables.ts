@@ -11,7 +11,7 @@ import PDFDocument from 'pdfkit'
 import { XMLBuilder } from 'fast-xml-parser'
 import { METRES_PER } from '../engine/io/units'
 import type { AccuracyCheck } from './accuracy-check'
-import type { RunSummaryDto, SignedStation } from './signoffs'
+import type { FlaggedObservation, NetworkDrawing, RunSummaryDto, SignedStation } from './signoffs'
 import { sha256Hex } from './passwords'
 
 export type Units = 'm' | 'ft' | 'usft'
@@ -34,6 +34,10 @@ export interface DeliverableInput {
     accuracyCheck: AccuracyCheck
   }
   run: RunSummaryDto
+  /** the signed run's stations and observed lines, drawn on the first page of the PDF */
+  network?: NetworkDrawing
+  /** observations still flagged in the signed run (listed when the signer acknowledged them) */
+  flagged?: FlaggedObservation[]
 }
 
 export interface DeliverableFile {
@@ -56,11 +60,12 @@ const toUnits = (metres: number | null, units: Units) => (metres === null ? null
 const fmt = (v: number | null, d = DECIMALS) => (v === null ? '' : v.toFixed(d))
 
 /**
- * The embedded IBM Plex Sans carries the Latin glyphs only: write the few
- * mathematical signs our texts use in words so nothing prints as a blank box.
+ * No IBM Plex Sans file we ship carries ≤, ≥, √ or the combining circumflex
+ * (σ̂): write those few in words so nothing prints as a blank box. σ, Greek
+ * and accented Latin print as written (Latin, Latin Extended and Greek fonts).
  */
 export function pdfSafe(text: string): string {
-  return text.replace(/≤/g, 'at most').replace(/≥/g, 'at least').replace(/σ/g, 'sd')
+  return text.replace(/≤/g, 'at most').replace(/≥/g, 'at least').replace(/√/g, 'sqrt').replace(/\u0302/g, '')
 }
 
 export function fileBase(input: DeliverableInput): string {
@@ -204,33 +209,86 @@ export function buildLandXml(input: DeliverableInput): string {
 
 // ── PDF ────────────────────────────────────────────────────────────────────
 
-const FONT_FILES = { regular: 'ibm-plex-sans-latin-400-normal.woff', bold: 'ibm-plex-sans-latin-600-normal.woff' }
+/**
+ * IBM Plex Sans from @fontsource (shipped with the app) comes as one file per
+ * script. pdfkit embeds only the glyphs a document uses (a subset of each
+ * file), so the report registers the Latin, Latin Extended and Greek files and
+ * writes each run of text with the file whose unicode-range covers it (the
+ * ranges are read from the package's own 400.css).
+ */
+const SUBSETS = ['latin', 'latin-ext', 'greek'] as const
+type Subset = (typeof SUBSETS)[number]
+const WEIGHTS = { body: 400, bold: 600 } as const
+type Weight = keyof typeof WEIGHTS
+
+function fontDirs(): string[] {
+  return [process.env.TIEPOINT_FONT_DIR, join(process.cwd(), 'node_modules/@fontsource/ibm-plex-sans/files')].filter(Boolean) as string[]
+}
 
 /**
- * IBM Plex Sans from @fontsource (shipped with the app). pdfkit reads the WOFF
- * files through fontkit, so no TTF is needed. Looked up from the working
- * directory because the built server does not carry font files in its bundle.
+ * Looked up from the working directory because the built server does not
+ * carry font files in its bundle. pdfkit reads the WOFF files through fontkit.
  */
 function fontBuffer(file: string): Buffer {
-  const dirs = [process.env.TIEPOINT_FONT_DIR, join(process.cwd(), 'node_modules/@fontsource/ibm-plex-sans/files')].filter(Boolean) as string[]
-  for (const dir of dirs) {
+  for (const dir of fontDirs()) {
     const p = join(dir, file)
     if (existsSync(p)) return readFileSync(p)
   }
   throw new Error(`IBM Plex Sans (${file}) was not found; install node_modules or set TIEPOINT_FONT_DIR`)
 }
 
+let rangesCache: Record<Subset, [number, number][]> | null = null
+/** unicode-range of each subset, from @fontsource/ibm-plex-sans/400.css (the ranges the files were cut by). */
+export function subsetRanges(): Record<Subset, [number, number][]> {
+  if (rangesCache) return rangesCache
+  const css = fontDirs().map((d) => join(d, '..', '400.css')).find((p) => existsSync(p))
+  if (!css) throw new Error('IBM Plex Sans 400.css was not found; install node_modules or set TIEPOINT_FONT_DIR')
+  const text = readFileSync(css, 'utf8')
+  const out = {} as Record<Subset, [number, number][]>
+  for (const sub of SUBSETS) {
+    const m = new RegExp(`ibm-plex-sans-${sub}-400-normal \\*/[^}]*unicode-range:\\s*([^;]+);`).exec(text)
+    if (!m) throw new Error(`no unicode-range for the ${sub} subset in ${css}`)
+    out[sub] = m[1]!.split(',').map((r) => {
+      const [lo, hi] = r.trim().replace(/^U\+/i, '').split('-')
+      return [parseInt(lo!, 16), parseInt(hi ?? lo!, 16)] as [number, number]
+    })
+  }
+  rangesCache = out
+  return out
+}
+
+/** Splits text into runs that one font file can print; characters no file covers fall back to the Latin file. */
+export function fontRuns(text: string): { subset: Subset; text: string }[] {
+  const ranges = subsetRanges()
+  const runs: { subset: Subset; text: string }[] = []
+  for (const ch of pdfSafe(text)) {
+    const cp = ch.codePointAt(0)!
+    const subset = SUBSETS.find((s) => ranges[s].some(([lo, hi]) => cp >= lo && cp <= hi)) ?? 'latin'
+    const last = runs[runs.length - 1]
+    if (last && last.subset === subset) last.text += ch
+    else runs.push({ subset, text: ch })
+  }
+  return runs
+}
+
 interface Column { title: string; width: number; align?: 'left' | 'right' }
 
+const FOOTER_H = 34
+const nice = (x: number) => {
+  const p = 10 ** Math.floor(Math.log10(x))
+  const m = x / p
+  return (m >= 5 ? 5 : m >= 2 ? 2 : 1) * p
+}
+
 export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
-  const regular = fontBuffer(FONT_FILES.regular)
-  const bold = fontBuffer(FONT_FILES.bold)
   const doc = new PDFDocument({
-    size: 'A4', margin: 40, font: regular as unknown as string,
+    size: 'A4', margins: { top: 40, left: 40, right: 40, bottom: 40 + FOOTER_H }, bufferPages: true,
+    font: fontBuffer('ibm-plex-sans-latin-400-normal.woff') as unknown as string,
     info: { Title: `${input.project.name}: release ${input.release.id}`, Author: input.firmName, Creator: 'Tiepoint' },
   })
-  doc.registerFont('body', regular)
-  doc.registerFont('bold', bold)
+  for (const w of Object.keys(WEIGHTS) as Weight[]) {
+    for (const sub of SUBSETS) doc.registerFont(`${w}-${sub}`, fontBuffer(`ibm-plex-sans-${sub}-${WEIGHTS[w]}-normal.woff`))
+  }
   const chunks: Buffer[] = []
   doc.on('data', (c: Buffer) => chunks.push(c))
   const ended = new Promise<void>((resolve, reject) => { doc.on('end', () => resolve()); doc.on('error', reject) })
@@ -239,47 +297,99 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   const left = doc.page.margins.left
   const width = doc.page.width - doc.page.margins.left - doc.page.margins.right
   const bottom = () => doc.page.height - doc.page.margins.bottom
-  const heading = (t: string) => { doc.moveDown(0.8).font('bold').fontSize(12).fillColor('#1f5d5d').text(pdfSafe(t), left).fillColor('#0f172a').font('body').fontSize(9) }
-  const line = (label: string, value: string) => { doc.font('bold').fontSize(9).text(`${pdfSafe(label)}: `, left, undefined, { continued: true }).font('body').text(pdfSafe(value)) }
+  let weight: Weight = 'body'
+  let size = 9
 
-  const table = (cols: Column[], rows: string[][]) => {
+  /** flowing text (wraps), each run in the font file that covers it */
+  const write = (text: string, opts: { x?: number; y?: number; width?: number; continued?: boolean; align?: 'left' | 'right' | 'center' } = {}) => {
+    const runs = fontRuns(text)
+    if (!runs.length) runs.push({ subset: 'latin', text: '' })
+    runs.forEach((r, i) => {
+      doc.font(`${weight}-${r.subset}`).fontSize(size)
+      const more = i < runs.length - 1 || !!opts.continued
+      const o = { width: opts.width ?? width - ((opts.x ?? left) - left), align: opts.align, continued: more }
+      if (i === 0 && (opts.x !== undefined || opts.y !== undefined)) doc.text(r.text, opts.x ?? left, opts.y ?? doc.y, o)
+      else doc.text(r.text, o)
+    })
+  }
+  /** one line in a box, no wrapping: table cells and labels */
+  const cell = (text: string, x: number, y: number, w: number, align: 'left' | 'right' = 'left') => {
+    const runs = fontRuns(text)
+    const widths = runs.map((r) => doc.font(`${weight}-${r.subset}`).fontSize(size).widthOfString(r.text))
+    const total = widths.reduce((a, b) => a + b, 0)
+    let cx = align === 'right' ? x + Math.max(0, w - total) : x
+    runs.forEach((r, i) => {
+      doc.font(`${weight}-${r.subset}`).fontSize(size).text(r.text, cx, y, { lineBreak: false })
+      cx += widths[i]!
+    })
+  }
+  const style = (w: Weight, s: number, colour = '#0f172a') => { weight = w; size = s; doc.fillColor(colour) }
+  const heading = (t: string) => {
+    if (doc.y + 40 > bottom()) doc.addPage()
+    doc.moveDown(0.8)
+    style('bold', 12, '#1f5d5d')
+    write(t, { x: left })
+    style('body', 9)
+  }
+  const line = (label: string, value: string) => {
+    style('bold', 9)
+    write(`${label}: `, { x: left, continued: true })
+    style('body', 9)
+    write(value)
+  }
+
+  const table = (cols: Column[], rows: string[][], emphasise?: (row: number) => boolean) => {
     const rowH = 13
     const drawHeader = () => {
       let x = left
       const y = doc.y
-      doc.font('bold').fontSize(7.5)
-      for (const c of cols) { doc.text(c.title, x, y, { width: c.width - 4, align: c.align ?? 'right', lineBreak: false }); x += c.width }
-      doc.moveTo(left, y + rowH - 2).lineTo(left + width, y + rowH - 2).strokeColor('#cbd5e1').stroke()
+      style('bold', 7.5)
+      for (const c of cols) { cell(c.title, x, y, c.width - 4, c.align ?? 'right'); x += c.width }
+      doc.moveTo(left, y + rowH - 2).lineTo(left + width, y + rowH - 2).lineWidth(0.5).strokeColor('#cbd5e1').stroke()
       doc.y = y + rowH
-      doc.font('body').fontSize(8)
     }
     drawHeader()
-    for (const r of rows) {
+    rows.forEach((r, ri) => {
       if (doc.y + rowH > bottom()) { doc.addPage(); drawHeader() }
       let x = left
       const y = doc.y
-      r.forEach((cell, i) => { doc.text(pdfSafe(cell), x, y, { width: cols[i]!.width - 4, align: cols[i]!.align ?? 'right', lineBreak: false }); x += cols[i]!.width })
+      style(emphasise?.(ri) ? 'bold' : 'body', 8)
+      r.forEach((c, i) => { cell(c, x, y, cols[i]!.width - 4, cols[i]!.align ?? 'right'); x += cols[i]!.width })
       doc.y = y + rowH
-    }
+    })
     doc.x = left
+    style('body', 9)
   }
 
-  doc.font('bold').fontSize(16).text(input.project.name)
-  doc.font('body').fontSize(10).fillColor('#475569').text(`Signed control coordinates — release ${input.release.id} of ${input.firmName}, published ${input.release.publishedAt.toISOString().slice(0, 10)}`)
-  doc.fillColor('#0f172a')
+  // ── first page: title, the network drawing, coordinate system and adjustment
+  style('bold', 16)
+  write(input.project.name, { x: left })
+  style('body', 10, '#475569')
+  write(`Signed control coordinates — release ${input.release.id} of ${input.firmName}, published ${input.release.publishedAt.toISOString().slice(0, 10)}`)
+  style('body', 9)
 
-  heading('Coordinate system')
+  if (input.network && input.network.stations.length >= 2) drawNetwork(input.network, 200)
+
+  const r = input.run
+  const datumWords = r.datum === 'free'
+    ? 'free network (minimally constrained: inner constraints on all stations)'
+    : 'control held as stored: stations marked "held" fixed, other control weighted by its σ'
+  const scalingWords = r.scaling === 'a-priori'
+    ? 'precisions use the a-priori σ0 = 1 (not scaled by the adjustment)'
+    : 'precisions scaled by the a-posteriori variance factor σ0² of the adjustment'
+  heading('Coordinate system and datum')
   line('CRS', `${input.project.crs} — ${input.project.crsName}`)
-  line('Units', `${UNIT_LABEL[u]}; standard deviations are 1 sigma, ellipses at 95 % confidence`)
+  line('Units', `${UNIT_LABEL[u]}; standard deviations (σ) at 1σ, error ellipses at 95 % confidence`)
+  line('Datum', datumWords)
+  line('Precision scaling', scalingWords)
 
   heading('Adjustment')
-  const r = input.run
   line('Run', `${r.number}${r.finishedAt ? `, finished ${r.finishedAt.slice(0, 19).replace('T', ' ')} UTC` : ''}`)
   if (r.counts) line('Observations, unknowns, redundancy', `${r.counts.n}, ${r.counts.u}, ${r.counts.r}`)
-  if (r.sigma0 !== null) line('A-posteriori standard deviation of unit weight', r.sigma0.toFixed(3))
+  if (r.sigma0 !== null) line('A-posteriori standard deviation of unit weight σ0', r.sigma0.toFixed(3))
   if (r.globalTest) {
     const g = r.globalTest
-    line('Global test (chi-square)', `${g.passed ? 'passed' : 'failed'}: statistic ${g.statistic.toFixed(2)}, acceptance interval ${g.lower.toFixed(2)} to ${g.upper.toFixed(2)}`)
+    line('Global test (χ²)', `${g.passed ? 'passed' : 'FAILED'}: statistic ${g.statistic.toFixed(2)}, acceptance interval ${g.lower.toFixed(2)} to ${g.upper.toFixed(2)}`)
   }
   line('Input hash', r.inputHash)
 
@@ -287,17 +397,19 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   const pu = u === 'm' ? 'mm' : u
   const prec = (v: number | null) => (v === null ? '—' : u === 'm' ? (v * 1000).toFixed(1) : fmt(toUnits(v, u)))
   table([
-    { title: 'Station', width: 62, align: 'left' },
-    { title: `East (${u})`, width: 66 }, { title: `North (${u})`, width: 66 }, { title: `Height (${u})`, width: 52 },
-    { title: `sd E (${pu})`, width: 42 }, { title: `sd N (${pu})`, width: 42 }, { title: `sd H (${pu})`, width: 42 },
-    { title: `A95 (${pu})`, width: 46 }, { title: `B95 (${pu})`, width: 46 }, { title: 'az (deg)', width: 51 },
+    { title: 'Station', width: 56, align: 'left' }, { title: 'Status', width: 36, align: 'left' },
+    { title: `East (${u})`, width: 62 }, { title: `North (${u})`, width: 64 }, { title: `Height (${u})`, width: 50 },
+    { title: `σE (${pu})`, width: 36 }, { title: `σN (${pu})`, width: 36 }, { title: `σH (${pu})`, width: 36 },
+    { title: `a95 (${pu})`, width: 40 }, { title: `b95 (${pu})`, width: 40 }, { title: 'az (°)', width: 59 },
   ], input.signoff.stations.map((s) => [
-    s.name, fmt(toUnits(s.east, u)), fmt(toUnits(s.north, u)), s.height === null ? '—' : fmt(toUnits(s.height, u)),
+    s.name, s.fixed ? 'held' : s.kind === 'control' ? 'control' : 'new',
+    fmt(toUnits(s.east, u)), fmt(toUnits(s.north, u)), s.height === null ? '—' : fmt(toUnits(s.height, u)),
     prec(s.sdEast), prec(s.sdNorth), prec(s.sdHeight), prec(s.semiMajor95), prec(s.semiMinor95), s.azimuthDeg === null ? '—' : s.azimuthDeg.toFixed(1),
-  ]))
-  doc.moveDown(0.3).fontSize(7.5).fillColor('#475569')
-    .text('sd: standard deviation (1 sigma). A95, B95: semi-axes of the absolute error ellipse at 95 % confidence; az: azimuth of A95 clockwise from grid north.', left, undefined, { width })
-    .fillColor('#0f172a').fontSize(9)
+  ]), (i) => input.signoff.stations[i]!.fixed)
+  doc.moveDown(0.3)
+  style('body', 7.5, '#475569')
+  write('Held: control held fixed in the adjustment (printed in bold; its σ is zero by definition). σ: standard deviation (1σ). a95, b95: semi-axes of the absolute error ellipse at 95 % confidence; az: azimuth of a95 clockwise from grid north.', { x: left })
+  style('body', 9)
 
   heading('Accuracy check')
   const c = input.signoff.accuracyCheck
@@ -305,7 +417,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     line('Tolerance', `${c.profile.name}: ${c.profile.rule}`)
     line('Source', c.profile.source)
   }
-  doc.text(pdfSafe(c.note), left)
+  write(c.note, { x: left })
   if (c.items.length) {
     doc.moveDown(0.3)
     table([
@@ -318,14 +430,104 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   line('Signed by', `${input.signoff.signerName}, licence ${input.signoff.licenceNumber} (${input.signoff.licenceJurisdiction})`)
   line('Signed at', `${input.signoff.signedAt.toISOString().slice(0, 19).replace('T', ' ')} UTC`)
   line('Statement', input.signoff.statement)
+  const acknowledged = (c as AccuracyCheck & { acknowledgedFailedTests?: string[] }).acknowledgedFailedTests ?? []
+  if (acknowledged.length) {
+    doc.moveDown(0.3)
+    style('bold', 9, '#b45309')
+    write(`The signer acknowledged that run ${r.number} ${acknowledged.join(' and ')}, and signed regardless under their own responsibility.`, { x: left })
+    style('body', 9)
+    const flagged = input.flagged ?? []
+    if (flagged.length) {
+      write(`Observations still flagged by data snooping in the signed run (largest |w| first):`, { x: left })
+      doc.moveDown(0.2)
+      table([
+        { title: 'Line', width: 40 }, { title: 'Kind', width: 110, align: 'left' }, { title: 'Observation', width: 260, align: 'left' }, { title: 'w', width: 60 },
+      ], flagged.slice(0, 200).map((o) => [String(o.line), o.kind.replace(/_/g, ' '), o.from ? `${o.at}: ${o.from} to ${o.to}` : `${o.at} to ${o.to ?? ''}`, o.w === null ? '—' : o.w.toFixed(2)]))
+      if (flagged.length > 200) write(`and ${flagged.length - 200} more (see the run report).`, { x: left })
+    }
+  }
   line('SHA-256 of the signed list and inputs', input.signoff.sha256)
 
   heading('Caution')
-  doc.font('body').fontSize(9).text(CAUTION, left, undefined, { width })
+  write(CAUTION, { x: left })
 
+  // ── every page: the caution and the page number in the footer
+  const range = doc.bufferedPageRange()
+  for (let i = range.start; i < range.start + range.count; i++) {
+    doc.switchToPage(i)
+    const keep = doc.page.margins.bottom
+    doc.page.margins.bottom = 0
+    const y = doc.page.height - 40 - FOOTER_H + 8
+    doc.moveTo(left, y).lineTo(left + width, y).lineWidth(0.5).strokeColor('#cbd5e1').stroke()
+    style('body', 6.5, '#475569')
+    write(CAUTION, { x: left, y: y + 4, width: width - 70 })
+    cell(`Page ${i - range.start + 1} of ${range.count}`, left + width - 64, y + 4, 64, 'right')
+    doc.page.margins.bottom = keep
+  }
   doc.end()
   await ended
   return Buffer.concat(chunks)
+
+  /** The network in grid coordinates, north up: lines, stations, 95 % ellipses exaggerated, a scale bar. */
+  function drawNetwork(net: NetworkDrawing, boxH: number) {
+    const top = doc.y + 8
+    const pad = 18
+    const es = net.stations.map((s) => s.east)
+    const ns = net.stations.map((s) => s.north)
+    const minE = Math.min(...es); const maxE = Math.max(...es)
+    const minN = Math.min(...ns); const maxN = Math.max(...ns)
+    const spanE = Math.max(maxE - minE, 1e-6); const spanN = Math.max(maxN - minN, 1e-6)
+    const scale = Math.min((width - 2 * pad) / spanE, (boxH - 2 * pad - 14) / spanN) // points per metre
+    const ox = left + (width - spanE * scale) / 2
+    const oy = top + pad + ((boxH - 2 * pad - 14) - spanN * scale) / 2
+    const px = (e: number) => ox + (e - minE) * scale
+    const py = (n: number) => oy + (maxN - n) * scale
+    doc.save()
+    doc.rect(left, top, width, boxH).lineWidth(0.5).strokeColor('#cbd5e1').stroke()
+    const at = new Map(net.stations.map((s) => [s.name, s]))
+    doc.lineWidth(0.4).strokeColor('#94a3b8')
+    for (const [a, b] of net.lines) {
+      const p = at.get(a); const q = at.get(b)
+      if (p && q) doc.moveTo(px(p.east), py(p.north)).lineTo(px(q.east), py(q.north)).stroke()
+    }
+    // exaggerate so the largest ellipse is about 6 % of the drawing's width
+    const maxA = Math.max(0, ...net.stations.map((s) => s.semiMajor95 ?? 0))
+    const factor = maxA > 0 ? nice((0.06 * width) / scale / maxA) : 0
+    if (factor > 0) {
+      doc.lineWidth(0.6).strokeColor('#0072B2')
+      for (const s of net.stations) {
+        if (s.fixed || !s.semiMajor95 || s.semiMinor95 === null || s.azimuthDeg === null) continue
+        doc.save().translate(px(s.east), py(s.north)).rotate(s.azimuthDeg - 90)
+          .ellipse(0, 0, s.semiMajor95 * factor * scale, Math.max(s.semiMinor95 * factor * scale, 0.3)).stroke().restore()
+      }
+    }
+    for (const s of net.stations) {
+      const x = px(s.east); const y = py(s.north)
+      if (s.fixed) doc.polygon([x, y - 3.5], [x - 3, y + 2], [x + 3, y + 2]).fillColor('#0f172a').fill()
+      else doc.circle(x, y, 1.6).fillColor('#0f172a').fill()
+    }
+    if (net.stations.length <= 80) {
+      style('body', 5.5, '#334155')
+      for (const s of net.stations) cell(s.name, px(s.east) + 3, py(s.north) - 8, 60)
+    }
+    // scale bar in project units, lower left; ellipse scale and legend beside it
+    const k = METRES_PER_UNIT[u]
+    const barUnits = nice((0.2 * width) / scale / k)
+    const barPt = barUnits * k * scale
+    const by = top + boxH - 12
+    doc.lineWidth(1.2).strokeColor('#0f172a').moveTo(left + 10, by).lineTo(left + 10 + barPt, by).stroke()
+    doc.lineWidth(0.8).moveTo(left + 10, by - 3).lineTo(left + 10, by + 3).stroke().moveTo(left + 10 + barPt, by - 3).lineTo(left + 10 + barPt, by + 3).stroke()
+    style('body', 6.5, '#0f172a')
+    cell(`${barUnits.toLocaleString('en-US')} ${UNIT_LABEL[u]}`, left + 14 + barPt, by - 4, 80)
+    const legend = factor > 0
+      ? `triangles: held control · dots: adjusted · error ellipses at 95 % confidence, drawn ${factor.toLocaleString('en-US')} × true size · grid north up`
+      : 'triangles: held control · dots: adjusted · grid north up'
+    cell(legend, left + 90 + barPt, by - 4, width - 100 - barPt, 'right')
+    doc.restore()
+    doc.x = left
+    doc.y = top + boxH + 6
+    style('body', 9)
+  }
 }
 
 // ── all formats ────────────────────────────────────────────────────────────

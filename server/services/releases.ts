@@ -15,7 +15,7 @@ import { buildDeliverables } from './deliverables'
 import type { DeliverableFormat } from './deliverables'
 import { notifyReleasePublished } from './notifications'
 import type { SignedStation } from './signoffs'
-import { getSignoff, runSummary, supersededState } from './signoffs'
+import { getSignoff, runReportExtras, runSummary, supersededState } from './signoffs'
 
 export const releaseCreateSchema = z.object({
   signoffId: z.number().int().positive(),
@@ -72,6 +72,7 @@ export async function createRelease(ctx: FirmContext, project: Project, body: Re
         stations: signoff.stations as unknown as SignedStation[], accuracyCheck: signoff.accuracyCheck as unknown as AccuracyCheck,
       },
       run: runSummary(run),
+      ...runReportExtras(run),
     })
     await tx.insert(releaseFiles).values(files.map((f) => ({
       firmId: ctx.firm.id, releaseId: rel!.id, format: f.format, fileName: f.fileName, contentType: f.contentType,

@@ -110,6 +110,10 @@ export interface RunSummaryDto {
   globalTest: AdjustmentResult['globalTest'] | null
   counts: AdjustmentResult['counts'] | null
   confidence: number | null
+  /** control held as stored (fixed or weighted per station) or a free network */
+  datum?: 'as-stored' | 'free' | null
+  /** precisions scaled by the a-posteriori σ̂0² or by the a-priori σ0 = 1 */
+  scaling?: 'a-posteriori' | 'a-priori' | null
 }
 
 export function runSummary(run: Adjustment): RunSummaryDto {
@@ -123,8 +127,36 @@ export function runSummary(run: Adjustment): RunSummaryDto {
     globalTest: r?.globalTest ?? null,
     counts: r?.counts ?? null,
     confidence: r?.settings?.confidence ?? null,
+    datum: r?.settings?.datum ? (r.settings.datum === 'free' ? 'free' : 'as-stored') : null,
+    scaling: r?.settings?.scaling ?? null,
   }
 }
+
+/** What the PDF draws and lists from the signed run: its network and the observations the signer accepted flagged. */
+export function runReportExtras(run: Adjustment): { network: NetworkDrawing; flagged: FlaggedObservation[] } {
+  const r = (run.result ?? null) as Partial<AdjustmentResult> | null
+  const stations = (r?.stations ?? []).filter((s) => s.east !== null && s.north !== null)
+    .map((s) => ({ name: s.name, east: s.east!, north: s.north!, fixed: s.fixed, semiMajor95: s.ellipse95?.semiMajor ?? null, semiMinor95: s.ellipse95?.semiMinor ?? null, azimuthDeg: s.ellipse95?.azimuthDeg ?? null }))
+  const seen = new Set<string>()
+  const lines: [string, string][] = []
+  for (const o of r?.observations ?? []) {
+    if (o.kind === 'control' || !o.to || o.excluded) continue
+    const key = o.at < o.to ? `${o.at}\u0000${o.to}` : `${o.to}\u0000${o.at}`
+    if (seen.has(key)) continue
+    seen.add(key)
+    lines.push([o.at, o.to])
+  }
+  const flagged = (r?.observations ?? []).filter((o) => !o.excluded && (o.flagged || o.tauFlagged))
+    .sort((a, b) => Math.abs(b.w ?? 0) - Math.abs(a.w ?? 0))
+    .map((o) => ({ line: o.line, kind: o.kind, at: o.at, from: o.from ?? null, to: o.to ?? null, w: o.w }))
+  return { network: { stations, lines }, flagged }
+}
+
+export interface NetworkDrawing {
+  stations: { name: string; east: number; north: number; fixed: boolean; semiMajor95: number | null; semiMinor95: number | null; azimuthDeg: number | null }[]
+  lines: [string, string][]
+}
+export interface FlaggedObservation { line: number; kind: string; at: string; from: string | null; to: string | null; w: number | null }
 
 export interface SignoffPreview {
   run: RunSummaryDto

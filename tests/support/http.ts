@@ -81,3 +81,15 @@ export const DEMO = {
   firm: 'larchmere',
   otherFirm: 'kestrel',
 } as const
+
+/** Waits (outside a test, e.g. in beforeAll) until a run's status route says `done`; throws with the last status otherwise. */
+export async function runDone(client: Client, statusPath: string, timeoutMs = 60_000): Promise<void> {
+  const until = Date.now() + timeoutMs
+  let last: unknown = null
+  while (Date.now() < until) {
+    last = (await client.get(statusPath)).body?.status
+    if (last === 'done') return
+    await new Promise((r) => setTimeout(r, 500))
+  }
+  throw new Error(`${statusPath} is still ${String(last)} after ${timeoutMs} ms`)
+}

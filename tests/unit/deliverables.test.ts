@@ -44,6 +44,8 @@ function input(crs: string, units: Units, stations: SignedStation[]): Deliverabl
 const utm = input('EPSG:32633', 'm', [st('FM10', 455123.4567, 5412345.6789, 212.3456), st('FM11', 455301.0012, 5412398.1234, null)])
 const spcs = input('EPSG:2229', 'usft', [st('FM20', 6478123.4567 * 1200 / 3937, 1845678.9012 * 1200 / 3937, 101.25)])
 const local = input('local', 'm', [st('FM30', 1500.1234, 5500.5678, 52.3)])
+// invented names with Polish, Croatian and Danish letters (Latin Extended and Latin-1)
+const diacritics = input('local', 'm', [st('Łódź-1', 1500, 5500, 52.3), st('Čakovec', 1600, 5550, 52.9), st('Ørsted', 1550, 5620, 53.1)])
 
 describe('GeoJSON (RFC 7946)', () => {
   it('validates and every position equals proj4 of the grid coordinates to 1e-9°', () => {
@@ -132,11 +134,48 @@ describe('PDF report', () => {
     expect(CAUTION).toMatch(/responsibility of the signing licensed surveyor/)
   })
 
-  it('writes signs the embedded Latin font lacks in words, so none prints blank (regression: "≤" printed as a box)', async () => {
-    expect(pdfSafe('relative precision at 95 % ≤ 20 mm; σ of unit weight')).toBe('relative precision at 95 % at most 20 mm; sd of unit weight')
-    const pdf = await buildPdf(utm)
+  it('prints σ, Greek and names with diacritics as written; only signs no shipped font carries go into words (regression: σ spelled "sd")', async () => {
+    expect(pdfSafe('relative precision at 95 % ≤ 20 mm; σ of unit weight')).toBe('relative precision at 95 % at most 20 mm; σ of unit weight')
+    const pdf = await buildPdf(diacritics)
     const { text } = await extractText(await getDocumentProxy(new Uint8Array(pdf)), { mergePages: true })
-    expect(text).not.toMatch(/[≤≥σ]/)
+    expect(text).toContain('Łódź')
+    expect(text).toContain('Čakovec')
+    expect(text).toContain('Ørsted')
+    expect(text).toMatch(/σE \(mm\)/)
+    expect(text).toContain('Global test (χ²)')
+    expect(text).not.toMatch(/[≤≥]/)
+    expect(text).not.toMatch(/\bsd\b/)
+  })
+
+  it('numbers every page and puts the caution in every footer', async () => {
+    const many = input('local', 'm', Array.from({ length: 120 }, (_, i) => st(`P${i + 1}`, 1000 + i * 7.5, 5000 + (i % 11) * 9.1, 50 + i / 10)))
+    const doc = await getDocumentProxy(new Uint8Array(await buildPdf(many)))
+    expect(doc.numPages).toBeGreaterThan(2)
+    const { text } = await extractText(doc, { mergePages: false })
+    text.forEach((page, i) => {
+      expect(page).toContain(`Page ${i + 1} of ${doc.numPages}`)
+      expect(page.replace(/\s+/g, ' ')).toContain('checked against local regulations and licensed practice')
+    })
+  })
+
+  it('marks held points, states datum and scaling, and lists what the signer acknowledged', async () => {
+    const held = { ...st('CP1', 1000, 5000, 50), fixed: true, kind: 'control' as const, sdEast: 0, sdNorth: 0, semiMajor95: null, semiMinor95: null, azimuthDeg: null }
+    const inp = input('local', 'm', [held, st('FM31', 1100, 5100, 51)])
+    inp.run = { ...inp.run, datum: 'as-stored', scaling: 'a-posteriori', globalTest: { statistic: 40.1, lower: 4.4, upper: 23.34, passed: false } }
+    inp.signoff.accuracyCheck = { ...inp.signoff.accuracyCheck, acknowledgedFailedTests: ['failed its global test', 'still uses 1 flagged observation'] } as typeof inp.signoff.accuracyCheck
+    inp.flagged = [{ line: 41, kind: 'slope_distance', at: 'FM31', from: null, to: 'CP1', w: 5.12 }]
+    inp.network = { stations: [{ name: 'CP1', east: 1000, north: 5000, fixed: true, semiMajor95: null, semiMinor95: null, azimuthDeg: null }, { name: 'FM31', east: 1100, north: 5100, fixed: false, semiMajor95: 0.004, semiMinor95: 0.002, azimuthDeg: 30 }], lines: [['CP1', 'FM31']] }
+    const { text } = await extractText(await getDocumentProxy(new Uint8Array(await buildPdf(inp))), { mergePages: true })
+    const flat = text.replace(/\s+/g, ' ')
+    expect(flat).toMatch(/CP1 held/)
+    expect(flat).toMatch(/FM31 new/)
+    expect(flat).toContain('Datum: control held as stored')
+    expect(flat).toContain('Precision scaling: precisions scaled by the a-posteriori variance factor')
+    expect(flat).toContain('The signer acknowledged that run 4 failed its global test and still uses 1 flagged observation')
+    expect(flat).toMatch(/41 slope distance FM31 to CP1 5\.12/)
+    // the network drawing: its scale bar and the ellipse exaggeration are written beside it
+    expect(flat).toMatch(/error ellipses at 95 % confidence, drawn [\d,]+ × true size/)
+    expect(flat).toMatch(/\b(10|20|50) m\b/)
   })
 
   it('embeds IBM Plex Sans', async () => {
