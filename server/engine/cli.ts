@@ -7,6 +7,7 @@
 
 import { readFileSync } from 'node:fs'
 import { adjustNetwork, formatReport } from './index'
+import { CAUTION } from './report'
 import { readObservationCsv } from './io/csv'
 import { parseProfileArg } from './profile'
 import type { InstrumentProfile } from './types'
@@ -59,7 +60,8 @@ function main(argv: string[]): number {
     process.stderr.write(`${outcome.code === 'input' ? 'bad input' : 'cannot solve'}: ${outcome.reason}\n`)
     return outcome.code === 'input' ? 2 : 3
   }
-  process.stdout.write(json ? `${JSON.stringify(outcome.result, null, 2)}\n` : formatReport(outcome.result))
+  // the JSON carries the same caution as the printed report: scripts pass results on
+  process.stdout.write(json ? `${JSON.stringify({ ...outcome.result, caution: CAUTION }, null, 2)}\n` : formatReport(outcome.result))
   return 0
 }
 

@@ -64,6 +64,7 @@ export async function notifySignoffCompleted(a: { firmId: number; projectId: num
       `${a.signerName} signed off ${a.stationCount} control point${a.stationCount === 1 ? '' : 's'} of run ${a.runNumber} of "${pf.project.name}".`,
       `SHA-256 of the signed coordinate list and inputs: ${a.sha256}`,
       'A party chief can now publish a release for the client.',
+      'Caution: signed coordinates are released under the signing surveyor\'s responsibility and must be checked against local regulations and licensed practice before use.',
     ],
     link: { url: publicUrl(`/f/${pf.firm.slug}/projects/${pf.project.id}/releases`), label: 'Open releases' },
     firmName: pf.firm.name,

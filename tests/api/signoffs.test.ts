@@ -135,7 +135,7 @@ describe('a sign-off', () => {
     expect(row!.statement).toBe(statement)
   })
 
-  it('tells the owner and party chiefs by e-mail, with the hash and a link to releases', async () => {
+  it('tells the owner and party chiefs by e-mail, with the hash, a link to releases and the caution', async () => {
     const mails = await mailsSince(started, 'Signed off:')
     const mine = mails.filter((m) => m.text.includes(signed.sha256))
     expect(mine.map((m) => m.to)).toEqual(expect.arrayContaining([DEMO.chief, DEMO.owner]))
@@ -143,6 +143,7 @@ describe('a sign-off', () => {
     expect(mine[0]!.text).toContain(`/f/${DEMO.firm}/projects/${fx.projectId}/releases`)
     expect(mine[0]!.text).toContain('Larchmere Survey Co.')
     expect(mine[0]!.html).toContain('<a href=')
+    expect(mine[0]!.text.replace(/\s+/g, ' ')).toContain('must be checked against local regulations and licensed practice')
   })
 
   it('is listed with its hash and not superseded while the inputs are unchanged', async () => {

@@ -55,6 +55,7 @@ describe('npm run adjust (server/engine/cli.ts)', () => {
     expect(c.ellipse.azimuthDeg).toBeGreaterThanOrEqual(0)
     expect(c.ellipse.azimuthDeg).toBeLessThan(180)
     for (const k of ['line', 'kind', 'at', 'from', 'to', 'residual', 'redundancy', 'w', 'flagged', 'mdb']) expect(j.observations[0]).toHaveProperty(k)
+    expect(j.caution).toMatch(/must be checked against local regulations and licensed practice/)
     // whole-file dof = plane + height
     expect(j.dof).toBe(j.plane.dof + j.height.dof)
     // the invented file was generated from C = (1550, 1500) with mm-level noise
