@@ -110,6 +110,8 @@ export interface RunSummaryDto {
   globalTest: AdjustmentResult['globalTest'] | null
   counts: AdjustmentResult['counts'] | null
   confidence: number | null
+  /** significance level of the global test */
+  alpha?: number | null
   /** control held as stored (fixed or weighted per station) or a free network */
   datum?: 'as-stored' | 'free' | null
   /** precisions scaled by the a-posteriori σ̂0² or by the a-priori σ0 = 1 */
@@ -127,6 +129,7 @@ export function runSummary(run: Adjustment): RunSummaryDto {
     globalTest: r?.globalTest ?? null,
     counts: r?.counts ?? null,
     confidence: r?.settings?.confidence ?? null,
+    alpha: r?.settings?.alpha ?? null,
     datum: r?.settings?.datum ? (r.settings.datum === 'free' ? 'free' : 'as-stored') : null,
     scaling: r?.settings?.scaling ?? null,
   }

@@ -23,7 +23,8 @@ afterAll(async () => { await browser?.close(); await closeDb() })
 
 function watchConsole(page: Page): string[] {
   const errors: string[] = []
-  page.on('console', (m) => { if (m.type() === 'error') errors.push(`${page.url()}: ${m.text()}`) })
+  // errors, and the hydration warnings that name the mismatching node
+  page.on('console', (m) => { if (m.type() === 'error' || (m.type() === 'warning' && /hydration/i.test(m.text()))) errors.push(`${page.url()}: ${m.text()}`) })
   page.on('pageerror', (e) => errors.push(`${page.url()}: uncaught ${e.message}`))
   return errors
 }

@@ -3,6 +3,7 @@
 // downloads the PDF and CSV, whose bytes match the SHA-256 shown beside them.
 import { createHash } from 'node:crypto'
 import { readFileSync } from 'node:fs'
+import { extractText, getDocumentProxy } from 'unpdf'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { closeDb } from '../../server/db/client'
@@ -16,7 +17,8 @@ let page: string
 beforeAll(async () => {
   browser = await launch()
   const chief = await as(DEMO.chief)
-  fx = await finishedRun(chief, 'Browser sign-off')
+  // a project name with Latin Extended letters, to read back from the PDF
+  fx = await finishedRun(chief, 'Browser sign-off Łęczyca–Ørsted')
   const granted = await chief.post(`${fx.base}/access`, { email: DEMO.client })
   expect(granted.status).toBe(201)
   page = `/f/${DEMO.firm}/projects/${fx.projectId}`
@@ -70,7 +72,14 @@ describe('sign-off to client download', () => {
       const [download] = await Promise.all([p.waitForEvent('download'), row.getByTestId(`download-${format}`).click()])
       const bytes = readFileSync((await download.path())!)
       expect(createHash('sha256').update(bytes).digest('hex')).toBe(shown)
-      if (format === 'pdf') expect(bytes.subarray(0, 5).toString()).toBe('%PDF-')
+      if (format === 'pdf') {
+        expect(bytes.subarray(0, 5).toString()).toBe('%PDF-')
+        // read back: σ and the name with diacritics print as written (regression: σ was spelled "sd")
+        const { text } = await extractText(await getDocumentProxy(new Uint8Array(bytes)), { mergePages: true })
+        expect(text).toContain('Łęczyca–Ørsted')
+        expect(text).toMatch(/σE \(mm\)/)
+        expect(text).toMatch(/Page 1 of \d/)
+      }
       if (format === 'csv') expect(bytes.toString('utf8')).toContain('# CRS: local')
     }
     expect(await p.getByText('sha256sum').count()).toBeGreaterThan(0)
@@ -78,6 +87,27 @@ describe('sign-off to client download', () => {
     // nothing else of the firm: staff pages answer "not found" for a client
     const res = await p.request.get(`/api/firms/${DEMO.firm}/projects/${fx.projectId}/signoffs`)
     expect(res.status()).toBe(404)
+    await p.context().close()
+  })
+
+  it('a feet project\'s sign-off shows the numbers in feet, as the released files do', async () => {
+    const chief = await as(DEMO.chief)
+    const feet = await finishedRun(chief, 'Browser sign-off in feet')
+    expect((await chief.patch(feet.base, { units: 'ft' })).status).toBe(200)
+    const run = (await chief.get(`${feet.base}/adjustments/${feet.runNumber}`)).body
+    const station = run.stations.find((s: { fixed: boolean; east: number | null }) => !s.fixed && s.east !== null)
+    const p = await newPage(browser)
+    await signIn(p, DEMO.surveyor)
+    await p.goto(`/f/${DEMO.firm}/projects/${feet.projectId}/signoff`)
+    await expect.poll(() => p.getByTestId('accuracy-table').count()).toBe(1)
+    expect(await p.getByTestId('signoff-units').innerText()).toContain('international feet (ft)')
+    const header = await p.locator('[data-testid="signoff-stations"] thead').innerText()
+    expect(header).toMatch(/East\s+ft/)
+    expect(header).not.toMatch(/\bm\b|mm/)
+    // international foot = 0.3048 m exactly (NIST Handbook 44, Appendix C)
+    const row = p.locator('[data-testid="signoff-stations"] tbody tr', { hasText: station.name }).first()
+    expect(await row.innerText()).toContain((station.east / 0.3048).toFixed(4))
+    await shot(p, 'signoff-feet')
     await p.context().close()
   })
 
