@@ -1,4 +1,4 @@
-// Roles inside a firm (DESIGN.md section 2) and who may do what. Used by the
+// Roles inside a firm (docs/architecture.md, Roles) and who may do what. Used by the
 // server guards and by the app to show only the navigation a role can use.
 export const ROLES = ['owner', 'party_chief', 'field_crew', 'licensed_surveyor', 'client'] as const
 export type Role = (typeof ROLES)[number]

@@ -1,4 +1,4 @@
-// Tiepoint's data model (DESIGN.md section 4). One file so the whole model is
+// Tiepoint's data model (docs/architecture.md, Data). One file so the whole model is
 // visible at once. Columns are camelCase here and snake_case in PostgreSQL
 // (drizzle `casing: 'snake_case'`). Every firm-owned table carries firm_id and
 // its indexes start with it: every query filters by the firm.

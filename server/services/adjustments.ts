@@ -90,7 +90,7 @@ async function findRun(ctx: FirmContext, project: Project, number: number): Prom
   return run
 }
 
-/** The CLI's JSON shape (DESIGN.md section 5) out of the engine's fuller result. */
+/** The CLI's JSON shape (docs/engine.md, The CLI's JSON) out of the engine's fuller result. */
 export function cliShape(r: AdjustmentResult) {
   const net = (n: AdjustmentResult['plane']) => n && { dof: n.dof, sigma0: n.sigma0, globalTest: n.globalTest }
   return {

@@ -22,7 +22,7 @@ async function newPerson(label: string, password: string): Promise<string> {
 
 
 describe('sign-in', () => {
-  // Expected roles: the demo people of server/db/seed.ts, one per role of DESIGN.md section 2.
+  // Expected roles: the demo people of server/db/seed.ts, one per role of docs/architecture.md.
   const cases: [string, string, string][] = [
     [DEMO.owner, DEMO.firm, 'owner'],
     [DEMO.chief, DEMO.firm, 'party_chief'],

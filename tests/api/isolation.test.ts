@@ -1,4 +1,4 @@
-// Every firm-scoped route, from one table (DESIGN.md sections 2 and 7: another
+// Every firm-scoped route, from one table (docs/architecture.md Roles and docs/api.md Errors: another
 // firm's resource answers 404, never 403, and tests prove it for every route).
 // Real resources exist on both sides (a project with an uploaded file, a
 // finished run, a sign-off, a release, a crew, an instrument, an invitation, a

@@ -1,5 +1,5 @@
 // Observation uploads and edits against the real server and database
-// (DESIGN.md sections 4, 6, 7): counts come from counting the fixture rows
+// (docs/architecture.md, docs/file-format.md, docs/api.md): counts come from counting the fixture rows
 // here, not from our own output; bytes are compared by SHA-256.
 import { readFileSync } from 'node:fs'
 import { and, asc, eq, sql } from 'drizzle-orm'

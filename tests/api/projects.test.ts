@@ -1,5 +1,5 @@
 // Projects API against the real server and database: create, read, update,
-// roles, tenancy and validation (DESIGN.md section 7).
+// roles, tenancy and validation (docs/api.md).
 import { afterAll, describe, expect, it } from 'vitest'
 import { eq } from 'drizzle-orm'
 import { as, Client, DEMO } from '../support/http'

@@ -1,5 +1,5 @@
 // Who may write what, one table for every write route under server/api/firms
-// and every role (DESIGN.md section 2):
+// and every role (docs/architecture.md, Roles):
 //   owner             — everything, and the only one who manages members and invitations;
 //   party chief       — everything field crew can, plus projects, stations and
 //                       control, runs, sign-off requests, releases, client access;

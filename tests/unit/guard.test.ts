@@ -1,6 +1,6 @@
 // The guard's role rules, without a server: requireUser / requireFirmMember
 // run against a scripted database and request. What they must enforce comes
-// from DESIGN.md section 2 (who may do what) and section 7 (another firm's
+// from docs/architecture.md, Roles (who may do what) and docs/api.md, Errors (another firm's
 // resource, or one the role may not see, answers 404).
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest'
 import { CHIEFS, OWNERS, ROLES, SIGNERS, STAFF, AUDITORS } from '../../shared/roles'
@@ -123,7 +123,7 @@ describe('requireFirmMember role rules', () => {
   })
 })
 
-describe('role groups match DESIGN.md section 2', () => {
+describe('role groups match docs/architecture.md, Roles', () => {
   it('staff are everyone but clients', () => {
     expect([...STAFF].sort()).toEqual(ROLES.filter((r) => r !== 'client').sort())
   })

@@ -1,4 +1,4 @@
-// Reader for the Tiepoint observation CSV (DESIGN.md section 6; described in
+// Reader for the Tiepoint observation CSV (docs/file-format.md; described in
 // our own words in ./README.md). It turns the text of an uploaded file into
 // control records and observation records in metres and radians, or into a
 // list of every problem found, each naming the file line and the column.

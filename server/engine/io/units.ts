@@ -1,7 +1,7 @@
 // Units at the edges of the engine: parsing what people type (lengths in
 // metres or feet, angles in degrees, degrees-minutes-seconds, gon or radians)
 // into metres and radians, and formatting engine values back for display.
-// The engine itself only ever sees metres and radians (DESIGN.md section 5).
+// The engine itself only ever sees metres and radians (docs/architecture.md, Data).
 //
 // Definitions used here:
 // - international foot = 0.3048 m exactly, and U.S. survey foot = 1200/3937 m:

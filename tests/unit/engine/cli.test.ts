@@ -44,7 +44,7 @@ describe('npm run adjust (server/engine/cli.ts)', () => {
     expect(r.code).toBe(0)
     expect(r.out).toContain('must be checked against local regulations and licensed practice')
   })
-  it('--json prints one object with the contract fields of DESIGN.md §5', () => {
+  it('--json prints one object with the contract fields of docs/engine.md', () => {
     const r = run(good, '--json')
     expect(r.code).toBe(0)
     const j = JSON.parse(r.out)

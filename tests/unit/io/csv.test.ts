@@ -1,4 +1,4 @@
-// Tiepoint observation CSV reader (DESIGN.md section 6). Expected values come
+// Tiepoint observation CSV reader (docs/file-format.md). Expected values come
 // from the unit definitions (ft = 0.3048 m, usft = 1200/3937 m: NIST Handbook
 // 44 App. C; gon = π/200 rad: ISO 80000-3) applied by hand to the fixture rows,
 // and line numbers are counted by hand in the fixture text.
