@@ -4,7 +4,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
-import { adjustedStations, adjustments, mailboxMessages, observations, projects, toleranceProfiles } from '../../server/db/schema'
+import { adjustedStations, adjustments, mailboxMessages, observationSets, observations, projects, toleranceProfiles } from '../../server/db/schema'
 import { adjustNetwork } from '../../server/engine/index'
 import { as, DEMO, type Client } from '../support/http'
 import { BLUNDER, DEMO_CSV, projectWithNetwork, readCsv, waitForRun } from './adjustments-fixture'
@@ -71,6 +71,35 @@ describe('a run on the demo network', () => {
     expect(ranked[0].line).toBe(BLUNDER.line)
     expect(ranked[0].flagged).toBe(true)
     expect(run.summary.globalTest.passed).toBe(false)
+  })
+
+  it('says how it was weighted: the set has no profile, so the built-in default, with a warning', async () => {
+    expect(run.weighting).toHaveLength(1)
+    const w = run.weighting[0]
+    expect(w).toMatchObject({ setName: 'network.csv', source: 'built-in default', profile: { id: null, name: 'built-in default' } })
+    // the engine's invented default (server/engine/sigma.ts DEFAULT_PROFILE): 2 mm + 2 ppm, 3″ directions
+    expect(w.profile.values).toMatchObject({ distanceMm: 2, distancePpm: 2, directionArcsec: 3 })
+    expect(w.observations).toBe(readCsv(DEMO_CSV).observations.length)
+    expect(run.warnings.join(' ')).toContain('built-in default')
+    // chance flags: n·α0 over the tested observations
+    expect(run.summary.chance.expectedFlags).toBeCloseTo(run.summary.chance.tested * run.summary.alpha0, 12)
+    expect(run.summary.chance.tested).toBe(run.observations.filter((o: any) => !o.excluded && o.kind !== 'control' && o.w !== null).length)
+  })
+
+  it('names the instrument profile that weighted a set, already while the run is queued', async () => {
+    const instruments = (await chief.get(`/api/firms/${DEMO.firm}/instruments`)).body as { id: number; name: string; distanceMm: number }[]
+    const profile = instruments.find((i) => i.name === 'Example 1″ total station')!
+    const other = await projectWithNetwork(DEMO.firm, 'Weighted by a profile', DEMO_CSV)
+    await useDb().update(observationSets).set({ instrumentProfileId: profile.id }).where(eq(observationSets.projectId, other.projectId))
+    const otherBase = `/api/firms/${DEMO.firm}/projects/${other.projectId}`
+    const q = await chief.post(`${otherBase}/adjustments`, {})
+    expect(q.status).toBe(202)
+    const queued = (await chief.get(`${otherBase}/adjustments/${q.body.number}`)).body
+    expect(queued.weighting[0]).toMatchObject({ source: 'own profile', profile: { id: profile.id, name: 'Example 1″ total station', values: { distanceMm: profile.distanceMm } } })
+    expect(queued.warnings.join(' ')).not.toContain('built-in default')
+    await waitForRun(async () => (await chief.get(`${otherBase}/adjustments/${q.body.number}/status`)).body)
+    const done = (await chief.get(`${otherBase}/adjustments/${q.body.number}`)).body
+    expect(done.weighting[0].profile.name).toBe('Example 1″ total station')
   })
 
   it('checks relative precision against the project tolerance: allowable = mm + ppm·d', async () => {
