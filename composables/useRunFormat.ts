@@ -88,3 +88,15 @@ export function observationLabel(o: Pick<RunObservation, 'kind' | 'at' | 'from' 
   if (o.kind === 'control') return `${o.at} ${o.component ?? ''}`.trim()
   return o.from ? `${o.at}: ${o.from} → ${o.to}` : `${o.at} → ${o.to}`
 }
+
+/**
+ * How a station was held in a run, in words: a benchmark held only in height
+ * reads "H held", not "held fixed"; weighted control says which components.
+ */
+export function holdWords(st: Pick<RunStation, 'fixed' | 'kind' | 'controlled'>): string {
+  const plane = st.controlled.east || st.controlled.north
+  const height = st.controlled.height
+  if (st.fixed) return plane && height ? 'held fixed (EN, H)' : plane ? 'EN held' : height ? 'H held' : 'held fixed'
+  if (plane || height) return `weighted (${[plane ? 'EN' : '', height ? 'H' : ''].filter(Boolean).join(', ')})`
+  return st.kind === 'control' ? 'control, free' : 'new'
+}

@@ -3,7 +3,7 @@
 // gon has 100 centesimal minutes of 100 centesimal seconds each; the degree is
 // 1/360 of a full turn with 60′ of 60″ each. Hence 1 gon = 0.9° = 3240″ = 10 000 cc.
 import { describe, expect, it } from 'vitest'
-import { arcsecToCc, smallAngle, smallAngleUnit } from '../../composables/useRunFormat'
+import { arcsecToCc, holdWords, smallAngle, smallAngleUnit } from '../../composables/useRunFormat'
 
 describe('arcseconds to centesimal seconds', () => {
   it('one gon: 3240″ = 10 000 cc exactly', () => {
@@ -33,5 +33,16 @@ describe('small angles in the project preference', () => {
     expect(smallAngleUnit('gon')).toBe('cc')
     expect(smallAngle(6.48, 'dms')).toBe(6.48)
     expect(smallAngleUnit('dms')).toBe('″')
+  })
+})
+
+describe('how a station was held, in words (regression: a benchmark held only in height read "held fixed")', () => {
+  const st = (fixed: boolean, east: boolean, height: boolean, kind: 'control' | 'new' = 'control') => ({ fixed, kind, controlled: { east, north: east, height } })
+  it('names the held components', () => {
+    expect(holdWords(st(true, false, true))).toBe('H held')
+    expect(holdWords(st(true, true, false))).toBe('EN held')
+    expect(holdWords(st(true, true, true))).toBe('held fixed (EN, H)')
+    expect(holdWords(st(false, true, false))).toBe('weighted (EN)')
+    expect(holdWords(st(false, false, false, 'new'))).toBe('new')
   })
 })
