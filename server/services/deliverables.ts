@@ -191,8 +191,9 @@ export function buildLandXml(input: DeliverableInput): string {
         ...(epsg ? { '@_epsgCode': epsg } : {}),
         '@_desc': input.project.crs === 'local' ? 'Local plane coordinate system of the project (no geodetic datum)' : input.project.crs,
       },
-      Project: { '@_name': input.project.name, '@_desc': `Signed control, release ${input.release.id}; sign-off SHA-256 ${input.signoff.sha256}. ${CAUTION}` },
-      Application: { '@_name': 'Tiepoint', '@_manufacturer': input.firmName, '@_version': '1' },
+      Project: { '@_name': input.project.name, '@_desc': `Signed control released by ${input.firmName}, release ${input.release.id}; sign-off SHA-256 ${input.signoff.sha256}. ${CAUTION}` },
+      // the application that wrote the file is Tiepoint; the firm that released it is named in Project@desc
+      Application: { '@_name': 'Tiepoint', '@_manufacturer': 'Tiepoint', '@_version': '1' },
       CgPoints: {
         '@_name': `Sign-off ${input.signoff.id} by ${input.signoff.signerName}`,
         CgPoint: input.signoff.stations.map((s) => ({

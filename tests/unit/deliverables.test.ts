@@ -77,6 +77,12 @@ describe('GeoJSON (RFC 7946)', () => {
 })
 
 describe('LandXML 1.2', () => {
+  it('names Tiepoint as the application and the firm as the one that released the file (regression: the firm was the application)', () => {
+    const xml = buildLandXml(utm)
+    expect(xml).toMatch(/<Application name="Tiepoint" manufacturer="Tiepoint"/)
+    expect(xml).toContain('Signed control released by Larchmere Survey Co.')
+  })
+
   it('round-trips through the LandXML reader as control points in metres', () => {
     for (const inp of [utm, spcs, local]) {
       const read = readLandXml(buildLandXml(inp))
