@@ -31,8 +31,10 @@ export function validateProfile(p: InstrumentProfile): void {
  * One control record per station. A station may be given by an "E N" row and an
  * "H" row (a benchmark): they are merged; a component given twice is refused.
  */
+type MergedControl = ControlRecord & { heightLine?: number }
+
 export function mergeControls(controls: ControlRecord[]): Map<string, ControlRecord> {
-  const byName = new Map<string, ControlRecord>()
+  const byName = new Map<string, MergedControl>()
   for (const c of controls) {
     if (!c.station) fail('input', `line ${c.line}, column at: control row names no station`)
     for (const [k, v] of Object.entries({ east: c.east, north: c.north, height: c.height, sdEast: c.sdEast, sdNorth: c.sdNorth, sdHeight: c.sdHeight })) {
@@ -42,16 +44,19 @@ export function mergeControls(controls: ControlRecord[]): Map<string, ControlRec
     if ((c.east === null) !== (c.north === null)) fail('input', `line ${c.line}, column value: give both east and north, or neither`)
     const prev = byName.get(c.station)
     if (!prev) {
-      byName.set(c.station, { ...c })
+      byName.set(c.station, { ...c, heightLine: c.line })
       continue
     }
     const planeTwice = prev.east !== null && c.east !== null
     const heightTwice = prev.height !== null && c.height !== null
     if (planeTwice || heightTwice) {
-      fail('input', `line ${c.line}, column value: station ${c.station} is given as control twice (${planeTwice ? 'east and north' : 'height'} already on line ${prev.line})`)
+      const where = planeTwice ? prev.line : (prev as MergedControl).heightLine ?? prev.line
+      fail('input', `line ${c.line}, column value: station ${c.station} is given as control twice (${planeTwice ? 'east and north' : 'height'} already on line ${where})`)
     }
     byName.set(c.station, {
+      // the line of the plane part names the record; the height's own line is kept for messages
       line: prev.line,
+      heightLine: prev.height !== null ? (prev as MergedControl).heightLine ?? prev.line : c.line,
       station: c.station,
       east: prev.east ?? c.east,
       north: prev.north ?? c.north,
