@@ -4,8 +4,9 @@
 // project's display units at its edge.
 import { z } from 'zod'
 import { OBSERVATION_KINDS } from '../observation-kinds'
+import { nameText } from './text'
 
-const name = z.string().trim().min(1, 'is required').max(100, 'is longer than 100 characters')
+const name = nameText(100)
 const metres = z.number().finite().gt(-1e8, 'is too large for a coordinate').lt(1e8, 'is too large for a coordinate')
 const sd = z.number().finite().positive('must be positive (leave it empty to hold the value fixed)').max(1000, 'is implausibly large (metres)')
 
@@ -18,7 +19,7 @@ export const observationQuerySchema = z.object({
   excluded: z.enum(['true', 'false']).optional(),
   sort: z.enum(['line', 'kind', 'at', 'from', 'to', 'value', 'excluded', 'set']).default('line'),
   dir: z.enum(['asc', 'desc']).default('asc'),
-  page: z.coerce.number().int().min(1).default(1),
+  page: z.coerce.number().int().min(1).max(100_000, 'is beyond the last page').default(1),
   pageSize: z.coerce.number().int().min(1).max(500).default(50),
 })
 export type ObservationQuery = z.infer<typeof observationQuerySchema>
@@ -79,7 +80,7 @@ export type StationCreate = z.infer<typeof stationCreateSchema>
 export type StationUpdate = z.infer<typeof stationUpdateSchema>
 
 export const instrumentSchema = z.object({
-  name: z.string().trim().min(1, 'is required').max(120, 'is longer than 120 characters'),
+  name: nameText(120),
   distanceMm: z.number().finite().min(0).max(1000),
   distancePpm: z.number().finite().min(0).max(1000),
   directionArcsec: z.number().finite().min(0).max(3600),
@@ -93,7 +94,7 @@ export type InstrumentBody = z.infer<typeof instrumentSchema>
 export type InstrumentUpdate = z.infer<typeof instrumentUpdateSchema>
 
 export const crewSchema = z.object({
-  name: z.string().trim().min(1, 'is required').max(120, 'is longer than 120 characters'),
+  name: nameText(120),
   memberIds: z.array(z.number().int().positive()).max(200).optional(),
 }).strict()
 export const crewUpdateSchema = crewSchema.partial().strict()
@@ -101,3 +102,8 @@ export type CrewBody = z.infer<typeof crewSchema>
 export type CrewUpdate = z.infer<typeof crewUpdateSchema>
 
 export const projectCrewSchema = z.object({ crewId: z.number().int().positive() }).strict()
+
+/** A control-coordinate CSV uploaded as a file (multipart) may be this large. */
+export const MAX_CONTROL_BYTES = 5 * 1024 * 1024
+/** The same CSV pasted as text in a JSON body, which is capped at 1 MB like every JSON body. */
+export const controlImportTextSchema = z.object({ text: z.string().min(1, 'is blank').max(1024 * 1024) }).strict()

@@ -1,8 +1,0 @@
-// GET /api/firms/:firm/mailbox — development mailbox: mail to this firm's people (owners; only without SMTP_URL)
-import { OWNERS } from '../../../../../shared/roles'
-import { listMailbox } from '../../../../services/mailbox'
-
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, OWNERS)
-  return listMailbox(ctx)
-})
