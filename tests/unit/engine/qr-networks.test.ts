@@ -141,7 +141,8 @@ describe('free network: Qxx is the pseudo-inverse (inner constraints on all stat
   const pts: [string, number, number][] = [['A', 0, 0], ['B', 400, 30], ['C', 380, 420], ['D', -20, 390], ['E', 190, 210]]
   const noise = rng(3)
   const lines: [string, string][] = [['A', 'B'], ['B', 'C'], ['C', 'D'], ['D', 'A'], ['A', 'E'], ['B', 'E'], ['C', 'E'], ['D', 'E'], ['A', 'C']]
-  const P = new Map(pts.map(([n, e, no]) => [n, [1000 + e, 2000 + no] as [number, number]]))
+  // UTM-sized coordinates: where a near-zero pivot of the rank-deficient factor used to be divided by
+  const P = new Map(pts.map(([n, e, no]) => [n, [512000 + e, 5203000 + no] as [number, number]]))
   const observations = lines.map(([a, b], i) => obs({
     line: i + 1, kind: 'horizontal_distance', at: a, to: b, sigma: 0.002,
     value: Math.hypot(P.get(b)![0] - P.get(a)![0], P.get(b)![1] - P.get(a)![1]) + 0.002 * gauss(noise),
