@@ -243,6 +243,14 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
         if (a && a.east !== undefined && a.north !== undefined) known.set(s, { e: a.east, n: a.north })
       }
     })
+    let roughConvergence = 0
+    if (proj && known.size) {
+      try {
+        roughConvergence = (surface as ProjectedSurface).convergence(...anyPlaced(known))
+      } catch {
+        roughConvergence = 0
+      }
+    }
     const roughHorizontal = (p: (typeof planeRaw)[number]) => (p.zeniths ? p.rec.value * Math.sin(circularMean(p.zeniths.map((z) => z.value))) : p.rec.value)
     const name = (k: number) => planeNames[k]
     const ap = approximatePlane({
@@ -252,7 +260,8 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
       directions: planeRaw.flatMap((p) => (p.def.type === 'direction' ? [{ at: name(p.def.at), to: name(p.def.to), set: p.def.set, value: p.rec.value }] : [])),
       angles: planeRaw.flatMap((p) => (p.def.type === 'angle' ? [{ at: name(p.def.at), from: name(p.def.from), to: name(p.def.to), value: p.rec.value }] : [])),
       distances: planeRaw.flatMap((p) => (p.def.type === 'distance' ? [{ at: name(p.def.at), to: name(p.def.to), value: roughHorizontal(p) }] : [])),
-      azimuths: planeRaw.flatMap((p) => (p.def.type === 'azimuth' ? [{ at: name(p.def.at), to: name(p.def.to), value: p.rec.value + (proj ? (surface as ProjectedSurface).convergence(...anyPlaced(known)) : 0) }] : [])),
+      // approximations only: an observed (ellipsoidal) azimuth turned by the convergence at a placed station
+      azimuths: planeRaw.flatMap((p) => (p.def.type === 'azimuth' ? [{ at: name(p.def.at), to: name(p.def.to), value: p.rec.value + roughConvergence }] : [])),
       seedIfEmpty: free,
     })
     if (ap.unplaced.length) {
