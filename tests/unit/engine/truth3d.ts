@@ -172,3 +172,16 @@ export function mountainNetwork() {
   }))
   return { def, stations, setups, a: 6378137, f: 1 / 298.257222101 }
 }
+
+/**
+ * ECEF positions (m) of the marks (or of points `above` metres up the normal),
+ * for tests that need 3D vectors directly — e.g. GNSS baselines ΔX, ΔY, ΔZ.
+ */
+export function ecefOfStations(stations: TruthStation[], opt: Pick<TruthOptions, 'proj4' | 'geoidSeparation'>, above: (name: string) => number = () => 0) {
+  const out = new Map<string, [number, number, number]>()
+  for (const s of stations) {
+    const [lon, lat] = proj4(opt.proj4).inverse([s.east, s.north])
+    out.set(s.name, ecef(opt.proj4, lon, lat, s.height + opt.geoidSeparation + above(s.name)))
+  }
+  return out
+}
