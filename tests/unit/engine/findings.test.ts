@@ -1,7 +1,9 @@
 // Regressions of a review of the engine (issue 11): each case failed before
 // its fix. Invented data; expected values from definitions named beside them.
 import { describe, expect, it } from 'vitest'
-import { adjustNetwork, type AdjustmentResult, type ControlRecord } from '../../../server/engine/index'
+import { readFileSync } from 'node:fs'
+import { adjustNetwork, formatReport, type AdjustmentResult, type ControlRecord } from '../../../server/engine/index'
+import { readObservationCsv } from '../../../server/engine/io/csv'
 import { aprioriSigma } from '../../../server/engine/models/registry'
 import { DEFAULT_PROFILE, directionSigma } from '../../../server/engine/sigma'
 import { ARC, fixed, obs } from './helpers'
@@ -133,5 +135,22 @@ describe('one σ function', () => {
     expect(aprioriSigma(observations[0], ctx)! / (Math.SQRT2 * DEFAULT_PROFILE.directionArcsec * ARC)).toBeGreaterThan(1.01)
     expect(aprioriSigma(obs({ kind: 'direction', at: 'A', to: 'Z', value: 1 }), { ...ctx, length: () => null })).toBeNull()
     expect(aprioriSigma(observations[1], ctx)).toBe(directionSigma(DEFAULT_PROFILE, 100))
+  })
+})
+
+describe('project height on a local plane', () => {
+  // the demo network is measured in 3D on a sphere with its plane at 65 m (server/db/demo/generate.ts)
+  const read = readObservationCsv(readFileSync('server/db/demo/demo-network.csv', 'utf8'))
+  if (!read.ok) throw new Error('demo file does not read')
+  const input = { controls: read.controls, observations: read.observations.map((o) => (o.line === 118 ? { ...o, excluded: true } : o)) }
+  it('distances are reduced to it, the report says so, and a wrong project height shows in the fit', () => {
+    const right = ok(adjustNetwork({ ...input, projectHeightM: 65 }))
+    expect(right.gridReduction!.projectHeightM).toBe(65)
+    expect(right.gridReduction!.distances).toBe(read.observations.filter((o) => o.kind === 'slope_distance' || o.kind === 'horizontal_distance').length)
+    expect(formatReport(right)).toContain('Project height: local plane at 65.000 m')
+    expect(right.plane!.globalTest.passed).toBe(true)
+    // 1 500 m too high: distances 2.4e-4 too long against the held pillars 1.8 km apart (≈ 0.4 m)
+    const wrong = ok(adjustNetwork({ ...input, projectHeightM: 1565 }))
+    expect(wrong.plane!.globalTest.passed).toBe(false)
   })
 })
