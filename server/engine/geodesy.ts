@@ -105,8 +105,19 @@ export class ProjectedSurface implements Surface {
     return Math.atan2(up.e - dn.e, up.n - dn.n)
   }
 
-  /** arc-to-chord correction (t − T) at point 1 of the line 1 → 2 */
+  private readonly arcCache = new Map<string, number>()
+
+  /** arc-to-chord correction (t − T) at point 1 of the line 1 → 2 (kept per line: the report asks again) */
   arcToChord(e1: number, n1: number, e2: number, n2: number): number {
+    const key = `${e1},${n1},${e2},${n2}`
+    const hit = this.arcCache.get(key)
+    if (hit !== undefined) return hit
+    const t = this.computeArcToChord(e1, n1, e2, n2)
+    this.arcCache.set(key, t)
+    return t
+  }
+
+  private computeArcToChord(e1: number, n1: number, e2: number, n2: number): number {
     const de = e2 - e1
     const dn = n2 - n1
     const L = Math.hypot(de, dn)
