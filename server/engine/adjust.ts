@@ -14,11 +14,11 @@
 // Trigonometric heights use the combined curvature and refraction term
 // (1 − k)·D²/(2R) with k = 0.13, R = 6 371 km (common practice).
 
-import { BLOCK as COFACTOR_BLOCK } from './cofactor'
+import { localMdbEffect } from './cofactor'
 import { approximateHeights, approximatePlane, type XY } from './approx'
 import { elevationFactor, GridProjection } from './grid'
 import { azimuth, ellipseFromCovariance, RAD_TO_DEG, RHO_ARCSEC, wrapPi } from './geometry'
-import { solveNonlinear, type LinearRow, type NonlinearProblem } from './lsq'
+import { solveNonlinear, type LinearRow, type NonlinearProblem, type SolveOptions } from './lsq'
 import {
   angleSigma,
   DEFAULT_PROFILE,
@@ -76,19 +76,21 @@ const fail = (code: Failure['code'], reason: string, stations?: string[]): never
   throw new Stop(stations ? { ok: false, code, reason, stations } : { ok: false, code, reason })
 }
 
-export function adjustNetwork(input: AdjustInput, settings: Partial<AdjustSettings> = {}): AdjustOutcome {
-  return adjustNetworkTimed(input, settings).outcome
+/** `options.factorization`: 'auto' (sparse) or 'dense' (the oracle the tests compare with). */
+export function adjustNetwork(input: AdjustInput, settings: Partial<AdjustSettings> = {}, options: SolveOptions = {}): AdjustOutcome {
+  return adjustNetworkTimed(input, settings, options).outcome
 }
 
 /** Same as adjustNetwork, with the time spent per phase (for the benchmark). */
 export function adjustNetworkTimed(
   input: AdjustInput,
   settings: Partial<AdjustSettings> = {},
+  options: SolveOptions = {},
 ): { outcome: AdjustOutcome; timings: PhaseTimings } {
   const timings: PhaseTimings = { approximationMs: 0, factorizationMs: 0, statisticsMs: 0 }
   try {
     const s = validateSettings({ ...DEFAULT_SETTINGS, ...settings })
-    return { outcome: { ok: true, result: run(input, s, timings) }, timings }
+    return { outcome: { ok: true, result: run(input, s, timings, options) }, timings }
   } catch (e) {
     if (e instanceof Stop) return { outcome: e.failure, timings }
     const msg = e instanceof Error ? e.message : String(e)
@@ -137,7 +139,7 @@ interface HeightRowDef {
   outScale: number
 }
 
-function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings): AdjustmentResult {
+function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings, solveOptions: SolveOptions = {}): AdjustmentResult {
   const profile = input.profile ?? DEFAULT_PROFILE
   validateProfile(profile)
   const free = settings.datum === 'free'
@@ -444,7 +446,7 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
     stationCols: Int32Array[],
     names: string[],
   ) => {
-    const outcome = solveNonlinear(problem, settings.maxIterations)
+    const outcome = solveNonlinear(problem, settings.maxIterations, solveOptions)
     if (!outcome.ok) {
       if (outcome.code === 'not_converged') {
         return fail('not_converged', `the ${kind} adjustment did not converge in ${outcome.iterations} iterations (last step ${outcome.maxStep.toExponential(2)} × tolerance): check for gross errors and approximate coordinates`)
@@ -503,55 +505,12 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
       }
     })
 
-    // Δx = Qxx·ãᵀ·(MDB/σ): the coordinate shift an undetected error of MDB size
-    // causes. It needs whole columns of Qxx; observations are taken in the order
-    // of their last unknown in R, so only a band of columns is held at a time.
-    if (pending.length) {
-      const ready = pending.map((p) => Math.max(...p.cols.map((c) => qxx.position(c))))
-      const order = Array.from(pending.keys()).sort((a, b) => ready[a] - ready[b] || a - b)
-      const lastIdx = new Int32Array(u).fill(-1)
-      order.forEach((pi, t) => {
-        for (const c of pending[pi].cols) lastIdx[c] = t
-      })
-      // columns in order of first need; a missing one is solved for together with
-      // the next few (one pass over R serves the whole block)
-      const need: number[] = []
-      const seenCol = new Uint8Array(u)
-      for (const pi of order) for (const c of pending[pi].cols) if (!seenCol[c]) {
-        seenCol[c] = 1
-        need.push(c)
-      }
-      let next = 0
-      const cache = new Map<number, Float64Array>()
-      // coordinate unknowns of each station that has any, flat (stride = columns per station)
-      const stride = stationCols.length ? stationCols[0].length : 1
-      const coordCols = Int32Array.from(stationCols.filter((sc) => sc.some((j) => j >= 0)).flatMap((sc) => [...sc]))
-      order.forEach((pi, t) => {
-        const { out, cols, ac, k } = pending[pi]
-        for (const c of cols) {
-          if (cache.has(c)) continue
-          while (need[next] !== c) next++
-          const block = need.slice(next, next + COFACTOR_BLOCK)
-          qxx.columns(block).forEach((q, b) => cache.set(block[b], q))
-          next += block.length
-        }
-        const colQ = cols.map((c) => cache.get(c)!)
-        let worst = 0
-        for (let st = 0; st < coordCols.length; st += stride) {
-          let s2 = 0
-          for (let c = st; c < st + stride; c++) {
-            const j = coordCols[c]
-            if (j < 0) continue
-            let dxj = 0
-            for (let p = 0; p < ac.length; p++) dxj += colQ[p][j] * ac[p]
-            s2 += (dxj * k) ** 2
-          }
-          if (s2 > worst) worst = s2
-        }
-        out.mdbEffect = Math.sqrt(worst)
-        for (const c of cols) if (lastIdx[c] === t) cache.delete(c)
-      })
-    }
+    // ---- external reliability (sparse engine): Δx = Qxx·ãᵀ·(MDB/σ) at the
+    // stations the observation connects, from the selected entries (./cofactor)
+    const stationOfCol = new Int32Array(u).fill(-1)
+    stationCols.forEach((sc, st) => sc.forEach((j) => j >= 0 && (stationOfCol[j] = st)))
+    for (const { out, cols, ac, k } of pending) out.mdbEffect = localMdbEffect(qxx, cols, ac, k, stationOfCol)
+    // ---- end external reliability
 
     const scale95 = ellipseScale(settings.confidence, estimated, r)
     names.forEach((name, k) => {
@@ -1088,8 +1047,13 @@ function buildPlaneProblem(
     return groups
   }
 
+  // sparse engine: a station's coordinates and its sets' orientations form one block
+  const blocks = new Int32Array(u)
+  for (let s = 0; s < nSets; s++) blocks[setCol[s]] = nameIdx.get(setStation[s])!
+  stationCols.forEach((sc, k) => sc.forEach((j) => j >= 0 && (blocks[j] = k)))
+
   return {
-    problem: { u, labels, tolerance, x0, linearize, nullSpace, cofactorGroups } satisfies NonlinearProblem,
+    problem: { u, labels, tolerance, x0, linearize, nullSpace, cofactorGroups, blocks } satisfies NonlinearProblem,
     rowOut: rows.map((r) => r.def.out),
     rowScale: rows.map((r) => r.outScale),
     stationCols,
