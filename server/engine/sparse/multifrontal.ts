@@ -49,8 +49,15 @@ export function factorizeSparse(
   const qtb = new Float64Array(u)
   const live = new Uint8Array(u)
   let residualSq = 0
-  // children's contribution blocks, waiting for their parent
-  const pending: ({ rows: number; lead: Int32Array; c: Float64Array } | null)[] = new Array(ns).fill(null)
+  // children's contribution blocks wait for their parent on one stack (postorder:
+  // a supernode's children are always the topmost blocks when it is assembled)
+  const cRowsOf = new Int32Array(ns)
+  const cOff = new Float64Array(ns) // value offset in cStack
+  const cLeadOff = new Int32Array(ns) // lead offset in cLead
+  let cStack = new Float64Array(1 << 16)
+  let cLead = new Int32Array(1 << 12)
+  let cTop = 0
+  let cLeadTop = 0
   const childHead = new Int32Array(ns).fill(-1)
   const childNext = new Int32Array(ns).fill(-1)
   for (let s = ns - 1; s >= 0; s--) {
@@ -67,6 +74,9 @@ export function factorizeSparse(
   let rowOrder = new Int32Array(64)
   let rowSrc = new Int32Array(64)
   let rowSub = new Int32Array(64)
+  let cntBuf = new Int32Array(64)
+  let stairBuf = new Int32Array(64)
+  let leadBuf = new Int32Array(64)
 
   for (let s = 0; s < ns; s++) {
     const f0 = fPtr[s]
@@ -75,7 +85,7 @@ export function factorizeSparse(
     for (let j = 0; j < nc; j++) loc[fcol[f0 + j]] = j
     // rows of the front: observations, then children's contribution rows
     let nr = rPtr[s + 1] - rPtr[s]
-    for (let c = childHead[s]; c >= 0; c = childNext[c]) nr += pending[c]!.rows
+    for (let c = childHead[s]; c >= 0; c = childNext[c]) nr += cRowsOf[c]
     if (rowLead.length < nr) {
       const size = Math.max(nr, 2 * rowLead.length)
       rowLead = new Int32Array(size)
@@ -98,25 +108,25 @@ export function factorizeSparse(
       r++
     }
     for (let c = childHead[s]; c >= 0; c = childNext[c]) {
-      const cb = pending[c]!
       const cf0 = fPtr[c] + npiv[c]
-      for (let t = 0; t < cb.rows; t++) {
-        rowLead[r] = loc[fcol[cf0 + cb.lead[t]]]
+      for (let t = 0; t < cRowsOf[c]; t++) {
+        rowLead[r] = loc[fcol[cf0 + cLead[cLeadOff[c] + t]]]
         rowSrc[r] = c
         rowSub[r] = t
         r++
       }
     }
     // counting sort of the rows by lead column
-    const cnt = new Int32Array(nc + 2)
+    if (cntBuf.length < nc + 2) cntBuf = new Int32Array(2 * (nc + 2))
+    const cnt = cntBuf.subarray(0, nc + 2)
+    cnt.fill(0)
     for (let t = 0; t < nr; t++) cnt[rowLead[t] + 1]++
     for (let j = 0; j <= nc; j++) cnt[j + 1] += cnt[j]
     // stair[j] = rows whose lead ≤ j = cnt[j + 1]
-    const stair = cnt.slice(1)
-    {
-      const fill = cnt.slice(0, nc + 1)
-      for (let t = 0; t < nr; t++) rowOrder[fill[rowLead[t]]++] = t
-    }
+    if (stairBuf.length < nc + 1) stairBuf = new Int32Array(2 * (nc + 1))
+    const stair = stairBuf
+    stair.set(cnt.subarray(1, nc + 2))
+    for (let t = 0; t < nr; t++) rowOrder[cnt[rowLead[t]]++] = t
     const ld = nr // column-major leading dimension
     const width = nc + 1 // + right-hand side
     const size = ld * width
@@ -131,21 +141,25 @@ export function factorizeSparse(
         for (let q = rowPtr[i]; q < rowPtr[i + 1]; q++) F[loc[posOf[rowCol[q]]] * ld + k] += rowVal[q]
         F[nc * ld + k] = rhs[i]
       } else {
-        const cb = pending[src]!
         const cf0 = fPtr[src] + npiv[src]
         const cw = fPtr[src + 1] - cf0 + 1
-        const base = rowSub[t] * cw
-        for (let q = cb.lead[rowSub[t]]; q < cw - 1; q++) {
-          const v = cb.c[base + q]
+        const base = cOff[src] + rowSub[t] * cw
+        for (let q = cLead[cLeadOff[src] + rowSub[t]]; q < cw - 1; q++) {
+          const v = cStack[base + q]
           if (v !== 0) F[loc[fcol[cf0 + q]] * ld + k] = v
         }
-        F[nc * ld + k] = cb.c[base + cw - 1]
+        F[nc * ld + k] = cStack[base + cw - 1]
       }
     }
-    for (let c = childHead[s]; c >= 0; c = childNext[c]) pending[c] = null
+    // the children's blocks are the top of the stack: release them
+    for (let c = childHead[s]; c >= 0; c = childNext[c]) {
+      if (cOff[c] < cTop) cTop = cOff[c]
+      if (cLeadOff[c] < cLeadTop) cLeadTop = cLeadOff[c]
+    }
 
     // Householder triangularization on the staircase
-    const lead = new Int32Array(Math.min(nr, nc))
+    if (leadBuf.length < nr) leadBuf = new Int32Array(2 * nr)
+    const lead = leadBuf
     let row = 0
     let end = 0
     for (let j = 0; j < nc && row < nr; j++) {
@@ -166,7 +180,42 @@ export function factorizeSparse(
         const scale = 1 / (alpha - beta)
         for (let i = row + 1; i < end; i++) F[cj + i] *= scale
         F[cj + row] = beta
-        for (let jj = j + 1; jj < width; jj++) {
+        // four columns per pass: the reflector is read once for all of them
+        let jj = j + 1
+        for (; jj + 3 < width; jj += 4) {
+          const c0 = jj * ld
+          const c1 = c0 + ld
+          const c2 = c1 + ld
+          const c3 = c2 + ld
+          let w0 = F[c0 + row]
+          let w1 = F[c1 + row]
+          let w2 = F[c2 + row]
+          let w3 = F[c3 + row]
+          for (let i = row + 1; i < end; i++) {
+            const v = F[cj + i]
+            w0 += v * F[c0 + i]
+            w1 += v * F[c1 + i]
+            w2 += v * F[c2 + i]
+            w3 += v * F[c3 + i]
+          }
+          if (w0 === 0 && w1 === 0 && w2 === 0 && w3 === 0) continue
+          w0 *= tau
+          w1 *= tau
+          w2 *= tau
+          w3 *= tau
+          F[c0 + row] -= w0
+          F[c1 + row] -= w1
+          F[c2 + row] -= w2
+          F[c3 + row] -= w3
+          for (let i = row + 1; i < end; i++) {
+            const v = F[cj + i]
+            F[c0 + i] -= w0 * v
+            F[c1 + i] -= w1 * v
+            F[c2 + i] -= w2 * v
+            F[c3 + i] -= w3 * v
+          }
+        }
+        for (; jj < width; jj++) {
           const cc = jj * ld
           let w = F[cc + row]
           for (let i = row + 1; i < end; i++) w += F[cj + i] * F[cc + i]
@@ -193,16 +242,30 @@ export function factorizeSparse(
     const cRows = row - t
     if (parent[s] >= 0) {
       const cw = nc - np + 1
-      const c = new Float64Array(cRows * cw)
-      const cl = new Int32Array(cRows)
+      const need = cTop + cRows * cw
+      if (need > cStack.length) {
+        const grown = new Float64Array(Math.max(need, 2 * cStack.length))
+        grown.set(cStack.subarray(0, cTop))
+        cStack = grown
+      }
+      if (cLeadTop + cRows > cLead.length) {
+        const grown = new Int32Array(Math.max(cLeadTop + cRows, 2 * cLead.length))
+        grown.set(cLead.subarray(0, cLeadTop))
+        cLead = grown
+      }
+      cOff[s] = cTop
+      cLeadOff[s] = cLeadTop
+      cRowsOf[s] = cRows
       for (let q = 0; q < cRows; q++) {
         const j = lead[t + q]
-        cl[q] = j - np
-        const base = q * cw
-        for (let jj = j; jj < nc; jj++) c[base + jj - np] = F[jj * ld + t + q]
-        c[base + cw - 1] = F[nc * ld + t + q]
+        cLead[cLeadTop + q] = j - np
+        const base = cTop + q * cw
+        for (let jj = np; jj < j; jj++) cStack[base + jj - np] = 0
+        for (let jj = j; jj < nc; jj++) cStack[base + jj - np] = F[jj * ld + t + q]
+        cStack[base + cw - 1] = F[nc * ld + t + q]
       }
-      pending[s] = { rows: cRows, lead: cl, c }
+      cTop = need
+      cLeadTop += cRows
     } else {
       for (let q = t; q < row; q++) residualSq += F[nc * ld + q] ** 2
     }

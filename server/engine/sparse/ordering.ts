@@ -201,3 +201,4 @@ export function nestedDissection(g: Graph): Int32Array {
   if (filled !== n) throw new Error(`ordering lost vertices (${filled} of ${n})`)
   return order
 }
+

@@ -109,17 +109,15 @@ export function selectedInverse(f: SparseFactor): Float64Array {
   const { ns, pivStart, npiv, fPtr, fcol, parent, rOff } = f.sym
   const { rv, live } = f
   const zv = new Float64Array(rv.length)
-  // full front of Z kept for a supernode until its last child is done
-  const full: (Float64Array | null)[] = new Array(ns).fill(null)
-  const lastChild = new Int32Array(ns).fill(-1) // smallest index = processed last
+  // full fronts of Z on one stack: supernodes are taken root first, each subtree
+  // at once, so the fronts a supernode needs are its ancestors', below it on the stack
   const hasChild = new Uint8Array(ns)
-  for (let s = 0; s < ns; s++) {
-    const p = parent[s]
-    if (p >= 0) {
-      hasChild[p] = 1
-      if (lastChild[p] < 0 || s < lastChild[p]) lastChild[p] = s
-    }
-  }
+  for (let s = 0; s < ns; s++) if (parent[s] >= 0) hasChild[parent[s]] = 1
+  let stack = new Float64Array(1 << 16)
+  const stackSn: number[] = []
+  const stackOff: number[] = []
+  let top = 0
+  const fullOff = new Float64Array(ns).fill(-1)
   let zii = new Float64Array(64)
   let t1 = new Float64Array(64)
   let zji = new Float64Array(64)
@@ -140,8 +138,14 @@ export function selectedInverse(f: SparseFactor): Float64Array {
     // Z_II from the parent's full front
     zii = grow(zii, ni * ni)
     const p = parent[s]
+    // drop the fronts of finished subtrees: keep only s's ancestors
+    while (stackSn.length && stackSn[stackSn.length - 1] !== p) {
+      stackSn.pop()
+      top = stackOff.pop()!
+    }
     if (ni > 0) {
-      const zp = full[p]!
+      const zp = stack
+      const zpOff = fullOff[p]
       const pf0 = fPtr[p]
       const pnc = fPtr[p + 1] - pf0
       const rel = new Int32Array(ni)
@@ -153,15 +157,42 @@ export function selectedInverse(f: SparseFactor): Float64Array {
       }
       for (let a = 0; a < ni; a++) {
         const ra = rel[a] * pnc
-        for (let b = 0; b < ni; b++) zii[a * ni + b] = zp[ra + rel[b]]
+        for (let b = 0; b < ni; b++) zii[a * ni + b] = zp[zpOff + ra + rel[b]]
       }
     }
     // T = R_JI · Z_II (nl × ni)
     t1 = grow(t1, nl * ni)
-    for (let t = 0; t < nl; t++) {
+    t1.fill(0, 0, nl * ni)
+    let t = 0
+    // four rows of R_JI per pass: each row of Z_II is read once for all of them
+    for (; t + 3 < nl; t += 4) {
+      const r0 = off + J[t] * nc + np
+      const r1 = off + J[t + 1] * nc + np
+      const r2 = off + J[t + 2] * nc + np
+      const r3 = off + J[t + 3] * nc + np
+      const b0 = t * ni
+      const b1 = b0 + ni
+      const b2 = b1 + ni
+      const b3 = b2 + ni
+      for (let a = 0; a < ni; a++) {
+        const x0 = rv[r0 + a]
+        const x1 = rv[r1 + a]
+        const x2 = rv[r2 + a]
+        const x3 = rv[r3 + a]
+        if (x0 === 0 && x1 === 0 && x2 === 0 && x3 === 0) continue
+        const za = a * ni
+        for (let b = 0; b < ni; b++) {
+          const z = zii[za + b]
+          t1[b0 + b] += x0 * z
+          t1[b1 + b] += x1 * z
+          t1[b2 + b] += x2 * z
+          t1[b3 + b] += x3 * z
+        }
+      }
+    }
+    for (; t < nl; t++) {
       const rb = off + J[t] * nc + np
       const tb = t * ni
-      for (let b = 0; b < ni; b++) t1[tb + b] = 0
       for (let a = 0; a < ni; a++) {
         const r = rv[rb + a]
         if (r === 0) continue
@@ -210,7 +241,17 @@ export function selectedInverse(f: SparseFactor): Float64Array {
       for (let a = 0; a < ni; a++) zv[zb + np + a] = zji[t * ni + a]
     }
     if (hasChild[s]) {
-      const fz = new Float64Array(nc * nc)
+      if (top + nc * nc > stack.length) {
+        const grown = new Float64Array(Math.max(top + nc * nc, 2 * stack.length))
+        grown.set(stack.subarray(0, top))
+        stack = grown
+      }
+      const fz = stack.subarray(top, top + nc * nc)
+      fz.fill(0)
+      fullOff[s] = top
+      stackSn.push(s)
+      stackOff.push(top)
+      top += nc * nc
       for (let t = 0; t < nl; t++) {
         const jt = J[t]
         for (let t2 = 0; t2 < nl; t2++) fz[jt * nc + J[t2]] = zjj[t * nl + t2]
@@ -221,9 +262,7 @@ export function selectedInverse(f: SparseFactor): Float64Array {
         }
       }
       for (let a = 0; a < ni; a++) for (let b = 0; b < ni; b++) fz[(np + a) * nc + np + b] = zii[a * ni + b]
-      full[s] = fz
     }
-    if (p >= 0 && lastChild[p] === s) full[p] = null
   }
   return zv
 }

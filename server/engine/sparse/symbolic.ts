@@ -56,7 +56,7 @@ export interface Symbolic {
 }
 
 /**
- * @param blockOf block of each caller's unknown (unknowns of one block are kept together)
+ * @param blockIds block of each caller's unknown (unknowns of one block are kept together)
  */
 export function analyse(rows: SparseRows, u: number, blockIds: ArrayLike<number>): Symbolic {
   // blocks renumbered densely (a caller's block id may have no unknowns)
