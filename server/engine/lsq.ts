@@ -57,6 +57,8 @@ export interface SolveOptions {
 }
 
 export interface LsqTimings {
+  /** ordering and symbolic analysis (sparse path), included in factorizationMs */
+  orderingMs: number
   factorizationMs: number
   cofactorMs: number
 }
@@ -87,7 +89,7 @@ export function solveNonlinear(problem: NonlinearProblem, maxIterations: number,
   if ((options.factorization ?? 'auto') !== 'dense') return solveNonlinearSparse(problem, maxIterations)
   const u = problem.u
   const x = Float64Array.from(problem.x0)
-  const timings: LsqTimings = { factorizationMs: 0, cofactorMs: 0 }
+  const timings: LsqTimings = { orderingMs: 0, factorizationMs: 0, cofactorMs: 0 }
   let order: Int32Array | null = null
   let lastStep = Infinity
   for (let it = 1; it <= maxIterations; it++) {
@@ -280,14 +282,18 @@ function condition(f: QrFactorization, norms: Float64Array, qxx: Cofactor): { ka
 function solveNonlinearSparse(problem: NonlinearProblem, maxIterations: number): LsqOutcome {
   const u = problem.u
   const x = Float64Array.from(problem.x0)
-  const timings: LsqTimings = { factorizationMs: 0, cofactorMs: 0 }
+  const timings: LsqTimings = { orderingMs: 0, factorizationMs: 0, cofactorMs: 0 }
   let sym: Symbolic | null = null
   let lastStep = Infinity
   for (let it = 1; it <= maxIterations; it++) {
     const rows = problem.linearize(x)
     const t0 = performance.now()
     const { sparse, columnNorms } = whitenRows(rows, u)
-    if (!sym) sym = analyse(sparse, u, problem.blocks ?? Int32Array.from({ length: u }, (_, j) => j))
+    if (!sym) {
+      const ta = performance.now()
+      sym = analyse(sparse, u, problem.blocks ?? Int32Array.from({ length: u }, (_, j) => j))
+      timings.orderingMs = performance.now() - ta
+    }
     const f = factorizeSparse(sym, sparse, columnNorms)
     timings.factorizationMs += performance.now() - t0
 
