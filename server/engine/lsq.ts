@@ -12,7 +12,7 @@
 import { Cofactor, type CofactorMatrix } from './cofactor'
 import { compressRows, factorize, solve, type QrFactorization } from './qr'
 import { estimateInverseNorm1, normR1 } from './sparse/condition'
-import { factorizeSparse, solveSparse, type SparseFactor } from './sparse/multifrontal'
+import { factorizeSparse, newWorkspace, solveSparse, type SparseFactor } from './sparse/multifrontal'
 import { SparseCofactor } from './sparse/selinv'
 import { analyse, type SparseRows, type Symbolic } from './sparse/symbolic'
 
@@ -284,6 +284,8 @@ function solveNonlinearSparse(problem: NonlinearProblem, maxIterations: number):
   const x = Float64Array.from(problem.x0)
   const timings: LsqTimings = { orderingMs: 0, factorizationMs: 0, cofactorMs: 0 }
   let sym: Symbolic | null = null
+  const work = newWorkspace()
+  let previous: SparseFactor | null = null
   let lastStep = Infinity
   for (let it = 1; it <= maxIterations; it++) {
     const rows = problem.linearize(x)
@@ -294,7 +296,8 @@ function solveNonlinearSparse(problem: NonlinearProblem, maxIterations: number):
       sym = analyse(sparse, u, problem.blocks ?? Int32Array.from({ length: u }, (_, j) => j))
       timings.orderingMs = performance.now() - ta
     }
-    const f = factorizeSparse(sym, sparse, columnNorms)
+    const f = factorizeSparse(sym, sparse, columnNorms, 1e-10, work, previous)
+    previous = f
     timings.factorizationMs += performance.now() - t0
 
     let datum: Datum | null = null

@@ -38,24 +38,40 @@ export interface SparseFactor {
   perm: Int32Array
 }
 
+/** Scratch buffers kept between the Gauss–Newton iterations of one network (fewer large allocations, fewer full collections). */
+export interface SparseWorkspace {
+  front: Float64Array
+  cStack: Float64Array
+  cLead: Int32Array
+}
+
+export function newWorkspace(): SparseWorkspace {
+  return { front: new Float64Array(1024), cStack: new Float64Array(1 << 16), cLead: new Int32Array(1 << 12) }
+}
+
+/**
+ * @param reuse a factorization of the same pattern that is no longer needed: its arrays are overwritten
+ */
 export function factorizeSparse(
   sym: Symbolic,
   rows: SparseRows,
   columnNorms: Float64Array,
   rankTolerance = 1e-10,
+  work: SparseWorkspace = newWorkspace(),
+  reuse: SparseFactor | null = null,
 ): SparseFactor {
   const { ns, pivStart, npiv, fPtr, fcol, parent, rPtr, rIdx, rOff, posOf, u } = sym
-  const rv = new Float64Array(sym.rSize)
-  const qtb = new Float64Array(u)
-  const live = new Uint8Array(u)
+  const rv = reuse && reuse.sym === sym ? reuse.rv.fill(0) : new Float64Array(sym.rSize)
+  const qtb = reuse && reuse.sym === sym ? reuse.qtb.fill(0) : new Float64Array(u)
+  const live = reuse && reuse.sym === sym ? reuse.live.fill(0) : new Uint8Array(u)
   let residualSq = 0
   // children's contribution blocks wait for their parent on one stack (postorder:
   // a supernode's children are always the topmost blocks when it is assembled)
   const cRowsOf = new Int32Array(ns)
   const cOff = new Float64Array(ns) // value offset in cStack
   const cLeadOff = new Int32Array(ns) // lead offset in cLead
-  let cStack = new Float64Array(1 << 16)
-  let cLead = new Int32Array(1 << 12)
+  let cStack = work.cStack
+  let cLead = work.cLead
   let cTop = 0
   let cLeadTop = 0
   const childHead = new Int32Array(ns).fill(-1)
@@ -68,7 +84,7 @@ export function factorizeSparse(
     }
   }
   const loc = new Int32Array(u)
-  let front = new Float64Array(1024)
+  let front = work.front
   const { rowPtr, rowCol, rowVal, rhs } = rows
   let rowLead = new Int32Array(64)
   let rowOrder = new Int32Array(64)
@@ -271,6 +287,9 @@ export function factorizeSparse(
     }
     for (let q = row; q < nr; q++) residualSq += F[nc * ld + q] ** 2
   }
+  work.front = front
+  work.cStack = cStack
+  work.cLead = cLead
   let rank = 0
   for (let p = 0; p < u; p++) rank += live[p]
   const perm = new Int32Array(u)
