@@ -11,7 +11,7 @@ import type { Adjustment, Project } from '../db/schema'
 import { adjustNetwork } from '../engine/index'
 import { METRES_PER } from '../engine/io/units'
 import type { AdjustmentResult } from '../engine/types'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
 import { checkRelative, describeTolerance, semiMajorAt95, type ToleranceSpec } from './accuracy'
 import { audit } from './audit'
@@ -42,14 +42,14 @@ export interface RunListItem {
 export async function queueRun(ctx: FirmContext, project: Project, body: unknown, opts: { queue?: string } = {}): Promise<{ number: number; status: RunStatus }> {
   const parsed = runSettingsSchema.safeParse(body ?? {})
   if (!parsed.success) {
-    throw new ApiError(422, 'Some settings are not valid', parsed.error.issues.map((i) => ({ field: i.path.join('.') || undefined, message: i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message })))
+    throw new DomainError('invalid', 'Some settings are not valid', parsed.error.issues.map((i) => ({ field: i.path.join('.') || undefined, message: i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message })))
   }
   const db = useDb()
   let inputs
   try {
     inputs = await loadRunInputs(ctx.firm.id, project.id, parsed.data)
   } catch (e) {
-    if (e instanceof RunInputError) throw new ApiError(422, e.message, [{ field: e.field, message: e.message }])
+    if (e instanceof RunInputError) throw new DomainError('invalid', e.message, [{ field: e.field, message: e.message }])
     throw e
   }
   const run = await db.transaction(async (tx) => {
@@ -151,7 +151,7 @@ const csv = (rows: unknown[][]) => rows.map((r) => r.map(csvCell).join(',')).joi
 
 export async function exportCsv(ctx: FirmContext, project: Project, number: number, what: 'coordinates' | 'residuals'): Promise<{ fileName: string; text: string }> {
   const run = await findRun(ctx, project, number)
-  if (run.status !== 'done' || !run.result) throw new ApiError(409, `Run ${number} has no results (${run.status})`)
+  if (run.status !== 'done' || !run.result) throw new DomainError('conflict', `Run ${number} has no results (${run.status})`)
   const r = run.result as unknown as AdjustmentResult
   const u = project.units
   const k = METRES_PER[u]
@@ -185,7 +185,7 @@ export async function excludeAndRerun(ctx: FirmContext, project: Project, number
   const db = useDb()
   const [obs] = await db.select().from(observations)
     .where(and(eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id), eq(observations.id, observationId))).limit(1)
-  if (!obs) throw new ApiError(422, 'That observation is not in this project', [{ field: 'observationId', message: 'observationId: not in this project' }])
+  if (!obs) throw new DomainError('invalid', 'That observation is not in this project', [{ field: 'observationId', message: 'observationId: not in this project' }])
   if (!obs.excluded) {
     await db.transaction(async (tx) => {
       await tx.update(observations).set({ excluded: true }).where(and(eq(observations.firmId, ctx.firm.id), eq(observations.id, obs.id)))
