@@ -113,15 +113,15 @@ export function selectedInverse(f: SparseFactor): Float64Array {
   // at once, so the fronts a supernode needs are its ancestors', below it on the stack
   const hasChild = new Uint8Array(ns)
   for (let s = 0; s < ns; s++) if (parent[s] >= 0) hasChild[parent[s]] = 1
-  let stack = new Float64Array(1 << 16)
+  let stack: Float64Array = new Float64Array(1 << 16)
   const stackSn: number[] = []
   const stackOff: number[] = []
   let top = 0
   const fullOff = new Float64Array(ns).fill(-1)
-  let zii = new Float64Array(64)
-  let t1 = new Float64Array(64)
-  let zji = new Float64Array(64)
-  let zjj = new Float64Array(64)
+  let zii: Float64Array = new Float64Array(64)
+  let t1: Float64Array = new Float64Array(64)
+  let zji: Float64Array = new Float64Array(64)
+  let zjj: Float64Array = new Float64Array(64)
   const grow = (a: Float64Array, n: number) => (a.length >= n ? a : new Float64Array(Math.max(n, 2 * a.length)))
 
   for (let s = ns - 1; s >= 0; s--) {
