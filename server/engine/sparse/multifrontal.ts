@@ -196,8 +196,64 @@ export function factorizeSparse(
         const scale = 1 / (alpha - beta)
         for (let i = row + 1; i < end; i++) F[cj + i] *= scale
         F[cj + row] = beta
-        // four columns per pass: the reflector is read once for all of them
+        // eight, then four columns per pass: the reflector is read once for all of them
         let jj = j + 1
+        for (; jj + 7 < width; jj += 8) {
+          const c0 = jj * ld
+          const c1 = c0 + ld
+          const c2 = c1 + ld
+          const c3 = c2 + ld
+          const c4 = c3 + ld
+          const c5 = c4 + ld
+          const c6 = c5 + ld
+          const c7 = c6 + ld
+          let w0 = F[c0 + row]
+          let w1 = F[c1 + row]
+          let w2 = F[c2 + row]
+          let w3 = F[c3 + row]
+          let w4 = F[c4 + row]
+          let w5 = F[c5 + row]
+          let w6 = F[c6 + row]
+          let w7 = F[c7 + row]
+          for (let i = row + 1; i < end; i++) {
+            const v = F[cj + i]
+            w0 += v * F[c0 + i]
+            w1 += v * F[c1 + i]
+            w2 += v * F[c2 + i]
+            w3 += v * F[c3 + i]
+            w4 += v * F[c4 + i]
+            w5 += v * F[c5 + i]
+            w6 += v * F[c6 + i]
+            w7 += v * F[c7 + i]
+          }
+          w0 *= tau
+          w1 *= tau
+          w2 *= tau
+          w3 *= tau
+          w4 *= tau
+          w5 *= tau
+          w6 *= tau
+          w7 *= tau
+          F[c0 + row] -= w0
+          F[c1 + row] -= w1
+          F[c2 + row] -= w2
+          F[c3 + row] -= w3
+          F[c4 + row] -= w4
+          F[c5 + row] -= w5
+          F[c6 + row] -= w6
+          F[c7 + row] -= w7
+          for (let i = row + 1; i < end; i++) {
+            const v = F[cj + i]
+            F[c0 + i] -= w0 * v
+            F[c1 + i] -= w1 * v
+            F[c2 + i] -= w2 * v
+            F[c3 + i] -= w3 * v
+            F[c4 + i] -= w4 * v
+            F[c5 + i] -= w5 * v
+            F[c6 + i] -= w6 * v
+            F[c7 + i] -= w7 * v
+          }
+        }
         for (; jj + 3 < width; jj += 4) {
           const c0 = jj * ld
           const c1 = c0 + ld

@@ -122,6 +122,7 @@ export function selectedInverse(f: SparseFactor): Float64Array {
   let t1: Float64Array = new Float64Array(64)
   let zji: Float64Array = new Float64Array(64)
   let zjj: Float64Array = new Float64Array(64)
+  let rowJ: Float64Array = new Float64Array(64)
   const grow = (a: Float64Array, n: number) => (a.length >= n ? a : new Float64Array(Math.max(n, 2 * a.length)))
 
   for (let s = ns - 1; s >= 0; s--) {
@@ -162,42 +163,42 @@ export function selectedInverse(f: SparseFactor): Float64Array {
     }
     // T = R_JI · Z_II (nl × ni)
     t1 = grow(t1, nl * ni)
-    t1.fill(0, 0, nl * ni)
+    // Z_II is symmetric, so T_tb = R_J[t],I · Z_II[b,:]: dot products of contiguous
+    // rows, four rows of R_JI at a time (each row of Z_II read once for all four)
     let t = 0
-    // four rows of R_JI per pass: each row of Z_II is read once for all of them
     for (; t + 3 < nl; t += 4) {
       const r0 = off + J[t] * nc + np
       const r1 = off + J[t + 1] * nc + np
       const r2 = off + J[t + 2] * nc + np
       const r3 = off + J[t + 3] * nc + np
       const b0 = t * ni
-      const b1 = b0 + ni
-      const b2 = b1 + ni
-      const b3 = b2 + ni
-      for (let a = 0; a < ni; a++) {
-        const x0 = rv[r0 + a]
-        const x1 = rv[r1 + a]
-        const x2 = rv[r2 + a]
-        const x3 = rv[r3 + a]
-        if (x0 === 0 && x1 === 0 && x2 === 0 && x3 === 0) continue
-        const za = a * ni
-        for (let b = 0; b < ni; b++) {
-          const z = zii[za + b]
-          t1[b0 + b] += x0 * z
-          t1[b1 + b] += x1 * z
-          t1[b2 + b] += x2 * z
-          t1[b3 + b] += x3 * z
+      for (let b = 0; b < ni; b++) {
+        const zb = b * ni
+        let s0 = 0
+        let s1 = 0
+        let s2 = 0
+        let s3 = 0
+        for (let a = 0; a < ni; a++) {
+          const z = zii[zb + a]
+          s0 += rv[r0 + a] * z
+          s1 += rv[r1 + a] * z
+          s2 += rv[r2 + a] * z
+          s3 += rv[r3 + a] * z
         }
+        t1[b0 + b] = s0
+        t1[b0 + ni + b] = s1
+        t1[b0 + 2 * ni + b] = s2
+        t1[b0 + 3 * ni + b] = s3
       }
     }
     for (; t < nl; t++) {
       const rb = off + J[t] * nc + np
       const tb = t * ni
-      for (let a = 0; a < ni; a++) {
-        const r = rv[rb + a]
-        if (r === 0) continue
-        const za = a * ni
-        for (let b = 0; b < ni; b++) t1[tb + b] += r * zii[za + b]
+      for (let b = 0; b < ni; b++) {
+        const zb = b * ni
+        let s0 = 0
+        for (let a = 0; a < ni; a++) s0 += rv[rb + a] * zii[zb + a]
+        t1[tb + b] = s0
       }
     }
     // Z_JI = −R_JJ⁻¹·T, rows from the last
@@ -217,21 +218,23 @@ export function selectedInverse(f: SparseFactor): Float64Array {
     }
     // Z_JJ = R_JJ⁻¹·(R_JJ⁻ᵀ − R_JI·Z_JIᵀ), by rows from the last (symmetric)
     zjj = grow(zjj, nl * nl)
+    rowJ = grow(rowJ, nl)
     for (let t = nl - 1; t >= 0; t--) {
       const rb = off + J[t] * nc
       const d = rv[rb + J[t]]
+      // row t of R_JJ gathered once; Z_JJ is symmetric, so Z[l][t2] is read as
+      // Z[t2][l] along a contiguous row (set already: rows below t are complete)
+      for (let l = t + 1; l < nl; l++) rowJ[l] = rv[rb + J[l]]
       for (let t2 = nl - 1; t2 >= t; t2--) {
         // W_t,t2 = R_J[t],I · Z_J[t2],I
         let v = t === t2 ? 1 / d : 0
         const ob = t2 * ni
         for (let a = 0; a < ni; a++) v -= rv[rb + np + a] * zji[ob + a]
-        for (let l = t + 1; l < nl; l++) {
-          const r = rv[rb + J[l]]
-          if (r !== 0) v -= r * zjj[l * nl + t2]
-        }
+        const zr = t2 * nl
+        for (let l = t + 1; l < nl; l++) v -= rowJ[l] * zjj[zr + l]
         v /= d
         zjj[t * nl + t2] = v
-        zjj[t2 * nl + t] = v
+        zjj[zr + t] = v
       }
     }
     // store on R's layout
