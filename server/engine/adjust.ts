@@ -22,7 +22,7 @@ import { buildHeightProblem, type HeightRow } from './height'
 import { mergeControls, planeDatumCheck, stationLegCheck, validateObservations, validateProfile, validateSettings, type PlaneKindTag } from './input'
 import { aprioriSigma, isAngularKind } from './models/registry'
 import type { SigmaContext } from './models/types'
-import { solveNonlinear, type NonlinearProblem } from './lsq'
+import { solveNonlinear, type NonlinearProblem, type SolveOptions } from './lsq'
 import { buildPlaneProblem, type PlaneDef, type PlaneRow } from './plane'
 import { planeStationPrecision, relativePrecision } from './precision'
 import { reducePlane, reduceZenith, type HeightItem, type Partner, type PlaneItem, type ReductionStats } from './reduce'
@@ -63,23 +63,27 @@ const REREDUCE_SHIFT = 0.5
 
 export interface PhaseTimings {
   approximationMs: number
+  /** sparse path: ordering and symbolic analysis (once per network); part of factorizationMs */
+  orderingMs: number
   factorizationMs: number
   statisticsMs: number
 }
 
-export function adjustNetwork(input: AdjustInput, settings: Partial<AdjustSettings> = {}): AdjustOutcome {
-  return adjustNetworkTimed(input, settings).outcome
+/** `options.factorization`: 'auto' (sparse) or 'dense' (the oracle the tests compare with). */
+export function adjustNetwork(input: AdjustInput, settings: Partial<AdjustSettings> = {}, options: SolveOptions = {}): AdjustOutcome {
+  return adjustNetworkTimed(input, settings, options).outcome
 }
 
 /** Same as adjustNetwork, with the time spent per phase (for the benchmark). */
 export function adjustNetworkTimed(
   input: AdjustInput,
   settings: Partial<AdjustSettings> = {},
+  options: SolveOptions = {},
 ): { outcome: AdjustOutcome; timings: PhaseTimings } {
-  const timings: PhaseTimings = { approximationMs: 0, factorizationMs: 0, statisticsMs: 0 }
+  const timings: PhaseTimings = { approximationMs: 0, orderingMs: 0, factorizationMs: 0, statisticsMs: 0 }
   try {
     const s = validateSettings({ ...DEFAULT_SETTINGS, ...settings })
-    return { outcome: { ok: true, result: run(input, s, timings) }, timings }
+    return { outcome: { ok: true, result: run(input, s, timings, options) }, timings }
   } catch (e) {
     if (e instanceof Stop) return { outcome: e.failure, timings }
     const msg = e instanceof Error ? e.message : String(e)
@@ -119,7 +123,7 @@ function refractionOf(input: AdjustInput) {
   return r
 }
 
-function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings): AdjustmentResult {
+function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings, solveOptions: SolveOptions = {}): AdjustmentResult {
   const profile = input.profile ?? DEFAULT_PROFILE
   validateProfile(profile)
   const free = settings.datum === 'free'
@@ -372,7 +376,7 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   let health = { conditionEstimate: 0, dominant: null as string | null }
 
   const solve = (kind: 'plane' | 'height', problem: NonlinearProblem) => {
-    const outcome = solveNonlinear(problem, settings.maxIterations)
+    const outcome = solveNonlinear(problem, settings.maxIterations, solveOptions)
     if (!outcome.ok) {
       if (outcome.code === 'not_converged') {
         return fail('not_converged', `the ${kind} adjustment did not converge in ${outcome.iterations} iterations (last step ${outcome.maxStep.toExponential(2)} × tolerance): check for gross errors and approximate coordinates`)
@@ -382,6 +386,7 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
       return fail('singular', `the ${kind} network is singular: ${dep.slice(0, 6).join(', ')}${dep.length > 6 ? ` and ${dep.length - 6} more` : ''} cannot be determined from the observations; check how ${st.length ? st.join(', ') : 'these'} ${st.length > 1 ? 'are' : 'is'} tied to the rest of the network`, st)
     }
     timings.factorizationMs += outcome.timings.factorizationMs
+    timings.orderingMs += outcome.timings.orderingMs
     return outcome
   }
 

@@ -166,8 +166,13 @@ export function buildPlaneProblem(
     return groups
   }
 
+  // sparse factorization: a station's coordinates and its sets' orientations form one block
+  const blocks = new Int32Array(u)
+  for (let s = 0; s < nSets; s++) blocks[setCol[s]] = nameIdx.get(setStation[s])!
+  stationCols.forEach((sc, k) => sc.forEach((j) => j >= 0 && (blocks[j] = k)))
+
   return {
-    problem: { u, labels, tolerance, x0, linearize, nullSpace, cofactorGroups } satisfies NonlinearProblem,
+    problem: { u, labels, tolerance, x0, linearize, nullSpace, cofactorGroups, blocks } satisfies NonlinearProblem,
     rowOut: rows.map((r) => r.out),
     rowScale: rows.map((r) => r.outScale),
     stationCols,

@@ -1,13 +1,13 @@
 // Reliability of each observation: redundancy number r_i = 1 − ã_i·Qxx·ã_iᵀ
 // (no m×m matrix), Baarda's w = v/(σ√r_i), Pope's τ = w/σ̂0, the minimal
 // detectable bias MDB = σ·δ0/√r_i and its effect on the coordinates
-// Δx = Qxx·ã_iᵀ·MDB/σ (the largest station shift).
+// Δx = Qxx·ã_iᵀ·MDB/σ (the largest shift at the stations the observation connects).
 // Sources: Baarda, W. (1968) A testing procedure for use in geodetic networks,
 // Netherlands Geodetic Commission, Publications on Geodesy 2(5); Pope, A.J.
 // (1976) The statistics of residuals and the detection of outliers, NOAA
 // Technical Report NOS 65 NGS 1.
 
-import { BLOCK as COFACTOR_BLOCK, type Cofactor } from './cofactor'
+import { localMdbEffect, type CofactorMatrix } from './cofactor'
 import type { LinearRow } from './lsq'
 import type { AdjustSettings, ObservationResult } from './types'
 
@@ -26,12 +26,11 @@ export function testObservations(
   outputs: ObservationResult[],
   rowOut: number[],
   rowScale: number[],
-  qxx: Cofactor,
+  qxx: CofactorMatrix,
   stationCols: Int32Array[],
   settings: AdjustSettings,
   limits: TestLimits,
 ): void {
-  const u = qxx.u
   const pending: { out: ObservationResult; cols: number[]; ac: number[]; k: number }[] = []
   rows.forEach((row, i) => {
     const out = outputs[rowOut[i]]
@@ -63,49 +62,9 @@ export function testObservations(
       pending.push({ out, cols: row.cols, ac, k: mdb / row.sigma })
     }
   })
-  if (!pending.length) return
-
-  // Δx = Qxx·ãᵀ·(MDB/σ) needs whole columns of Qxx; observations are taken in the
-  // order of their last unknown in R, so only a band of columns is held at a time.
-  const ready = pending.map((p) => Math.max(...p.cols.map((c) => qxx.position(c))))
-  const order = Array.from(pending.keys()).sort((a, b) => ready[a] - ready[b] || a - b)
-  const lastIdx = new Int32Array(u).fill(-1)
-  order.forEach((pi, t) => {
-    for (const c of pending[pi].cols) lastIdx[c] = t
-  })
-  const need: number[] = []
-  const seenCol = new Uint8Array(u)
-  for (const pi of order) for (const c of pending[pi].cols) if (!seenCol[c]) {
-    seenCol[c] = 1
-    need.push(c)
-  }
-  let next = 0
-  const cache = new Map<number, Float64Array>()
-  const stride = stationCols.length ? stationCols[0].length : 1
-  const coordCols = Int32Array.from(stationCols.filter((sc) => sc.some((j) => j >= 0)).flatMap((sc) => [...sc]))
-  order.forEach((pi, t) => {
-    const { out, cols, ac, k } = pending[pi]
-    for (const c of cols) {
-      if (cache.has(c)) continue
-      while (need[next] !== c) next++
-      const block = need.slice(next, next + COFACTOR_BLOCK)
-      qxx.columns(block).forEach((q, b) => cache.set(block[b], q))
-      next += block.length
-    }
-    const colQ = cols.map((c) => cache.get(c)!)
-    let worst = 0
-    for (let st = 0; st < coordCols.length; st += stride) {
-      let s2 = 0
-      for (let c = st; c < st + stride; c++) {
-        const j = coordCols[c]
-        if (j < 0) continue
-        let dxj = 0
-        for (let p = 0; p < ac.length; p++) dxj += colQ[p][j] * ac[p]
-        s2 += (dxj * k) ** 2
-      }
-      if (s2 > worst) worst = s2
-    }
-    out.mdbEffect = Math.sqrt(worst)
-    for (const c of cols) if (lastIdx[c] === t) cache.delete(c)
-  })
+  // External reliability at bounded cost: Δx = Qxx·ãᵀ·(MDB/σ) at the stations the
+  // observation itself connects, from the selected entries of Qxx (see ./cofactor).
+  const stationOfCol = new Int32Array(qxx.u).fill(-1)
+  stationCols.forEach((sc, st) => sc.forEach((j) => j >= 0 && (stationOfCol[j] = st)))
+  for (const { out, cols, ac, k } of pending) out.mdbEffect = localMdbEffect(qxx, cols, ac, k, stationOfCol)
 }

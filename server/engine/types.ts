@@ -198,7 +198,10 @@ export interface ObservationResult {
   tau: number | null
   tauFlagged: boolean
   mdb: number | null
-  /** largest shift of a station position (m) that an undetected MDB-sized error would cause */
+  /**
+   * largest shift (m) that an undetected MDB-sized error would cause at the
+   * stations this observation connects (external reliability at bounded cost)
+   */
   mdbEffect: number | null
   excluded: boolean
   weak: boolean
