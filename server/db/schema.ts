@@ -38,6 +38,11 @@ export const fileFormatEnum = pgEnum('file_format', ['csv', 'landxml', 'manual']
 export const observationKindEnum = pgEnum('observation_kind', [
   'direction', 'angle', 'zenith', 'slope_distance', 'horizontal_distance', 'azimuth', 'height_difference',
 ])
+/** kinds of a result row: the observation kinds and the coordinate observations of weighted control */
+export const resultKindEnum = pgEnum('result_kind', [
+  'direction', 'angle', 'zenith', 'slope_distance', 'horizontal_distance', 'azimuth', 'height_difference', 'control',
+])
+export const componentEnum = pgEnum('coordinate_component', ['east', 'north', 'height'])
 export const runStatusEnum = pgEnum('run_status', ['queued', 'running', 'done', 'failed'])
 export const toleranceKindEnum = pgEnum('tolerance_kind', ['relative_ppm', 'fgdc_95', 'custom'])
 export const deliverableEnum = pgEnum('deliverable', ['csv', 'geojson', 'landxml', 'pdf'])
@@ -271,9 +276,12 @@ export const adjustments = pgTable('adjustments', {
   attempts: integer().notNull().default(0),
   startedAt: timestamp({ withTimezone: true }),
   finishedAt: timestamp({ withTimezone: true }),
+  /**
+   * The run's typed summary (RunSummary in server/services/run-results.ts):
+   * global figures only. Stations, observations and relative precisions live
+   * in their own tables, the one source of truth of a finished run.
+   */
   summary: jsonb().$type<Record<string, unknown>>(),
-  /** the engine's result in the CLI JSON shape */
-  result: jsonb().$type<Record<string, unknown>>(),
   errorText: text(),
   createdBy: integer().references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
@@ -297,6 +305,10 @@ export const adjustedStations = pgTable('adjusted_stations', {
   azimuthDeg: doublePrecision(),
   semiMajor95: doublePrecision(),
   semiMinor95: doublePrecision(),
+  /** which components are held or weighted as control in this run */
+  controlledEast: boolean().notNull().default(false),
+  controlledNorth: boolean().notNull().default(false),
+  controlledHeight: boolean().notNull().default(false),
 }, (t) => [index('adjusted_stations_firm_run').on(t.firmId, t.adjustmentId)])
 
 export const observationResults = pgTable('observation_results', {
@@ -305,17 +317,33 @@ export const observationResults = pgTable('observation_results', {
   adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
   observationId: integer().references(() => observations.id, { onDelete: 'set null' }),
   line: integer().notNull(),
-  kind: observationKindEnum().notNull(),
+  kind: resultKindEnum().notNull(),
+  /** coordinate component of a 'control' row */
+  component: componentEnum(),
   at: text().notNull(),
   from: text(),
   to: text().notNull(),
+  /** observed and adjusted value: metres, or decimal degrees for angles (valueUnit) */
+  observed: doublePrecision().notNull(),
+  adjusted: doublePrecision(),
+  valueUnit: text().notNull(),
+  /** residual, σ and MDB: metres, or arcseconds for angles (residualUnit) */
   residual: doublePrecision(),
+  sigma: doublePrecision(),
+  residualUnit: text().notNull(),
   redundancy: doublePrecision(),
   w: doublePrecision(),
   tau: doublePrecision(),
   mdb: doublePrecision(),
+  mdbEffect: doublePrecision(),
   flagged: boolean().notNull().default(false),
+  tauFlagged: boolean().notNull().default(false),
+  weak: boolean().notNull().default(false),
   excluded: boolean().notNull().default(false),
+  remark: text(),
+  combinedFactor: doublePrecision(),
+  elevationFactor: doublePrecision(),
+  scaleFactor: doublePrecision(),
 }, (t) => [index('observation_results_firm_run').on(t.firmId, t.adjustmentId)])
 
 export const relativePrecisions = pgTable('relative_precisions', {
@@ -329,6 +357,7 @@ export const relativePrecisions = pgTable('relative_precisions', {
   semiMinor: doublePrecision().notNull(),
   azimuthDeg: doublePrecision().notNull(),
   semiMajor95: doublePrecision().notNull(),
+  sdDistance: doublePrecision(),
   allowable: doublePrecision(),
   passes: boolean(),
 }, (t) => [index('relative_precisions_firm_run').on(t.firmId, t.adjustmentId)])
