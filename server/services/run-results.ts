@@ -237,6 +237,8 @@ export async function distributions(firmId: number, runId: number) {
   return { w: { from: -5, width: 0.5, counts: wBins }, redundancy: { edges: [0, 0.1, 0.2, 0.4, 0.6, 0.8, 1], counts: rBins } }
 }
 
+const round = (v: number, d: number) => Math.round(v * 10 ** d) / 10 ** d
+
 /**
  * Everything the map draws, as parallel arrays (a 10,000-station run is a
  * few hundred KB, not megabytes of objects): stations with their ellipse at
@@ -259,13 +261,14 @@ export async function mapData(firmId: number, runId: number) {
   st.rows.forEach((s, i) => {
     index.set(s.name, i)
     stations.name.push(s.name)
-    stations.east.push(s.east)
-    stations.north.push(s.north)
+    // drawn, not quoted: positions to the millimetre, axes to 0.01 mm, azimuths to 0.1°, keep the payload small
+    stations.east.push(round(s.east, 3))
+    stations.north.push(round(s.north, 3))
     // 0 new, 1 control held fixed, 2 control weighted or free
     stations.kind.push(s.kind !== 'control' ? 0 : s.fixed ? 1 : 2)
-    stations.a.push(s.fixed ? null : s.a)
-    stations.b.push(s.fixed ? null : s.b)
-    stations.az.push(s.fixed ? null : s.az)
+    stations.a.push(s.fixed || s.a === null ? null : round(s.a, 5))
+    stations.b.push(s.fixed || s.b === null ? null : round(s.b, 5))
+    stations.az.push(s.fixed || s.az === null ? null : round(s.az, 1))
   })
   const lines = { from: [] as number[], to: [] as number[], rating: [] as number[], used: [] as number[], excluded: [] as number[] }
   for (const l of ln.rows) {

@@ -1,6 +1,9 @@
 // Bench: parse and store a 100,000-line observation CSV and a ~10 MB LandXML
-// file into PostgreSQL through the upload service, in a throw-away project.
-// Prints rows/s and peak RSS. Targets (not asserted): < 10 s, < 300 MB.
+// file into PostgreSQL through the upload service, in a throw-away project;
+// then store the results of a 10,000-station run (TIEPOINT_BENCH_STORE_STATIONS)
+// with the worker's COPY path and read a filtered page and the map data back.
+// Prints rows/s and peak RSS. Targets (not asserted): uploads < 10 s and
+// < 300 MB; storing a 10,000-station run < 5 s.
 // Needs DATABASE_URL (e.g. the test cluster); skips with a message without it.
 import { eq } from 'drizzle-orm'
 
@@ -12,6 +15,10 @@ if (!process.env.DATABASE_URL) {
 const { closeDb, useDb } = await import('../../server/db/client')
 const { firms, projects, users } = await import('../../server/db/schema')
 const { uploadObservationSet } = await import('../../server/services/observations')
+const { adjustments } = await import('../../server/db/schema')
+const { storeResults, pageObservations, mapData } = await import('../../server/services/run-results')
+const { observationPageQuery } = await import('../../shared/schemas/run-results')
+type AdjustmentResult = import('../../server/engine/types').AdjustmentResult
 
 let peak = process.memoryUsage().rss
 const sampler = setInterval(() => { peak = Math.max(peak, process.memoryUsage().rss) }, 20)
@@ -74,9 +81,64 @@ async function run(label: string, name: string, make: () => string) {
   await db.delete(projects).where(eq(projects.id, project!.id))
 }
 
+/**
+ * A result of the size a 10,000-station network gives (≈ 6 neighbours: about
+ * 92,000 observations and 30,000 connected pairs), with invented values: this
+ * times only the storage (COPY into the three result tables), which does not
+ * depend on what the numbers are.
+ */
+function inventResult(stations: number): AdjustmentResult {
+  const side = Math.round(Math.sqrt(stations))
+  const name = (i: number, j: number) => `P${i}_${j}`
+  const st: AdjustmentResult['stations'] = []
+  const obs: AdjustmentResult['observations'] = []
+  const rel: AdjustmentResult['relative'] = []
+  let line = 1
+  for (let i = 0; i < side; i++) for (let j = 0; j < side; j++) {
+    const fixed = (i === 0 || i === side - 1) && (j === 0 || j === side - 1)
+    const e = { semiMajor: 0.004 + (i % 7) / 1000, semiMinor: 0.002, azimuthDeg: (i * 7 + j) % 180 }
+    st.push({ name: name(i, j), east: 5000 + i * 200.123, north: 8000 + j * 199.877, height: null, sdEast: fixed ? 0 : 0.002, sdNorth: fixed ? 0 : 0.002, sdHeight: null,
+      ellipse: fixed ? null : e, ellipse95: fixed ? null : { ...e, semiMajor: e.semiMajor * 2.45, semiMinor: e.semiMinor * 2.45 }, fixed, kind: fixed ? 'control' : 'new', controlled: { east: fixed, north: fixed, height: false } })
+    for (const [di, dj] of [[1, 0], [0, 1], [1, 1]] as const) {
+      if (i + di >= side || j + dj >= side) continue
+      const to = name(i + di, j + dj)
+      rel.push({ from: name(i, j), to, distance: 200 * Math.hypot(di, dj), semiMajor: 0.003, semiMinor: 0.002, azimuthDeg: 45, semiMajor95: 0.0073, sdDistance: 0.002 })
+      for (const [at, tgt] of [[name(i, j), to], [to, name(i, j)]] as const) {
+        for (const kind of ['direction', 'horizontal_distance'] as const) {
+          const w = ((line * 7919) % 1000) / 250 - 2
+          obs.push({ id: null, line: line++, kind, component: null, at, from: null, to: tgt, observed: kind === 'direction' ? 123.456789 : 200.1234, adjusted: kind === 'direction' ? 123.4567 : 200.1231,
+            valueUnit: kind === 'direction' ? 'deg' : 'm', residual: kind === 'direction' ? 1.2 : 0.0012, sigma: kind === 'direction' ? 2 : 0.002, residualUnit: kind === 'direction' ? 'arcsec' : 'm',
+            redundancy: 0.55, w, flagged: Math.abs(w) > 3.29, tau: w, tauFlagged: false, mdb: kind === 'direction' ? 11 : 0.011, mdbEffect: 0.004, excluded: false, weak: false, remark: null })
+        }
+      }
+    }
+  }
+  return { stations: st, observations: obs, relative: rel } as unknown as AdjustmentResult
+}
+
+async function storeRun(stations: number) {
+  const [project] = await db.insert(projects).values({ firmId: firm!.id, name: `bench results ${Date.now()}`, crs: 'local', units: 'm' }).returning()
+  const [run] = await db.insert(adjustments).values({ firmId: firm!.id, projectId: project!.id, number: 1, settings: {}, inputHash: 'bench', status: 'running' }).returning()
+  const r = inventResult(stations)
+  const rel = r.relative.map((p) => ({ rel: p, check: { semiMajor95: p.semiMajor95, allowable: 0.02 + 50e-6 * p.distance, passes: true } }))
+  const t0 = performance.now()
+  let copyMs = 0
+  await db.transaction(async (tx) => { copyMs = await storeResults(tx, firm!.id, run!.id, r, new Map(), rel) })
+  const total = performance.now() - t0
+  const t1 = performance.now()
+  await pageObservations(firm!.id, run!.id, observationPageQuery.parse({ sort: '-absW', flagged: '1', page: '2' }))
+  const tPage = performance.now() - t1
+  const t2 = performance.now()
+  const map = await mapData(firm!.id, run!.id)
+  const tMap = performance.now() - t2
+  console.log(`[bench store] results of a ${r.stations.length.toLocaleString('en')}-station run (${r.observations.length.toLocaleString('en')} observations, ${r.relative.length.toLocaleString('en')} pairs, invented values): COPY ${copyMs} ms, with commit ${total.toFixed(0)} ms (target < 5 s); residual page 2 of ?sort=-absW&flagged=1 ${tPage.toFixed(0)} ms; map data ${tMap.toFixed(0)} ms, ${(JSON.stringify(map).length / 1024).toFixed(0)} KiB`)
+  await db.delete(projects).where(eq(projects.id, project!.id))
+}
+
 try {
   await run('CSV 100,000 lines', 'bench.csv', () => csvText(100_000))
   await run('LandXML ~10 MB', 'bench.xml', () => xmlText(10 * 1024 * 1024))
+  for (const n of (process.env.TIEPOINT_BENCH_STORE_STATIONS ?? '10000').split(',').map(Number).filter((x) => x > 0)) await storeRun(n)
 } finally {
   clearInterval(sampler)
   await closeDb()
