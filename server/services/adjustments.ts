@@ -13,7 +13,7 @@ import { usePool, useDb } from '../db/client'
 import { adjustments, observations, projects, users } from '../db/schema'
 import type { Adjustment, Project } from '../db/schema'
 import { adjustNetwork } from '../engine/index'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
 import { checkRelative, semiMajorAt95 } from './accuracy'
 import { audit } from './audit'
@@ -47,14 +47,14 @@ export interface RunListItem {
 export async function queueRun(ctx: FirmContext, project: Project, body: unknown, opts: { queue?: string } = {}): Promise<{ number: number; status: RunStatus }> {
   const parsed = runSettingsSchema.safeParse(body ?? {})
   if (!parsed.success) {
-    throw new ApiError(422, 'Some settings are not valid', parsed.error.issues.map((i) => ({ field: i.path.join('.') || undefined, message: i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message })))
+    throw new DomainError('invalid', 'Some settings are not valid', parsed.error.issues.map((i) => ({ field: i.path.join('.') || undefined, message: i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message })))
   }
   const db = useDb()
   let inputs
   try {
     inputs = await loadRunInputs(ctx.firm.id, project.id, parsed.data)
   } catch (e) {
-    if (e instanceof RunInputError) throw new ApiError(422, e.message, [{ field: e.field, message: e.message }])
+    if (e instanceof RunInputError) throw new DomainError('invalid', e.message, [{ field: e.field, message: e.message }])
     throw e
   }
   const run = await db.transaction(async (tx) => {
@@ -141,7 +141,7 @@ export async function getRun(ctx: FirmContext, project: Project, number: number)
 /** A finished run, or 409 naming its state. */
 export async function findDoneRun(ctx: FirmContext, project: Project, number: number): Promise<Adjustment> {
   const run = await findRun(ctx, project, number)
-  if (run.status !== 'done' || !run.summary) throw new ApiError(409, `Run ${number} has no results (${run.status})`)
+  if (run.status !== 'done' || !run.summary) throw new DomainError('conflict', `Run ${number} has no results (${run.status})`)
   return run
 }
 
@@ -193,7 +193,7 @@ export async function excludeAndRerun(ctx: FirmContext, project: Project, number
   const db = useDb()
   const [obs] = await db.select().from(observations)
     .where(and(eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id), eq(observations.id, observationId))).limit(1)
-  if (!obs) throw new ApiError(422, 'That observation is not in this project', [{ field: 'observationId', message: 'observationId: not in this project' }])
+  if (!obs) throw new DomainError('invalid', 'That observation is not in this project', [{ field: 'observationId', message: 'observationId: not in this project' }])
   if (!obs.excluded) {
     await db.transaction(async (tx) => {
       await tx.update(observations).set({ excluded: true }).where(and(eq(observations.firmId, ctx.firm.id), eq(observations.id, obs.id)))

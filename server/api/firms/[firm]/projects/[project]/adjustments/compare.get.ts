@@ -3,9 +3,4 @@ import { STAFF } from '../../../../../../../shared/roles'
 import { compareQuery } from '../../../../../../../shared/schemas/run-results'
 import { compareProjectRuns } from '../../../../../../services/adjustments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  const query = parseQuery(event, compareQuery)
-  return compareProjectRuns(ctx, project, query)
-})
+export default defineFirmRoute({ roles: STAFF, project: true, query: compareQuery }, ({ ctx, project, query }) => compareProjectRuns(ctx, project, query))

@@ -3,10 +3,5 @@ import { STAFF } from '../../../../../../../../shared/roles'
 import { observationPageQuery } from '../../../../../../../../shared/schemas/run-results'
 import { runObservations } from '../../../../../../../services/adjustments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  const number = idParam(event, 'number')
-  const query = parseQuery(event, observationPageQuery)
-  return runObservations(ctx, project, number, query)
-})
+export default defineFirmRoute({ roles: STAFF, project: true, query: observationPageQuery }, ({ event, ctx, project, query }) =>
+  runObservations(ctx, project, idParam(event, 'number'), query))

@@ -3,10 +3,5 @@ import { STAFF } from '../../../../../../../../shared/roles'
 import { relativePageQuery } from '../../../../../../../../shared/schemas/run-results'
 import { runRelative } from '../../../../../../../services/adjustments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  const number = idParam(event, 'number')
-  const query = parseQuery(event, relativePageQuery)
-  return runRelative(ctx, project, number, query)
-})
+export default defineFirmRoute({ roles: STAFF, project: true, query: relativePageQuery }, ({ event, ctx, project, query }) =>
+  runRelative(ctx, project, idParam(event, 'number'), query))

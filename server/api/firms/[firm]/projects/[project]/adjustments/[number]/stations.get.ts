@@ -3,10 +3,5 @@ import { STAFF } from '../../../../../../../../shared/roles'
 import { stationPageQuery } from '../../../../../../../../shared/schemas/run-results'
 import { runStations } from '../../../../../../../services/adjustments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  const number = idParam(event, 'number')
-  const query = parseQuery(event, stationPageQuery)
-  return runStations(ctx, project, number, query)
-})
+export default defineFirmRoute({ roles: STAFF, project: true, query: stationPageQuery }, ({ event, ctx, project, query }) =>
+  runStations(ctx, project, idParam(event, 'number'), query))
