@@ -6,12 +6,18 @@
 // and the residuals CSV. Prints each time and size, the engine and storage
 // times the worker recorded, and the app process's peak RSS. Then, for the
 // smallest size (or TIEPOINT_BENCH_PAGE_STATIONS), the run page in headless
-// Chromium: time to network idle and the table rows in the DOM.
+// Chromium: time to network idle and the table rows in the DOM. Last, a
+// 10,000-station run with invented results (TIEPOINT_BENCH_INVENTED_STATIONS)
+// stored with the worker's COPY path and its run page timed the same way.
 // Figures only, no pass/fail. Run with `bash docker-free-scripts/bench-api.sh`
 // (starts DB, app and worker). The 10,000-station figure needs the sparse
 // factorization: with the dense one the engine alone takes many minutes there.
 import { performance } from 'node:perf_hooks'
-import { closeDb } from '../../server/db/client'
+import { eq } from 'drizzle-orm'
+import { closeDb, useDb } from '../../server/db/client'
+import { adjustments, firms, users } from '../../server/db/schema'
+import { buildSummary, storeResults } from '../../server/services/run-results'
+import { inventResult } from './invented-result'
 import { gridNetwork } from '../unit/engine/helpers'
 import { launch, newPage, signIn } from '../support/browser'
 import { as, DEMO, type Client } from '../support/http'
@@ -98,10 +104,41 @@ async function pageLoad(target: { projectId: number; number: number }, stations:
     const painted = performance.now() - t0
     const rows = await page.locator('table tbody tr').count()
     const nodes = await page.evaluate(() => document.getElementsByTagName('*').length)
+    await page.getByTestId('network-map').screenshot({ path: `tests/screenshots/bench-map-${stations}.png` })
     console.log(`\nrun page, ${stations.toLocaleString('en')} stations, headless Chromium: network idle ${idle.toFixed(0)} ms, map canvas ${painted.toFixed(0)} ms; ${rows} table rows, ${nodes.toLocaleString('en')} DOM elements`)
   } finally {
     await browser.close()
   }
+}
+
+/**
+ * A finished run of `stations` stations with invented results, stored with the
+ * worker's own COPY path, so the run page can be timed at a size the dense
+ * engine cannot reach yet.
+ */
+async function inventedRun(chief: Client, stations: number) {
+  const created = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `Bench page ${stations} ${Date.now()}`, crs: 'local', units: 'm' })
+  const projectId = Number(created.body.id)
+  const db = useDb()
+  const [firm] = await db.select().from(firms).where(eq(firms.slug, DEMO.firm))
+  const [user] = await db.select().from(users).where(eq(users.email, DEMO.chief))
+  const r = inventResult(stations)
+  const rel = r.relative.map((p) => ({ rel: p, check: { semiMajor95: p.semiMajor95, allowable: 0.02 + 50e-6 * p.distance, passes: p.semiMajor95 <= 0.02 + 50e-6 * p.distance } }))
+  const summary = buildSummary(r, null, rel.map((c) => c.check.passes), 0, ['invented results for the page benchmark'])
+  const [run] = await db.insert(adjustments).values({ firmId: firm!.id, projectId, number: 1, settings: { confidence: 0.95 }, inputHash: 'bench', status: 'running', createdBy: user!.id }).returning()
+  const t0 = performance.now()
+  await db.transaction(async (tx) => {
+    summary.storeMs = await storeResults(tx, firm!.id, run!.id, r, new Map(), rel)
+    await tx.update(adjustments).set({ status: 'done', finishedAt: new Date(), startedAt: new Date(), summary: summary as unknown as Record<string, unknown> }).where(eq(adjustments.id, run!.id))
+  })
+  console.log(`
+invented ${stations.toLocaleString('en')}-station run (${r.observations.length.toLocaleString('en')} observation results, ${r.relative.length.toLocaleString('en')} pairs): stored with COPY in ${summary.storeMs} ms, ${(performance.now() - t0).toFixed(0)} ms with the commit`)
+  const path = `/api/firms/${DEMO.firm}/projects/${projectId}/adjustments/1`
+  const first = await timed(chief, path)
+  const overview = await timed(chief, `${path}/overview`)
+  const page2 = await timed(chief, `${path}/observations?sort=-absW&flagged=1&page=2`)
+  console.log(`  run GET ${first.ms.toFixed(0)} ms, ${kib(first.bytes)}; overview ${overview.ms.toFixed(0)} ms, ${kib(overview.bytes)}; ?sort=-absW&flagged=1&page=2 ${page2.ms.toFixed(0)} ms`)
+  return { projectId, number: 1 }
 }
 
 async function main() {
@@ -114,6 +151,8 @@ async function main() {
       if (r && n === PAGE_SIZE_STATIONS) forPage = r
     }
     if (forPage) await pageLoad(forPage, PAGE_SIZE_STATIONS)
+    const invented = Number(process.env.TIEPOINT_BENCH_INVENTED_STATIONS ?? 10_000)
+    if (invented > 0) await pageLoad(await inventedRun(chief, invented), invented)
   } finally {
     await teardown()
     await closeDb()

@@ -18,7 +18,7 @@ const { uploadObservationSet } = await import('../../server/services/observation
 const { adjustments } = await import('../../server/db/schema')
 const { storeResults, pageObservations, mapData } = await import('../../server/services/run-results')
 const { observationPageQuery } = await import('../../shared/schemas/run-results')
-type AdjustmentResult = import('../../server/engine/types').AdjustmentResult
+const { inventResult } = await import('./invented-result')
 
 let peak = process.memoryUsage().rss
 const sampler = setInterval(() => { peak = Math.max(peak, process.memoryUsage().rss) }, 20)
@@ -79,41 +79,6 @@ async function run(label: string, name: string, make: () => string) {
   const s = (performance.now() - t0) / 1000
   console.log(`[bench store] ${label}: ${(bytes.length / 1048576).toFixed(1)} MB, ${lines} lines → ${r.observations} observations stored in ${s.toFixed(2)} s (${Math.round(r.observations / s).toLocaleString('en')} rows/s)${s < 10 ? '' : '  ABOVE the 10 s target'}`)
   await db.delete(projects).where(eq(projects.id, project!.id))
-}
-
-/**
- * A result of the size a 10,000-station network gives (≈ 6 neighbours: about
- * 92,000 observations and 30,000 connected pairs), with invented values: this
- * times only the storage (COPY into the three result tables), which does not
- * depend on what the numbers are.
- */
-function inventResult(stations: number): AdjustmentResult {
-  const side = Math.round(Math.sqrt(stations))
-  const name = (i: number, j: number) => `P${i}_${j}`
-  const st: AdjustmentResult['stations'] = []
-  const obs: AdjustmentResult['observations'] = []
-  const rel: AdjustmentResult['relative'] = []
-  let line = 1
-  for (let i = 0; i < side; i++) for (let j = 0; j < side; j++) {
-    const fixed = (i === 0 || i === side - 1) && (j === 0 || j === side - 1)
-    const e = { semiMajor: 0.004 + (i % 7) / 1000, semiMinor: 0.002, azimuthDeg: (i * 7 + j) % 180 }
-    st.push({ name: name(i, j), east: 5000 + i * 200.123, north: 8000 + j * 199.877, height: null, sdEast: fixed ? 0 : 0.002, sdNorth: fixed ? 0 : 0.002, sdHeight: null,
-      ellipse: fixed ? null : e, ellipse95: fixed ? null : { ...e, semiMajor: e.semiMajor * 2.45, semiMinor: e.semiMinor * 2.45 }, fixed, kind: fixed ? 'control' : 'new', controlled: { east: fixed, north: fixed, height: false } })
-    for (const [di, dj] of [[1, 0], [0, 1], [1, 1]] as const) {
-      if (i + di >= side || j + dj >= side) continue
-      const to = name(i + di, j + dj)
-      rel.push({ from: name(i, j), to, distance: 200 * Math.hypot(di, dj), semiMajor: 0.003, semiMinor: 0.002, azimuthDeg: 45, semiMajor95: 0.0073, sdDistance: 0.002 })
-      for (const [at, tgt] of [[name(i, j), to], [to, name(i, j)]] as const) {
-        for (const kind of ['direction', 'horizontal_distance'] as const) {
-          const w = ((line * 7919) % 1000) / 250 - 2
-          obs.push({ id: null, line: line++, kind, component: null, at, from: null, to: tgt, observed: kind === 'direction' ? 123.456789 : 200.1234, adjusted: kind === 'direction' ? 123.4567 : 200.1231,
-            valueUnit: kind === 'direction' ? 'deg' : 'm', residual: kind === 'direction' ? 1.2 : 0.0012, sigma: kind === 'direction' ? 2 : 0.002, residualUnit: kind === 'direction' ? 'arcsec' : 'm',
-            redundancy: 0.55, w, flagged: Math.abs(w) > 3.29, tau: w, tauFlagged: false, mdb: kind === 'direction' ? 11 : 0.011, mdbEffect: 0.004, excluded: false, weak: false, remark: null })
-        }
-      }
-    }
-  }
-  return { stations: st, observations: obs, relative: rel } as unknown as AdjustmentResult
 }
 
 async function storeRun(stations: number) {
