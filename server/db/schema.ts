@@ -4,10 +4,12 @@
 // its indexes start with it: every query filters by the firm.
 import { sql } from 'drizzle-orm'
 import {
+  type AnyPgColumn,
   bigint,
   boolean,
   customType,
   doublePrecision,
+  foreignKey,
   index,
   integer,
   jsonb,
@@ -285,12 +287,24 @@ export const adjustments = pgTable('adjustments', {
   errorText: text(),
   createdBy: integer().references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
-}, (t) => [uniqueIndex('adjustments_firm_project_number').on(t.firmId, t.projectId, t.number)])
+}, (t) => [
+  uniqueIndex('adjustments_firm_project_number').on(t.firmId, t.projectId, t.number),
+  // the target of the result tables' one (firm, run) foreign key
+  uniqueIndex('adjustments_firm_id').on(t.firmId, t.id),
+])
+
+// The three result tables of a run are written with COPY, up to ~160,000 rows
+// for a 10,000-station run, and PostgreSQL checks a foreign key once per row.
+// So each has one composite key (firm_id, adjustment_id) → adjustments (which
+// also proves the firm matches the run's), instead of one key to firms and one
+// to adjustments; deleting a run, project or firm still removes its results.
+const runResultKey = (name: string, t: { firmId: AnyPgColumn; adjustmentId: AnyPgColumn }) =>
+  foreignKey({ name, columns: [t.firmId, t.adjustmentId], foreignColumns: [adjustments.firmId, adjustments.id] }).onDelete('cascade')
 
 export const adjustedStations = pgTable('adjusted_stations', {
   id: id(),
-  firmId: firmRef(),
-  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
+  firmId: integer().notNull(),
+  adjustmentId: integer().notNull(),
   name: text().notNull(),
   kind: stationKindEnum().notNull(),
   fixed: boolean().notNull(),
@@ -309,13 +323,18 @@ export const adjustedStations = pgTable('adjusted_stations', {
   controlledEast: boolean().notNull().default(false),
   controlledNorth: boolean().notNull().default(false),
   controlledHeight: boolean().notNull().default(false),
-}, (t) => [index('adjusted_stations_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('adjusted_stations_run_fk', t), index('adjusted_stations_firm_run').on(t.firmId, t.adjustmentId)])
 
 export const observationResults = pgTable('observation_results', {
   id: id(),
-  firmId: firmRef(),
-  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
-  observationId: integer().references(() => observations.id, { onDelete: 'set null' }),
+  firmId: integer().notNull(),
+  adjustmentId: integer().notNull(),
+  /**
+   * the observation this row reports on. No foreign key: a run's record stays
+   * as it was computed even if the observation is deleted later (whoever acts
+   * on the id looks it up in the project first), and it spares a check per row.
+   */
+  observationId: integer(),
   line: integer().notNull(),
   kind: resultKindEnum().notNull(),
   /** coordinate component of a 'control' row */
@@ -344,12 +363,12 @@ export const observationResults = pgTable('observation_results', {
   combinedFactor: doublePrecision(),
   elevationFactor: doublePrecision(),
   scaleFactor: doublePrecision(),
-}, (t) => [index('observation_results_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('observation_results_run_fk', t), index('observation_results_firm_run').on(t.firmId, t.adjustmentId)])
 
 export const relativePrecisions = pgTable('relative_precisions', {
   id: id(),
-  firmId: firmRef(),
-  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
+  firmId: integer().notNull(),
+  adjustmentId: integer().notNull(),
   fromStation: text().notNull(),
   toStation: text().notNull(),
   distance: doublePrecision().notNull(),
@@ -360,7 +379,7 @@ export const relativePrecisions = pgTable('relative_precisions', {
   sdDistance: doublePrecision(),
   allowable: doublePrecision(),
   passes: boolean(),
-}, (t) => [index('relative_precisions_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('relative_precisions_run_fk', t), index('relative_precisions_firm_run').on(t.firmId, t.adjustmentId)])
 
 // ── sign-off, release, audit ────────────────────────────────────────────────
 

@@ -124,9 +124,9 @@ export async function getRun(ctx: FirmContext, project: Project, number: number)
   }
   if (run.status !== 'done' || !summary) return { ...base, result: null, stations: [], observations: [], relative: [], totals: { stations: 0, observations: 0, relative: 0 } }
   const [stations, observations, relative] = await Promise.all([
-    pageStations(ctx.firm.id, run.id, stationPageQuery.parse({})),
-    pageObservations(ctx.firm.id, run.id, observationPageQuery.parse({})),
-    pageRelative(ctx.firm.id, run.id, relativePageQuery.parse({})),
+    pageStations(ctx.firm.id, run.id, summary.rows?.stations, stationPageQuery.parse({})),
+    pageObservations(ctx.firm.id, run.id, summary.rows?.observations, observationPageQuery.parse({})),
+    pageRelative(ctx.firm.id, run.id, summary.rows?.relative, relativePageQuery.parse({})),
   ])
   return {
     ...base,
@@ -146,13 +146,13 @@ export async function findDoneRun(ctx: FirmContext, project: Project, number: nu
 }
 
 export async function runStations(ctx: FirmContext, project: Project, number: number, q: StationPageQuery) {
-  return pageStations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, q)
+  return pageStations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
 }
 export async function runObservations(ctx: FirmContext, project: Project, number: number, q: ObservationPageQuery) {
-  return pageObservations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, q)
+  return pageObservations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
 }
 export async function runRelative(ctx: FirmContext, project: Project, number: number, q: RelativePageQuery) {
-  return pageRelative(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, q)
+  return pageRelative(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
 }
 /** What the map and the two histograms draw, computed in SQL. */
 export async function runOverview(ctx: FirmContext, project: Project, number: number) {

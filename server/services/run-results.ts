@@ -163,12 +163,14 @@ function orderBy(sort: string, columns: Record<string, string>): SQL {
 /** `needle` inside `column`, case-insensitive, with no LIKE wildcards to escape. */
 const contains = (column: string, needle: string) => sql`position(lower(${needle}) in lower(${sql.raw(column)})) > 0`
 
-async function paged<T>(table: string, select: SQL, where: SQL[], order: SQL, q: { page: number; size: number; sort: string }, map: (row: any) => T): Promise<Page<T>> {
+/** `known`: the unfiltered total when the caller has it (the summary's row counts), saving the count. */
+async function paged<T>(table: string, select: SQL, where: SQL[], order: SQL, q: { page: number; size: number; sort: string }, map: (row: any) => T, known?: number): Promise<Page<T>> {
   const db = useDb()
   const cond = sql.join(where, sql` and `)
+  const useKnown = known !== undefined && where.length === 1
   const [rows, count] = await Promise.all([
     db.execute(sql`select ${select} from ${sql.raw(table)} where ${cond} order by ${order} limit ${q.size} offset ${(q.page - 1) * q.size}`),
-    db.execute<{ n: number }>(sql`select count(*)::int as n from ${sql.raw(table)} where ${cond}`),
+    useKnown ? Promise.resolve({ rows: [{ n: known }] }) : db.execute<{ n: number }>(sql`select count(*)::int as n from ${sql.raw(table)} where ${cond}`),
   ])
   return { page: q.page, size: q.size, total: count.rows[0]?.n ?? 0, sort: q.sort, rows: rows.rows.map(map) }
 }
@@ -178,12 +180,12 @@ const runScope = (firmId: number, runId: number) => sql`firm_id = ${firmId} and 
 const STATION_SORT_SQL: Record<string, string> = {
   order: 'id', name: 'name', east: 'east', north: 'north', height: 'height', sdEast: 'sd_east', sdNorth: 'sd_north', sdHeight: 'sd_height', semiMajor95: 'semi_major95',
 }
-export function pageStations(firmId: number, runId: number, q: StationPageQuery): Promise<Page<StationResult>> {
+export function pageStations(firmId: number, runId: number, known: number | undefined, q: StationPageQuery): Promise<Page<StationResult>> {
   const where = [runScope(firmId, runId)]
   if (q.q) where.push(contains('name', q.q))
   if (q.kind) where.push(sql`kind = ${q.kind}`)
   if (q.fixed !== undefined) where.push(sql`fixed = ${q.fixed}`)
-  return paged('adjusted_stations', STATION_SELECT, where, orderBy(q.sort, STATION_SORT_SQL), q, stationOf)
+  return paged('adjusted_stations', STATION_SELECT, where, orderBy(q.sort, STATION_SORT_SQL), q, stationOf, known)
 }
 
 /** mm for lengths and arcseconds for angles, so one |residual| order makes sense across kinds (as the table shows them). */
@@ -195,7 +197,7 @@ const OBSERVATION_SORT_SQL: Record<string, string> = {
 /** The residual table's rating in SQL (rateObservation in composables/useRunFormat.ts). */
 const FAILS = `(not excluded and (flagged or tau_flagged))`
 const WATCH = `(not excluded and not (flagged or tau_flagged) and (coalesce(abs(w), 0) > 2 or weak))`
-export function pageObservations(firmId: number, runId: number, q: ObservationPageQuery): Promise<Page<ObservationResult>> {
+export function pageObservations(firmId: number, runId: number, known: number | undefined, q: ObservationPageQuery): Promise<Page<ObservationResult>> {
   const where = [runScope(firmId, runId)]
   if (q.q) where.push(sql`(${contains('at', q.q)} or ${contains('"to"', q.q)} or ${contains('coalesce("from", \'\')', q.q)})`)
   if (q.station) where.push(sql`(at = ${q.station} or "to" = ${q.station} or "from" = ${q.station})`)
@@ -206,17 +208,17 @@ export function pageObservations(firmId: number, runId: number, q: ObservationPa
   if (q.rating === 'fail') where.push(sql.raw(FAILS))
   if (q.rating === 'watch') where.push(sql.raw(WATCH))
   if (q.rating === 'pass') where.push(sql.raw(`not ${FAILS} and not ${WATCH}`))
-  return paged('observation_results', OBSERVATION_SELECT, where, orderBy(q.sort, OBSERVATION_SORT_SQL), q, observationOf)
+  return paged('observation_results', OBSERVATION_SELECT, where, orderBy(q.sort, OBSERVATION_SORT_SQL), q, observationOf, known)
 }
 
 const RELATIVE_SORT_SQL: Record<string, string> = {
   order: 'id', from: 'from_station', to: 'to_station', distance: 'distance', semiMajor95: 'semi_major95', ratio: 'semi_major95 / nullif(allowable, 0)',
 }
-export function pageRelative(firmId: number, runId: number, q: RelativePageQuery): Promise<Page<RelativeRow>> {
+export function pageRelative(firmId: number, runId: number, known: number | undefined, q: RelativePageQuery): Promise<Page<RelativeRow>> {
   const where = [runScope(firmId, runId)]
   if (q.q) where.push(sql`(${contains('from_station', q.q)} or ${contains('to_station', q.q)})`)
   if (q.passes !== undefined) where.push(sql`passes = ${q.passes}`)
-  return paged('relative_precisions', RELATIVE_SELECT, where, orderBy(q.sort, RELATIVE_SORT_SQL), q, (r) => r as RelativeRow)
+  return paged('relative_precisions', RELATIVE_SELECT, where, orderBy(q.sort, RELATIVE_SORT_SQL), q, (r) => r as RelativeRow, known)
 }
 
 // ── overviews computed in SQL (histograms, redundancy bins, the map) ────────

@@ -74,10 +74,13 @@ async function run(label: string, name: string, make: () => string) {
   const lines = text.split('\n').length - 1
   const bytes = Buffer.from(text, 'utf8')
   text = undefined
+  ;(globalThis as { gc?: () => void }).gc?.()
+  const before = process.memoryUsage().rss
+  peak = before
   const t0 = performance.now()
   const r = await uploadObservationSet(ctx, project!, { name, bytes })
   const s = (performance.now() - t0) / 1000
-  console.log(`[bench store] ${label}: ${(bytes.length / 1048576).toFixed(1)} MB, ${lines} lines → ${r.observations} observations stored in ${s.toFixed(2)} s (${Math.round(r.observations / s).toLocaleString('en')} rows/s)${s < 10 ? '' : '  ABOVE the 10 s target'}`)
+  console.log(`[bench store] ${label}: ${(bytes.length / 1048576).toFixed(1)} MB, ${lines} lines → ${r.observations} observations stored in ${s.toFixed(2)} s (${Math.round(r.observations / s).toLocaleString('en')} rows/s)${s < 10 ? '' : '  ABOVE the 10 s target'}; RSS ${(before / 1048576).toFixed(0)} MB before, peak ${(peak / 1048576).toFixed(0)} MB during the upload`)
   await db.delete(projects).where(eq(projects.id, project!.id))
 }
 
@@ -91,7 +94,7 @@ async function storeRun(stations: number) {
   await db.transaction(async (tx) => { copyMs = await storeResults(tx, firm!.id, run!.id, r, new Map(), rel) })
   const total = performance.now() - t0
   const t1 = performance.now()
-  await pageObservations(firm!.id, run!.id, observationPageQuery.parse({ sort: '-absW', flagged: '1', page: '2' }))
+  await pageObservations(firm!.id, run!.id, undefined, observationPageQuery.parse({ sort: '-absW', flagged: '1', page: '2' }))
   const tPage = performance.now() - t1
   const t2 = performance.now()
   const map = await mapData(firm!.id, run!.id)
