@@ -182,6 +182,7 @@ export async function getRunStatus(ctx: FirmContext, project: Project, number: n
 /** The run's coordinates or residuals as CSV in project units, streamed from the database. */
 export async function exportCsv(ctx: FirmContext, project: Project, number: number, what: 'coordinates' | 'residuals'): Promise<{ fileName: string; stream: Readable }> {
   const run = await findDoneRun(ctx, project, number)
+  await audit(useDb(), { firmId: ctx.firm.id, userId: ctx.user.id, action: 'adjustment.export', entityType: 'adjustment', entityId: run.id, projectId: project.id, after: { number, what } })
   return { fileName: `run-${number}-${what}.csv`, stream: await csvStream(run, project, what) }
 }
 
@@ -262,7 +263,10 @@ async function finishFailed(run: Adjustment, message: string, summary?: Record<s
   const changed = await useDb().update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: message, ...(summary ? { summary } : {}) })
     .where(and(eq(adjustments.firmId, run.firmId), eq(adjustments.id, run.id), sql`${adjustments.status} in ('queued', 'running')`))
     .returning({ id: adjustments.id })
-  if (changed.length) await tellRunFailed(run.id)
+  if (changed.length) {
+    await audit(useDb(), { firmId: run.firmId, userId: null, action: 'adjustment.fail', entityType: 'adjustment', entityId: run.id, projectId: run.projectId, after: { number: run.number, reason: message } })
+    await tellRunFailed(run.id)
+  }
 }
 
 /** The e-mail is a courtesy: a mail server that is down must not change the run's outcome. */
@@ -342,9 +346,11 @@ export async function sweepStuckRuns(failJob: (queue: string, jobId: string) => 
         const where = and(eq(adjustments.firmId, s.firmId), eq(adjustments.id, s.id), eq(adjustments.status, 'running'))
         if (job && (job.state === 'retry' || job.state === 'created')) {
           await db.update(adjustments).set({ status: 'queued', errorText: 'The worker computing this run stopped; the run is queued again' }).where(where)
+          await audit(db, { firmId: s.firmId, userId: null, action: 'adjustment.sweep', entityType: 'adjustment', entityId: s.id, after: { outcome: 'requeued' } })
           requeued++
         } else {
           await db.update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: 'The worker computing this run stopped and no retry is left; start the run again' }).where(where)
+          await audit(db, { firmId: s.firmId, userId: null, action: 'adjustment.sweep', entityType: 'adjustment', entityId: s.id, after: { outcome: 'failed' } })
           failed++
           await tellRunFailed(s.id)
         }

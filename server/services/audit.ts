@@ -1,10 +1,19 @@
 // The audit log: who did what, when, with hashes of the before and after state.
+// `audit()` is the one function that writes a row; everything else (firm
+// events, person-level events) goes through it.
+//
+// Firm events carry the firm. Person-level events — sign-in (success and
+// failure), password change and reset, API tokens, profile and licence
+// edits, development-mailbox reads — belong to no firm: their firm_id is null
+// and they are shown to that person on their profile page, not in any firm's log.
 import { auditLog } from '../db/schema'
 import type { Db, Tx } from '../db/client'
+import { useDb } from '../db/client'
 import { sha256Hex } from './passwords'
 
 export interface AuditEntry {
-  firmId: number
+  /** null for a person-level event */
+  firmId: number | null
   userId: number | null
   action: string
   entityType: string
@@ -29,4 +38,9 @@ export async function audit(db: Db | Tx, e: AuditEntry): Promise<void> {
     beforeHash: hashOf(e.before),
     afterHash: hashOf(e.after),
   })
+}
+
+/** A person-level event (no firm), e.g. 'signin.success', 'password.change', 'token.create'. */
+export function auditPerson(userId: number | null, action: string, after?: unknown, opts: { db?: Db | Tx; before?: unknown } = {}): Promise<void> {
+  return audit(opts.db ?? useDb(), { firmId: null, userId, action, entityType: 'person', entityId: userId, before: opts.before, after })
 }
