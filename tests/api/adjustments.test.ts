@@ -283,6 +283,27 @@ describe('settings and numbering', () => {
   })
 })
 
+describe('streamed CSV exports', () => {
+  it('keep a station name a spreadsheet would run as a formula as text (apostrophe in front), and negative numbers as numbers', async () => {
+    // regression: the streamed export must follow the same rule as the other CSV files (OWASP "CSV Injection")
+    const csv = DEMO_CSV.replaceAll('KF01', '=KF01').replaceAll('KF02', '-KF02')
+    const f = await projectWithNetwork(DEMO.firm, 'Formula names', csv)
+    const path = `/api/firms/${DEMO.firm}/projects/${f.projectId}/adjustments`
+    const r = await chief.post(path, {})
+    expect(r.status).toBe(202)
+    await waitForRun(async () => (await chief.get(`${path}/${r.body.number}/status`)).body)
+    const coords = await (await chief.raw(`${path}/${r.body.number}/export/coordinates.csv`)).text()
+    const names = coords.split('\n').filter((l) => l && !l.startsWith('#')).slice(1).map((l) => l.split(',')[0])
+    expect(names).toContain("'=KF01")
+    expect(names).toContain("'-KF02")
+    expect(names.some((n) => n === '=KF01' || n === '-KF02')).toBe(false)
+    const residuals = await (await chief.raw(`${path}/${r.body.number}/export/residuals.csv`)).text()
+    expect(residuals).toContain(",'=KF01,")
+    // a negative residual stays a plain number
+    expect(residuals.split('\n').some((l) => /^\d+,[a-z_]+,[^,]*,[^,]*,[^,]*,-\d/.test(l))).toBe(true)
+  })
+})
+
 describe('an unsolvable network', () => {
   it('ends failed with the engine’s own message', async () => {
     const csv = 'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note\nhorizontal_distance,A,,B,100.000,m,,,,,,\nhorizontal_distance,B,,C,120.000,m,,,,,,\nhorizontal_distance,A,,C,150.000,m,,,,,,\n'
