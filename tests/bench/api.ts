@@ -125,7 +125,8 @@ async function inventedRun(chief: Client, stations: number) {
   const r = inventResult(stations)
   const rel = r.relative.map((p) => ({ rel: p, check: { semiMajor95: p.semiMajor95, allowable: 0.02 + 50e-6 * p.distance, passes: p.semiMajor95 <= 0.02 + 50e-6 * p.distance } }))
   const summary = buildSummary(r, null, rel.map((c) => c.check.passes), 0, ['invented results for the page benchmark'])
-  const [run] = await db.insert(adjustments).values({ firmId: firm!.id, projectId, number: 1, settings: { confidence: 0.95 }, inputHash: 'bench', status: 'running', createdBy: user!.id }).returning()
+  // queued, not running: no job carries it, and the worker's sweep leaves queued runs alone
+  const [run] = await db.insert(adjustments).values({ firmId: firm!.id, projectId, number: 1, settings: { confidence: 0.95 }, inputHash: 'bench', status: 'queued', createdBy: user!.id }).returning()
   const t0 = performance.now()
   await db.transaction(async (tx) => {
     summary.storeMs = await storeResults(tx, firm!.id, run!.id, r, new Map(), rel)
