@@ -5,7 +5,7 @@
 // Source: Ghilani, C.D. (2017) Adjustment Computations, 6th ed., Wiley, ch. 19
 // (error ellipses, relative ellipses), doi:10.1002/9781119390664 — from memory.
 
-import type { Cofactor } from './cofactor'
+import type { CofactorMatrix } from './cofactor'
 import { ellipseFromCovariance } from './geometry'
 import type { PlaneRow } from './plane'
 import type { RelativeResult, StationResult } from './types'
@@ -17,7 +17,7 @@ export function roundEllipse(e: { semiMajor: number; semiMinor: number; azimuthD
 }
 
 /** σE, σN and the ellipses of one plane station (columns −1 = held). */
-export function planeStationPrecision(st: StationResult, cols: Int32Array, qxx: Cofactor, varFactor: number, scale95: number): void {
+export function planeStationPrecision(st: StationResult, cols: Int32Array, qxx: CofactorMatrix, varFactor: number, scale95: number): void {
   const q = (a: number, b: number) => (a >= 0 && b >= 0 ? qxx.get(a, b) * varFactor : 0)
   const [ce, cn] = cols
   st.sdEast = Math.sqrt(Math.max(q(ce, ce), 0))
@@ -34,7 +34,7 @@ export function relativePrecision(
   names: string[],
   stationCols: Int32Array[],
   stationOut: Map<string, StationResult>,
-  qxx: Cofactor,
+  qxx: CofactorMatrix,
   varFactor: number,
   scale95: number,
 ): RelativeResult[] {

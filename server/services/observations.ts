@@ -4,10 +4,6 @@
 // (the file never changes; originalValue keeps what it said), and type rows in
 // by hand. Uploads are all-or-nothing in one transaction.
 import { createHash } from 'node:crypto'
-import { Readable } from 'node:stream'
-import { pipeline } from 'node:stream/promises'
-import type { ClientBase } from 'pg'
-import { from as copyFrom } from 'pg-copy-streams'
 import { and, asc, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import Papa from 'papaparse'
@@ -18,6 +14,7 @@ import { RAD_PER_ARCSEC, formatDms, formatGon, formatLength, parseAngle, parseLe
 import { aprioriSigma } from '../engine/models/registry'
 import type { InstrumentProfile, ObservationRecord, ReadIssue, ReadResult } from '../engine/types'
 import { useDb } from '../db/client'
+import { COPY_ROWS_PER_CHUNK, copyInto, copyNumber, copyText } from '../db/copy'
 import type { Tx } from '../db/client'
 import { crewMembers, crews, instrumentProfiles, observationSets, observations, projectCrews, stations, users } from '../db/schema'
 import type { ObservationRow, ObservationSetRow, Project } from '../db/schema'
@@ -137,28 +134,8 @@ function refuse(read: Extract<ReadResult, { ok: false }>, what = 'The file'): ne
     read.errors.map((e) => ({ line: e.line, column: e.column, message: e.message })), { warnings: read.warnings })
 }
 
-// COPY text format (PostgreSQL docs, "COPY — File Formats — Text Format"):
-// tab-separated columns, newline-terminated rows, \N for null, and a
-// backslash before any backslash, tab, newline or carriage return in a value.
+// COPY text format: the encoders and the transaction's client are in server/db/copy.ts.
 const COPY_COLUMNS = 'firm_id, project_id, set_id, line, kind, at, "from", "to", value, unit, sigma, hi, ht, set_name, length_km, note, excluded, original_value'
-/** Rows per chunk pushed into the COPY stream: big enough to keep syscalls few, small enough to keep memory flat. */
-const COPY_ROWS_PER_CHUNK = 2_000
-
-const COPY_SPECIAL = /[\\\t\n\r]/
-const COPY_ESCAPES: Record<string, string> = { '\\': '\\\\', '\t': '\\t', '\n': '\\n', '\r': '\\r' }
-
-/** A text value in COPY text format. */
-function copyText(v: string | null | undefined): string {
-  if (v === null || v === undefined) return '\\N'
-  return COPY_SPECIAL.test(v) ? v.replace(/[\\\t\n\r]/g, (c) => COPY_ESCAPES[c]!) : v
-}
-
-/** A float8 in COPY text format; String() round-trips a double exactly. */
-function copyNumber(v: number | null | undefined): string {
-  if (v === null || v === undefined) return '\\N'
-  if (!Number.isFinite(v)) throw new Error(`observation value ${v} is not a finite number`)
-  return String(v)
-}
 
 /** The unit stored beside the SI value: the one the file used, else the SI unit. */
 function storedUnit(r: ObservationRecord): string {
@@ -183,20 +160,6 @@ function* copyRows(firmId: number, projectId: number, setId: number, recs: Obser
 }
 
 /**
- * The pg client a drizzle node-postgres transaction runs on. Drizzle keeps it
- * in a private field of the session (drizzle-orm 0.45, pinned); the check
- * turns a future change there into a clear error instead of a write outside
- * the transaction.
- */
-function clientOf(tx: Tx): ClientBase {
-  const client = (tx._.session as unknown as { client?: unknown }).client
-  if (typeof (client as { query?: unknown } | undefined)?.query !== 'function') {
-    throw new Error('cannot reach the transaction\'s pg client for COPY (drizzle-orm internals changed)')
-  }
-  return client as ClientBase
-}
-
-/**
  * Stores the observations of one set with COPY FROM STDIN on the
  * transaction's own connection, so a failure anywhere still rolls back the
  * set, stations and audit row with it. Rows are generated in chunks as the
@@ -204,9 +167,7 @@ function clientOf(tx: Tx): ClientBase {
  */
 async function insertObservations(tx: Tx, firmId: number, projectId: number, setId: number, recs: ObservationRecord[]): Promise<void> {
   if (recs.length === 0) return
-  const client = clientOf(tx)
-  const sink = client.query(copyFrom(`copy observations (${COPY_COLUMNS}) from stdin with (format text)`))
-  await pipeline(Readable.from(copyRows(firmId, projectId, setId, recs), { objectMode: false }), sink)
+  await copyInto(tx, 'observations', COPY_COLUMNS, copyRows(firmId, projectId, setId, recs))
 }
 
 /**
