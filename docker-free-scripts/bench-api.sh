@@ -17,5 +17,5 @@ pg_database "$PGPORT" "${TIEPOINT_BENCH_DB:-tiepoint_bench}" fresh
 migrate
 ensure_build
 npx tsx server/db/seed.ts
-node --import tsx tests/bench/store.ts
+node --expose-gc --import tsx tests/bench/store.ts
 node --import tsx tests/bench/api.ts

@@ -3,11 +3,14 @@
 // (drizzle `casing: 'snake_case'`). Every firm-owned table carries firm_id and
 // its indexes start with it: every query filters by the firm.
 import { sql } from 'drizzle-orm'
+import { OBSERVATION_KINDS } from '../engine/models/registry'
 import {
+  type AnyPgColumn,
   bigint,
   boolean,
   customType,
   doublePrecision,
+  foreignKey,
   index,
   integer,
   jsonb,
@@ -36,9 +39,12 @@ export const angleFormatEnum = pgEnum('angle_format', ['dms', 'gon'])
 export const projectStatusEnum = pgEnum('project_status', ['collecting', 'adjusted', 'signed', 'released'])
 export const stationKindEnum = pgEnum('station_kind', ['control', 'new'])
 export const fileFormatEnum = pgEnum('file_format', ['csv', 'landxml', 'manual'])
-export const observationKindEnum = pgEnum('observation_kind', [
-  'direction', 'angle', 'zenith', 'slope_distance', 'horizontal_distance', 'azimuth', 'height_difference',
-])
+// the observation kinds come from the engine's model registry (one model file per kind)
+export const observationKindEnum = pgEnum('observation_kind', OBSERVATION_KINDS)
+/** kinds of a result row: the observation kinds and the coordinate observations of weighted control */
+type ResultKind = (typeof OBSERVATION_KINDS)[number] | 'control'
+export const resultKindEnum = pgEnum('result_kind', [...OBSERVATION_KINDS, 'control'] as [ResultKind, ...ResultKind[]])
+export const componentEnum = pgEnum('coordinate_component', ['east', 'north', 'height'])
 export const runStatusEnum = pgEnum('run_status', ['queued', 'running', 'done', 'failed'])
 export const toleranceKindEnum = pgEnum('tolerance_kind', ['relative_ppm', 'fgdc_95', 'custom'])
 export const deliverableEnum = pgEnum('deliverable', ['csv', 'geojson', 'landxml', 'pdf'])
@@ -169,6 +175,13 @@ export const projects = pgTable('projects', {
   angleFormat: angleFormatEnum().notNull().default('dms'),
   status: projectStatusEnum().notNull().default('collecting'),
   toleranceProfileId: integer().references(() => toleranceProfiles.id, { onDelete: 'set null' }),
+  /** geoid separation N (m) for the whole network: ellipsoidal height = height + N (projected CRS) */
+  geoidSeparationM: doublePrecision().notNull().default(0),
+  /** coefficient of refraction k for zenith angles and its σ (common practice 0.13 ± 0.05) */
+  refractionK: doublePrecision().notNull().default(0.13),
+  refractionSigmaK: doublePrecision().notNull().default(0.05),
+  /** local plane only: the height ground distances are reduced to (null = as measured) */
+  projectHeightM: doublePrecision(),
   createdBy: integer().references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
 }, (t) => [index('projects_firm').on(t.firmId, t.id)])
@@ -274,18 +287,33 @@ export const adjustments = pgTable('adjustments', {
   attempts: integer().notNull().default(0),
   startedAt: timestamp({ withTimezone: true }),
   finishedAt: timestamp({ withTimezone: true }),
+  /**
+   * The run's typed summary (RunSummary in server/services/run-results.ts):
+   * global figures only. Stations, observations and relative precisions live
+   * in their own tables, the one source of truth of a finished run.
+   */
   summary: jsonb().$type<Record<string, unknown>>(),
-  /** the engine's result in the CLI JSON shape */
-  result: jsonb().$type<Record<string, unknown>>(),
   errorText: text(),
   createdBy: integer().references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
-}, (t) => [uniqueIndex('adjustments_firm_project_number').on(t.firmId, t.projectId, t.number)])
+}, (t) => [
+  uniqueIndex('adjustments_firm_project_number').on(t.firmId, t.projectId, t.number),
+  // the target of the result tables' one (firm, run) foreign key
+  uniqueIndex('adjustments_firm_id').on(t.firmId, t.id),
+])
+
+// The three result tables of a run are written with COPY, up to ~160,000 rows
+// for a 10,000-station run, and PostgreSQL checks a foreign key once per row.
+// So each has one composite key (firm_id, adjustment_id) → adjustments (which
+// also proves the firm matches the run's), instead of one key to firms and one
+// to adjustments; deleting a run, project or firm still removes its results.
+const runResultKey = (name: string, t: { firmId: AnyPgColumn; adjustmentId: AnyPgColumn }) =>
+  foreignKey({ name, columns: [t.firmId, t.adjustmentId], foreignColumns: [adjustments.firmId, adjustments.id] }).onDelete('cascade')
 
 export const adjustedStations = pgTable('adjusted_stations', {
   id: id(),
-  firmId: firmRef(),
-  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
+  firmId: integer().notNull(),
+  adjustmentId: integer().notNull(),
   name: text().notNull(),
   kind: stationKindEnum().notNull(),
   fixed: boolean().notNull(),
@@ -300,31 +328,56 @@ export const adjustedStations = pgTable('adjusted_stations', {
   azimuthDeg: doublePrecision(),
   semiMajor95: doublePrecision(),
   semiMinor95: doublePrecision(),
-}, (t) => [index('adjusted_stations_firm_run').on(t.firmId, t.adjustmentId)])
+  /** which components are held or weighted as control in this run */
+  controlledEast: boolean().notNull().default(false),
+  controlledNorth: boolean().notNull().default(false),
+  controlledHeight: boolean().notNull().default(false),
+}, (t) => [runResultKey('adjusted_stations_run_fk', t), index('adjusted_stations_firm_run').on(t.firmId, t.adjustmentId)])
 
 export const observationResults = pgTable('observation_results', {
   id: id(),
-  firmId: firmRef(),
-  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
-  observationId: integer().references(() => observations.id, { onDelete: 'set null' }),
+  firmId: integer().notNull(),
+  adjustmentId: integer().notNull(),
+  /**
+   * the observation this row reports on. No foreign key: a run's record stays
+   * as it was computed even if the observation is deleted later (whoever acts
+   * on the id looks it up in the project first), and it spares a check per row.
+   */
+  observationId: integer(),
   line: integer().notNull(),
-  kind: observationKindEnum().notNull(),
+  kind: resultKindEnum().notNull(),
+  /** coordinate component of a 'control' row */
+  component: componentEnum(),
   at: text().notNull(),
   from: text(),
   to: text().notNull(),
+  /** observed and adjusted value: metres, or decimal degrees for angles (valueUnit) */
+  observed: doublePrecision().notNull(),
+  adjusted: doublePrecision(),
+  valueUnit: text().notNull(),
+  /** residual, σ and MDB: metres, or arcseconds for angles (residualUnit) */
   residual: doublePrecision(),
+  sigma: doublePrecision(),
+  residualUnit: text().notNull(),
   redundancy: doublePrecision(),
   w: doublePrecision(),
   tau: doublePrecision(),
   mdb: doublePrecision(),
+  mdbEffect: doublePrecision(),
   flagged: boolean().notNull().default(false),
+  tauFlagged: boolean().notNull().default(false),
+  weak: boolean().notNull().default(false),
   excluded: boolean().notNull().default(false),
-}, (t) => [index('observation_results_firm_run').on(t.firmId, t.adjustmentId)])
+  remark: text(),
+  combinedFactor: doublePrecision(),
+  elevationFactor: doublePrecision(),
+  scaleFactor: doublePrecision(),
+}, (t) => [runResultKey('observation_results_run_fk', t), index('observation_results_firm_run').on(t.firmId, t.adjustmentId)])
 
 export const relativePrecisions = pgTable('relative_precisions', {
   id: id(),
-  firmId: firmRef(),
-  adjustmentId: integer().notNull().references(() => adjustments.id, { onDelete: 'cascade' }),
+  firmId: integer().notNull(),
+  adjustmentId: integer().notNull(),
   fromStation: text().notNull(),
   toStation: text().notNull(),
   distance: doublePrecision().notNull(),
@@ -332,9 +385,10 @@ export const relativePrecisions = pgTable('relative_precisions', {
   semiMinor: doublePrecision().notNull(),
   azimuthDeg: doublePrecision().notNull(),
   semiMajor95: doublePrecision().notNull(),
+  sdDistance: doublePrecision(),
   allowable: doublePrecision(),
   passes: boolean(),
-}, (t) => [index('relative_precisions_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('relative_precisions_run_fk', t), index('relative_precisions_firm_run').on(t.firmId, t.adjustmentId)])
 
 // ── sign-off, release, audit ────────────────────────────────────────────────
 

@@ -9,6 +9,7 @@ import { queueRun } from '../services/adjustments'
 import { hashPassword } from '../services/passwords'
 import { stopBoss } from '../services/run-queue'
 import type { FirmContext } from '../utils/guard'
+import { DEMO_PROJECT_HEIGHT_M } from './demo/generate'
 import { seedFieldData } from './seed-fielddata'
 import { closeDb, useDb } from './client'
 import type { Db } from './client'
@@ -44,10 +45,10 @@ async function upsertUser(db: Db, u: (typeof DEMO_USERS)[number], passwordHash: 
   return row!
 }
 
-async function upsertProject(db: Db, firmId: number, name: string, description: string, createdBy: number) {
+async function upsertProject(db: Db, firmId: number, name: string, description: string, createdBy: number, projectHeightM: number | null = null) {
   const [existing] = await db.select().from(projects).where(and(eq(projects.firmId, firmId), eq(projects.name, name)))
   if (existing) return existing
-  const [p] = await db.insert(projects).values({ firmId, name, description, crs: 'local', units: 'm', createdBy }).returning()
+  const [p] = await db.insert(projects).values({ firmId, name, description, crs: 'local', units: 'm', projectHeightM, createdBy }).returning()
   return p!
 }
 
@@ -87,7 +88,7 @@ export async function seedFoundation(db: Db) {
   const project = await upsertProject(db, demo.id, 'Harrow Creek bridge control',
     'Invented demo: control network for a new footbridge over Harrow Creek. Two held pillars (CP1, CP2), a benchmark (BM1), direction sets, distances and a levelling loop. '
       + 'One observation in the file is a planted blunder: open run 1, find it at the top of the residual table, exclude it and re-run. '
-      + 'The demo file names no instrument profile, so run 1 is weighted with the built-in default σ and says so.', people['chief@tiepoint.test']!)
+      + 'The demo file names no instrument profile, so run 1 is weighted with the built-in default σ and says so.', people['chief@tiepoint.test']!, DEMO_PROJECT_HEIGHT_M)
   if (alta && project.toleranceProfileId === null) {
     await db.update(projects).set({ toleranceProfileId: alta.id }).where(eq(projects.id, project.id))
   }

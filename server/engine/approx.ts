@@ -72,11 +72,25 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
   if (coords.size === 0 && input.seedIfEmpty) seed(input, coords, orientation)
 
   const byStation = indexByStation(input)
+  // ---- large networks: only sets not yet oriented are looked at, and only
+  // stations with a placed neighbour are tried (the result is unchanged)
+  const sets = new OrientationQueue(input)
+  const neighbours = new Map<string, string[]>()
+  for (const [st, o] of byStation) {
+    const nb = new Set<string>()
+    for (const d of o.directions) nb.add(d.at === st ? d.to : d.at)
+    for (const g of o.angles) for (const x of [g.at, g.from, g.to]) if (x !== st) nb.add(x)
+    for (const d of o.distances) nb.add(d.at === st ? d.to : d.at)
+    for (const z of o.azimuths) nb.add(z.at === st ? z.to : z.at)
+    neighbours.set(st, [...nb])
+  }
+  const reachable = (st: string) => (neighbours.get(st) ?? []).some((nb) => coords.has(nb))
+  // ---- end large networks
   let allowAmbiguous = false
   for (let guard = 0; guard < 10 * input.stations.length + 10; guard++) {
-    let progress = orientSets(input, coords, orientation)
+    let progress = sets.orient(coords, orientation)
     for (const st of input.stations) {
-      if (coords.has(st)) continue
+      if (coords.has(st) || !reachable(st)) continue
       const p = place(st, byStation.get(st) ?? EMPTY, coords, orientation, allowAmbiguous)
       if (p) {
         coords.set(st, p)
@@ -163,6 +177,46 @@ function seed(input: PlaneApproxInput, coords: Map<string, XY>, orientation: Flo
   }
   const line = input.distances.find((d) => d.at === best || d.to === best)
   if (line) coords.set(line.at === best ? line.to : line.at, { e: 0, n: line.value })
+}
+
+/** orientSets for the sets still unoriented only: same result, without rereading every direction each pass. */
+class OrientationQueue {
+  private readonly bySet = new Map<number, ApproxDirection[]>()
+  constructor(input: PlaneApproxInput) {
+    for (const d of input.directions) {
+      const l = this.bySet.get(d.set)
+      if (l) l.push(d)
+      else this.bySet.set(d.set, [d])
+    }
+  }
+
+  orient(coords: Map<string, XY>, orientation: Float64Array): boolean {
+    let progress = false
+    for (const [set, dirs] of this.bySet) {
+      if (!Number.isNaN(orientation[set])) {
+        this.bySet.delete(set)
+        continue
+      }
+      let s = 0
+      let c = 0
+      let any = false
+      for (const d of dirs) {
+        const a = coords.get(d.at)
+        const b = coords.get(d.to)
+        if (!a || !b) continue
+        const w = azimuth(a.e, a.n, b.e, b.n) - d.value
+        s += Math.sin(w)
+        c += Math.cos(w)
+        any = true
+      }
+      if (any) {
+        orientation[set] = Math.atan2(s, c)
+        this.bySet.delete(set)
+        progress = true
+      }
+    }
+    return progress
+  }
 }
 
 function orientSets(input: PlaneApproxInput, coords: Map<string, XY>, orientation: Float64Array): boolean {

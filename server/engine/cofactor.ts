@@ -41,9 +41,122 @@ export interface DatumTransform {
 /** right-hand sides per triangular solve: R is read once for all of them */
 export const BLOCK = 32
 
-export class Cofactor {
+/**
+ * Qxx of the basic solution behind one interface, dense or sparse, with a free
+ * network's S-transformation applied entry by entry on top. Subclasses supply
+ * the basic entries, columns and products.
+ */
+export abstract class CofactorMatrix {
   readonly u: number
   readonly rank: number
+  private readonly datum: DatumTransform | null
+  /** Qxx·b_p (caller order) and C = BᵀQxxB, for the S-transformation */
+  private readonly qb: Float64Array[] = []
+  private readonly c: number[][] = []
+
+  constructor(u: number, rank: number, datum: DatumTransform | null) {
+    this.u = u
+    this.rank = rank
+    this.datum = datum && datum.k.length ? datum : null
+  }
+
+  /** Computes the selected entries (every pair within each group, and the diagonal). */
+  abstract select(groups: Iterable<ArrayLike<number>>): void
+  /** Qxx_ij of the basic solution (zero rows and columns for dependent unknowns). */
+  protected abstract basicGet(i: number, j: number): number
+  /** Several whole columns of the basic Qxx, caller's order. */
+  protected abstract basicColumns(js: ArrayLike<number>): Float64Array[]
+
+  /** Call at the end of a subclass constructor, once its factor is readable. */
+  protected initDatum(): void {
+    if (!this.datum) return
+    const d = this.datum.k.length
+    const qb = this.basicColumnsOf(this.datum.b)
+    for (let p = 0; p < d; p++) this.qb.push(qb[p])
+    for (let p = 0; p < d; p++) {
+      const row: number[] = []
+      for (let r = 0; r < d; r++) {
+        let s = 0
+        const bp = this.datum.b[p]
+        const qr = this.qb[r]
+        for (let i = 0; i < this.u; i++) s += bp[i] * qr[i]
+        row.push(s)
+      }
+      this.c.push(row)
+    }
+  }
+
+  /** Qxx·v for several vectors v (caller's order), basic solution. */
+  protected abstract basicColumnsOf(vs: Float64Array[]): Float64Array[]
+
+  /** Qxx_ij (S-transformed for a free network) for a selected pair of caller's columns. */
+  get(i: number, j: number): number {
+    const q = this.basicGet(i, j)
+    return this.datum ? q + this.sCorrection(i, j) : q
+  }
+
+  /** Column j of Qxx (S-transformed), caller order, by two triangular solves. */
+  column(j: number): Float64Array {
+    return this.columns([j])[0]
+  }
+
+  /** Several columns of Qxx at once: the solves then read R once for all of them. */
+  columns(js: ArrayLike<number>): Float64Array[] {
+    const out = this.basicColumns(js)
+    if (this.datum) for (let b = 0; b < js.length; b++) for (let i = 0; i < this.u; i++) out[b][i] += this.sCorrection(i, js[b])
+    return out
+  }
+
+  /** (S·Q·Sᵀ − Q)_ij = Σ_p (−k_p,i·qb_p,j − qb_p,i·k_p,j + Σ_r k_p,i·C_pr·k_r,j) */
+  private sCorrection(i: number, j: number): number {
+    const { k } = this.datum!
+    const d = k.length
+    let s = 0
+    for (let p = 0; p < d; p++) {
+      s -= k[p][i] * this.qb[p][j] + this.qb[p][i] * k[p][j]
+      for (let r = 0; r < d; r++) s += k[p][i] * this.c[p][r] * k[r][j]
+    }
+    return s
+  }
+}
+
+/**
+ * External reliability at bounded cost: the largest shift that an undetected
+ * error of MDB size in one observation causes at the stations that observation
+ * connects, Δx = Qxx·ãᵀ·(MDB/σ) on their coordinates (Baarda 1968). Every entry
+ * needed lies among the observation's own unknowns, which the selected inverse
+ * holds, so the cost is O(k²) per observation instead of a solve with R.
+ * `stationOf[j]` = station of coordinate unknown j, −1 for other unknowns.
+ */
+export function localMdbEffect(
+  qxx: CofactorMatrix,
+  cols: ArrayLike<number>,
+  ac: ArrayLike<number>,
+  k: number,
+  stationOf: Int32Array,
+): number {
+  let worst = 0
+  const n = cols.length
+  for (let a = 0; a < n; a++) {
+    const st = stationOf[cols[a]]
+    if (st < 0) continue
+    // the first coordinate column of this station in the row carries the station
+    let firstOfStation = true
+    for (let b = 0; b < a; b++) if (stationOf[cols[b]] === st) firstOfStation = false
+    if (!firstOfStation) continue
+    let s2 = 0
+    for (let c = 0; c < n; c++) {
+      if (stationOf[cols[c]] !== st) continue
+      let dx = 0
+      for (let p = 0; p < n; p++) dx += qxx.get(cols[c], cols[p]) * ac[p]
+      s2 += (dx * k) ** 2
+    }
+    if (s2 > worst) worst = s2
+  }
+  return Math.sqrt(worst)
+}
+
+export class Cofactor extends CofactorMatrix {
   private readonly f: QrFactorization
   /** caller's column → pivot position */
   private readonly pos: Int32Array
@@ -56,19 +169,14 @@ export class Cofactor {
    */
   private readonly rv: Float64Array
   private readonly rOff: Int32Array
-  private readonly datum: DatumTransform | null
-  /** Qxx·b_p (caller order) and C = BᵀQxxB, for the S-transformation */
-  private readonly qb: Float64Array[] = []
-  private readonly c: number[][] = []
   /** envelope storage of Z = R⁻¹R⁻ᵀ: rows first[c]..c of column c, z_ic at z[start[c] + i] */
   private first: Int32Array | null = null
   private start: Int32Array | null = null
   private z: Float64Array | null = null
 
   constructor(f: QrFactorization, datum: DatumTransform | null = null) {
+    super(f.n, f.rank, datum)
     this.f = f
-    this.u = f.n
-    this.rank = f.rank
     this.pos = new Int32Array(f.n)
     for (let k = 0; k < f.n; k++) this.pos[f.perm[k]] = k
     const { a, m } = f
@@ -89,22 +197,7 @@ export class Cofactor {
       this.rv.set(a.subarray(k * m + t, k * m + k + 1), o)
       o += k - t + 1
     }
-    this.datum = datum && datum.k.length ? datum : null
-    if (this.datum) {
-      const d = this.datum.k.length
-      for (let p = 0; p < d; p++) this.qb.push(this.apply(this.datum.b[p]))
-      for (let p = 0; p < d; p++) {
-        const row: number[] = []
-        for (let r = 0; r < d; r++) {
-          let s = 0
-          const bp = this.datum.b[p]
-          const qr = this.qb[r]
-          for (let i = 0; i < this.u; i++) s += bp[i] * qr[i]
-          row.push(s)
-        }
-        this.c.push(row)
-      }
-    }
+    this.initDatum()
   }
 
   /** Pivot position of a caller's column (for processing columns in R's order). */
@@ -172,8 +265,7 @@ export class Cofactor {
     this.z = z
   }
 
-  /** Qxx_ij (S-transformed for a free network) for a selected pair of caller's columns. */
-  get(i: number, j: number): number {
+  protected basicGet(i: number, j: number): number {
     const z = this.z
     if (!z) throw new Error('Cofactor.select() must run before get()')
     let pi = this.pos[i]
@@ -183,21 +275,16 @@ export class Cofactor {
       pi = pj
       pj = t
     }
-    let q = 0
-    if (pj < this.rank) {
-      if (pi < this.first![pj]) throw new Error(`cofactor entry (${i}, ${j}) was not selected`)
-      q = z[this.start![pj] + pi]
-    }
-    return this.datum ? q + this.sCorrection(i, j) : q
+    if (pj >= this.rank) return 0
+    if (pi < this.first![pj]) throw new Error(`cofactor entry (${i}, ${j}) was not selected`)
+    return z[this.start![pj] + pi]
   }
 
-  /** Column j of Qxx (S-transformed), caller order, by two triangular solves. */
-  column(j: number): Float64Array {
-    return this.columns([j])[0]
+  protected basicColumnsOf(vs: Float64Array[]): Float64Array[] {
+    return vs.map((v) => this.apply(v))
   }
 
-  /** Several columns of Qxx at once: the solves then read R once for all of them. */
-  columns(js: ArrayLike<number>): Float64Array[] {
+  protected basicColumns(js: ArrayLike<number>): Float64Array[] {
     const nb = js.length
     const rank = this.rank
     const out = Array.from({ length: nb }, () => new Float64Array(this.u))
@@ -214,7 +301,6 @@ export class Cofactor {
       const perm = this.f.perm
       for (let k = 0; k < rank; k++) for (let b = 0; b < nb; b++) out[b][perm[k]] = y[k * nb + b]
     }
-    if (this.datum) for (let b = 0; b < nb; b++) for (let i = 0; i < this.u; i++) out[b][i] += this.sCorrection(i, js[b])
     return out
   }
 
@@ -300,17 +386,5 @@ export class Cofactor {
         for (let b = 0; b < nb; b++) y[yi + b] -= s[b] * r
       }
     }
-  }
-
-  /** (S·Q·Sᵀ − Q)_ij = Σ_p (−k_p,i·qb_p,j − qb_p,i·k_p,j + Σ_r k_p,i·C_pr·k_r,j) */
-  private sCorrection(i: number, j: number): number {
-    const { k } = this.datum!
-    const d = k.length
-    let s = 0
-    for (let p = 0; p < d; p++) {
-      s -= k[p][i] * this.qb[p][j] + this.qb[p][i] * k[p][j]
-      for (let r = 0; r < d; r++) s += k[p][i] * this.c[p][r] * k[r][j]
-    }
-    return s
   }
 }

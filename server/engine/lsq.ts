@@ -9,8 +9,12 @@
 // S-transformations and criterion matrices, Netherlands Geodetic Commission,
 // Publications on Geodesy 5(1): x_S = (I − G(BᵀG)⁻¹Bᵀ)·x, Qxx_S = S·Qxx·Sᵀ.
 
-import { Cofactor } from './cofactor'
+import { Cofactor, type CofactorMatrix } from './cofactor'
 import { compressRows, factorize, solve, type QrFactorization } from './qr'
+import { estimateInverseNorm1, normR1 } from './sparse/condition'
+import { factorizeSparse, newWorkspace, solveSparse, type SparseFactor } from './sparse/multifrontal'
+import { SparseCofactor } from './sparse/selinv'
+import { analyse, type SparseRows, type Symbolic } from './sparse/symbolic'
 
 /** One linearized observation: a·dx ≈ l, unwhitened (metres / radians). */
 export interface LinearRow {
@@ -34,9 +38,27 @@ export interface NonlinearProblem {
   nullSpace?(x: Float64Array): { g: Float64Array[]; weights: Float64Array }
   /** groups of unknowns whose mutual cofactors the caller will read (stations, connected pairs) */
   cofactorGroups?(): Iterable<ArrayLike<number>>
+  /**
+   * block of each unknown (a station's coordinates and the orientations of its
+   * direction sets): the sparse ordering keeps a block's unknowns together
+   */
+  blocks?: ArrayLike<number>
+}
+
+/**
+ * Which orthogonal factorization solves each iteration: 'sparse' (ordering,
+ * multifrontal QR, selected inverse; ./sparse) or 'dense' (row compression and
+ * pivoted QR on a u×u array, ./qr — kept as the oracle for the tests). 'auto'
+ * takes the sparse one for every network.
+ */
+export type FactorizationChoice = 'auto' | 'dense' | 'sparse'
+export interface SolveOptions {
+  factorization?: FactorizationChoice
 }
 
 export interface LsqTimings {
+  /** ordering and symbolic analysis (sparse path), included in factorizationMs */
+  orderingMs: number
   factorizationMs: number
   cofactorMs: number
 }
@@ -53,7 +75,7 @@ export type LsqOutcome =
        * network: entries within each row's unknowns, the diagonal and the caller's
        * cofactorGroups are selected; whole columns on demand
        */
-      qxx: Cofactor
+      qxx: CofactorMatrix
       /** linearization at the adjusted unknowns: misclosure = −v */
       rows: LinearRow[]
       conditionEstimate: number
@@ -63,10 +85,11 @@ export type LsqOutcome =
   | { ok: false; code: 'singular'; dependent: number[] }
   | { ok: false; code: 'not_converged'; iterations: number; maxStep: number }
 
-export function solveNonlinear(problem: NonlinearProblem, maxIterations: number): LsqOutcome {
+export function solveNonlinear(problem: NonlinearProblem, maxIterations: number, options: SolveOptions = {}): LsqOutcome {
+  if ((options.factorization ?? 'auto') !== 'dense') return solveNonlinearSparse(problem, maxIterations)
   const u = problem.u
   const x = Float64Array.from(problem.x0)
-  const timings: LsqTimings = { factorizationMs: 0, cofactorMs: 0 }
+  const timings: LsqTimings = { orderingMs: 0, factorizationMs: 0, cofactorMs: 0 }
   let order: Int32Array | null = null
   let lastStep = Infinity
   for (let it = 1; it <= maxIterations; it++) {
@@ -83,15 +106,37 @@ export function solveNonlinear(problem: NonlinearProblem, maxIterations: number)
       return { cols: row.cols, values, rhs: row.misclosure * w }
     })
     for (let j = 0; j < u; j++) columnNorms[j] = Math.sqrt(columnNorms[j])
+    let datum: Datum | null = null
+    if (problem.nullSpace) datum = buildDatum(problem.nullSpace(x), rows, u)
+    const defect = datum ? datum.g.length : 0
+    // A free network's datum defect is removed exactly: the inner constraints
+    // Bᵀ·dx = 0 join the rows (scaled like the design's columns), so the
+    // factorization is of full rank and no roundoff-sized pivot is divided by;
+    // the S-transformation below then gives the same solution and cofactors
+    // as the minimum-norm ones (S·(AᵀA + BBᵀ)⁻¹·Sᵀ = Q_S, (AᵀA + BBᵀ)⁻¹ being a
+    // g-inverse of AᵀA when BᵀG is regular — Koch, K.-R. (1999) Parameter
+    // Estimation and Hypothesis Testing in Linear Models, 2nd ed., Springer, §3.5, from memory).
+    if (datum) {
+      let mean = 0
+      for (let j = 0; j < u; j++) mean += columnNorms[j] / u
+      for (const b of datum.b) {
+        const cols: number[] = []
+        const values: number[] = []
+        let norm = 0
+        for (let j = 0; j < u; j++) if (b[j] !== 0) norm += b[j] * b[j]
+        norm = Math.sqrt(norm)
+        for (let j = 0; j < u; j++) if (b[j] !== 0) {
+          cols.push(j)
+          values.push((b[j] / norm) * (mean || 1))
+        }
+        whitened.push({ cols, values, rhs: 0 })
+      }
+    }
     // tall sparse system → square R₀ by row reflections, then pivoted Householder QR on R₀
     const compressed = compressRows(whitened, u)
     const f = factorize(compressed.r0, u, u, compressed.qtb)
     timings.factorizationMs += performance.now() - t0
-
-    let datum: Datum | null = null
-    if (problem.nullSpace) datum = buildDatum(problem.nullSpace(x), rows, u)
-    const defect = datum ? datum.g.length : 0
-    if (f.rank < u - defect) {
+    if (f.rank < u) {
       return { ok: false, code: 'singular', dependent: Array.from(f.perm.subarray(f.rank)) }
     }
     let dx = solve(f)
@@ -249,4 +294,111 @@ function condition(f: QrFactorization, norms: Float64Array, qxx: Cofactor): { ka
     }
   }
   return { kappa: normR * normInv, dominant }
+}
+
+/**
+ * The same Gauss–Newton iteration on the sparse path: the symbolic analysis
+ * (ordering, elimination tree, pattern of R) once, a multifrontal QR each
+ * iteration, the selected inverse and a Hager–Higham condition estimate at the end.
+ */
+function solveNonlinearSparse(problem: NonlinearProblem, maxIterations: number): LsqOutcome {
+  const u = problem.u
+  const x = Float64Array.from(problem.x0)
+  const timings: LsqTimings = { orderingMs: 0, factorizationMs: 0, cofactorMs: 0 }
+  let sym: Symbolic | null = null
+  const work = newWorkspace()
+  let previous: SparseFactor | null = null
+  let lastStep = Infinity
+  for (let it = 1; it <= maxIterations; it++) {
+    const rows = problem.linearize(x)
+    const t0 = performance.now()
+    const { sparse, columnNorms } = whitenRows(rows, u)
+    if (!sym) {
+      const ta = performance.now()
+      sym = analyse(sparse, u, problem.blocks ?? Int32Array.from({ length: u }, (_, j) => j))
+      timings.orderingMs = performance.now() - ta
+    }
+    const f = factorizeSparse(sym, sparse, columnNorms, 1e-10, work, previous)
+    previous = f
+    timings.factorizationMs += performance.now() - t0
+
+    let datum: Datum | null = null
+    if (problem.nullSpace) datum = buildDatum(problem.nullSpace(x), rows, u)
+    const defect = datum ? datum.g.length : 0
+    if (f.rank < u - defect) {
+      return { ok: false, code: 'singular', dependent: Array.from(f.perm.subarray(f.rank)) }
+    }
+    let dx = solveSparse(f)
+    if (datum) dx = sTransformVector(datum, dx)
+    let converged = true
+    let step = 0
+    for (let j = 0; j < u; j++) {
+      x[j] += dx[j]
+      const r = Math.abs(dx[j]) / problem.tolerance[j]
+      if (r > step) step = r
+      if (r >= 1) converged = false
+    }
+    lastStep = step
+    if (converged) {
+      const t1 = performance.now()
+      const qxx = new SparseCofactor(f, datum)
+      qxx.select()
+      const health = sparseCondition(f, columnNorms, qxx)
+      timings.cofactorMs += performance.now() - t1
+      return {
+        ok: true,
+        x,
+        iterations: it,
+        rank: f.rank,
+        datumDefect: defect,
+        qxx,
+        rows: problem.linearize(x),
+        conditionEstimate: health.kappa,
+        dominant: health.dominant,
+        timings,
+      }
+    }
+  }
+  return { ok: false, code: 'not_converged', iterations: maxIterations, maxStep: lastStep }
+}
+
+/** Whitened rows (1/σ) in compressed form, and the whitened column norms. */
+function whitenRows(rows: LinearRow[], u: number): { sparse: SparseRows; columnNorms: Float64Array } {
+  const m = rows.length
+  const rowPtr = new Int32Array(m + 1)
+  for (let i = 0; i < m; i++) rowPtr[i + 1] = rowPtr[i] + rows[i].cols.length
+  const rowCol = new Int32Array(rowPtr[m])
+  const rowVal = new Float64Array(rowPtr[m])
+  const rhs = new Float64Array(m)
+  const columnNorms = new Float64Array(u)
+  for (let i = 0; i < m; i++) {
+    const row = rows[i]
+    const w = 1 / row.sigma
+    let o = rowPtr[i]
+    for (let c = 0; c < row.cols.length; c++, o++) {
+      const v = row.coef[c] * w
+      rowCol[o] = row.cols[c]
+      rowVal[o] = v
+      columnNorms[row.cols[c]] += v * v
+    }
+    rhs[i] = row.misclosure * w
+  }
+  for (let j = 0; j < u; j++) columnNorms[j] = Math.sqrt(columnNorms[j])
+  return { sparse: { m, rowPtr, rowCol, rowVal, rhs }, columnNorms }
+}
+
+/** κ₁ estimate of the column-scaled R and the unknown with the largest scaled variance. */
+function sparseCondition(f: SparseFactor, norms: Float64Array, qxx: SparseCofactor): { kappa: number; dominant: number | null } {
+  if (f.rank === 0) return { kappa: Infinity, dominant: null }
+  const kappa = normR1(f, norms) * estimateInverseNorm1(f, norms)
+  let dominant: number | null = null
+  let worst = -1
+  for (let j = 0; j < f.u; j++) {
+    const v = qxx.get(j, j) * norms[j] * norms[j]
+    if (v > worst) {
+      worst = v
+      dominant = j
+    }
+  }
+  return { kappa, dominant }
 }

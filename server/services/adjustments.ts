@@ -1,27 +1,31 @@
 // Adjustment runs: queue a run (numbered per project, inputs hashed), list and
-// read runs, export results, exclude an observation and run again, and the
-// worker's side: compute a run and store its result in one transaction.
+// read runs (results by page, from run-results.ts), compare two, export
+// results, exclude an observation and run again, and the worker's side:
+// compute a run and store its results (COPY) in one transaction.
 // A finished run (done | failed) is never changed by anything here.
-import { and, asc, desc, eq, sql } from 'drizzle-orm'
+import type { Readable } from 'node:stream'
+import { and, desc, eq, sql } from 'drizzle-orm'
 import type { PoolClient } from 'pg'
 import { runSettingsSchema, type RunSettings } from '../../shared/schemas/adjustments'
+import { observationPageQuery, relativePageQuery, stationPageQuery } from '../../shared/schemas/run-results'
+import type { CompareQuery, ObservationPageQuery, RelativePageQuery, StationPageQuery } from '../../shared/schemas/run-results'
 import { usePool, useDb } from '../db/client'
-import { adjustedStations, adjustments, observationResults, observations, projects, relativePrecisions, users } from '../db/schema'
+import { adjustments, observations, projects, users } from '../db/schema'
 import type { Adjustment, Project } from '../db/schema'
 import { adjustNetwork } from '../engine/index'
-import { METRES_PER } from '../engine/io/units'
-import type { AdjustmentResult } from '../engine/types'
 import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
-import { checkRelative, describeTolerance, semiMajorAt95, type ToleranceSpec } from './accuracy'
+import { checkRelative, semiMajorAt95 } from './accuracy'
 import { audit } from './audit'
-import { safeCell } from './csv'
 import { notifyRunFailed } from './notifications'
 import type { RunDto, RunListItem, RunWeighting } from '../../shared/types/run'
 
 export type { RunListItem }
 import { loadRunInputs, RunInputError } from './run-inputs'
 import { ADJUST_QUEUE, sendAdjustJob, type AdjustJob } from './run-queue'
+import {
+  buildSummary, cliShape, compareRuns, csvStream, distributions, mapData, pageObservations, pageRelative, pageStations, storeResults, type RunSummary,
+} from './run-results'
 
 export type RunStatus = Adjustment['status']
 
@@ -91,41 +95,73 @@ async function findRun(ctx: FirmContext, project: Project, number: number): Prom
   return run
 }
 
-/** The CLI's JSON shape (docs/engine.md, The CLI's JSON) out of the engine's fuller result. */
-export function cliShape(r: AdjustmentResult) {
-  const net = (n: AdjustmentResult['plane']) => n && { dof: n.dof, sigma0: n.sigma0, globalTest: n.globalTest }
-  return {
-    converged: r.converged, iterations: r.iterations, dof: r.dof, sigma0: r.sigma0, globalTest: r.globalTest,
-    stations: r.stations.map((s) => ({ name: s.name, east: s.east, north: s.north, height: s.height, sdEast: s.sdEast, sdNorth: s.sdNorth, sdHeight: s.sdHeight, ellipse: s.ellipse, fixed: s.fixed })),
-    observations: r.observations.map((o) => ({ line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to, residual: o.residual, redundancy: o.redundancy, w: o.w, flagged: o.flagged, mdb: o.mdb })),
-    ...(r.plane ? { plane: net(r.plane) } : {}),
-    ...(r.height ? { height: net(r.height) } : {}),
-  }
-}
-
-export async function getRun(ctx: FirmContext, project: Project, number: number): Promise<RunDto> {
+/**
+ * One run: its settings and typed summary, `weighting` when the engine
+ * reported it, and the first page of stations (engine order), observation
+ * results (largest |w| first) and relative precisions, with each list's total;
+ * `result` is the CLI's JSON shape over that first page. The rest comes from
+ * the paged routes (stations, observations, relative).
+ */
+export async function getRun(ctx: FirmContext, project: Project, number: number) {
   const run = await findRun(ctx, project, number)
   const db = useDb()
   const [by] = run.createdBy ? await db.select({ name: users.name }).from(users).where(eq(users.id, run.createdBy)) : []
+  const summary = (run.summary ?? null) as RunSummary | null
   const base = {
     number: run.number, status: run.status, attempts: run.attempts, settings: run.settings, inputHash: run.inputHash,
     createdAt: run.createdAt.toISOString(), startedAt: run.startedAt?.toISOString() ?? null, finishedAt: run.finishedAt?.toISOString() ?? null,
-    createdBy: by?.name ?? null, errorText: run.errorText, summary: run.summary,
-    weighting: ((run.summary as { weighting?: RunWeighting[] } | null)?.weighting ?? null),
+    createdBy: by?.name ?? null, errorText: run.errorText, summary,
+    weighting: summary?.weighting ?? ((run.summary as { weighting?: RunWeighting[] } | null)?.weighting ?? null),
     warnings: ((run.summary as { warnings?: string[] } | null)?.warnings ?? []),
     project: { units: project.units, angleFormat: project.angleFormat, crs: project.crs, crsDefinition: project.crsDefinition, tileUrl: ctx.firm.settings?.tileUrl ?? null },
   }
-  if (run.status !== 'done' || !run.result) return { ...base, result: null, stations: [], observations: [], relative: [] }
-  const result = run.result as unknown as AdjustmentResult
-  const relative = await db.select().from(relativePrecisions)
-    .where(and(eq(relativePrecisions.firmId, ctx.firm.id), eq(relativePrecisions.adjustmentId, run.id))).orderBy(asc(relativePrecisions.id))
+  if (run.status !== 'done' || !summary) return { ...base, result: null, stations: [], observations: [], relative: [], totals: { stations: 0, observations: 0, relative: 0 } }
+  const [stations, observations, relative] = await Promise.all([
+    pageStations(ctx.firm.id, run.id, summary.rows?.stations, stationPageQuery.parse({})),
+    pageObservations(ctx.firm.id, run.id, summary.rows?.observations, observationPageQuery.parse({})),
+    pageRelative(ctx.firm.id, run.id, summary.rows?.relative, relativePageQuery.parse({})),
+  ])
   return {
     ...base,
-    result: cliShape(result),
-    stations: result.stations,
-    observations: result.observations,
-    relative: relative.map((r) => ({ from: r.fromStation, to: r.toStation, distance: r.distance, semiMajor: r.semiMajor, semiMinor: r.semiMinor, azimuthDeg: r.azimuthDeg, semiMajor95: r.semiMajor95, allowable: r.allowable, passes: r.passes })),
+    result: cliShape(summary, stations.rows, observations.rows),
+    stations: stations.rows,
+    observations: observations.rows,
+    relative: relative.rows,
+    totals: { stations: stations.total, observations: observations.total, relative: relative.total },
   }
+}
+
+/** A finished run, or 409 naming its state. */
+export async function findDoneRun(ctx: FirmContext, project: Project, number: number): Promise<Adjustment> {
+  const run = await findRun(ctx, project, number)
+  if (run.status !== 'done' || !run.summary) throw new DomainError('conflict', `Run ${number} has no results (${run.status})`)
+  return run
+}
+
+export async function runStations(ctx: FirmContext, project: Project, number: number, q: StationPageQuery) {
+  return pageStations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
+}
+export async function runObservations(ctx: FirmContext, project: Project, number: number, q: ObservationPageQuery) {
+  return pageObservations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
+}
+export async function runRelative(ctx: FirmContext, project: Project, number: number, q: RelativePageQuery) {
+  return pageRelative(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
+}
+/** What the map and the two histograms draw, computed in SQL. */
+export async function runOverview(ctx: FirmContext, project: Project, number: number) {
+  const run = await findDoneRun(ctx, project, number)
+  const [map, dist] = await Promise.all([mapData(ctx.firm.id, run.id), distributions(ctx.firm.id, run.id)])
+  return { ...map, distributions: dist }
+}
+
+/** Two finished runs of the project: σ̂0, tests, station shifts (paged, largest first), changed flags and exclusions. */
+export async function compareProjectRuns(ctx: FirmContext, project: Project, q: CompareQuery) {
+  const [a, b] = await Promise.all([findDoneRun(ctx, project, q.a), findDoneRun(ctx, project, q.b)])
+  const brief = (r: Adjustment) => {
+    const s = r.summary as unknown as RunSummary
+    return { number: r.number, sigma0: s.sigma0, globalTest: s.globalTest, flagged: s.flagged, excluded: s.excluded, inputHash: r.inputHash }
+  }
+  return { a: brief(a), b: brief(b), units: project.units, ...(await compareRuns(ctx.firm.id, a, b, q)) }
 }
 
 /** Just enough for a progress poll. */
@@ -136,39 +172,11 @@ export async function getRunStatus(ctx: FirmContext, project: Project, number: n
 
 // ── export ──────────────────────────────────────────────────────────────────
 
-const csvCell = (v: unknown) => {
-  const s = safeCell(v)
-  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s
-}
-const csv = (rows: unknown[][]) => rows.map((r) => r.map(csvCell).join(',')).join('\n') + '\n'
-
-export async function exportCsv(ctx: FirmContext, project: Project, number: number, what: 'coordinates' | 'residuals'): Promise<{ fileName: string; text: string }> {
-  const run = await findRun(ctx, project, number)
-  if (run.status !== 'done' || !run.result) throw new DomainError('conflict', `Run ${number} has no results (${run.status})`)
+/** The run's coordinates or residuals as CSV in project units, streamed from the database. */
+export async function exportCsv(ctx: FirmContext, project: Project, number: number, what: 'coordinates' | 'residuals'): Promise<{ fileName: string; stream: Readable }> {
+  const run = await findDoneRun(ctx, project, number)
   await audit(useDb(), { firmId: ctx.firm.id, userId: ctx.user.id, action: 'adjustment.export', entityType: 'adjustment', entityId: run.id, projectId: project.id, after: { number, what } })
-  const r = run.result as unknown as AdjustmentResult
-  const u = project.units
-  const k = METRES_PER[u]
-  const len = (v: number | null | undefined, d = 4) => (v === null || v === undefined ? null : (v / k).toFixed(d))
-  const head = [`# Tiepoint run ${number} of project "${project.name}"; input SHA-256 ${run.inputHash}`,
-    '# Coordinates must be checked against local regulations and licensed practice before use.']
-  if (what === 'coordinates') {
-    const conf = Number((run.settings as { confidence?: number }).confidence ?? 0.95)
-    const rows: unknown[][] = [['station', 'kind', 'held', `east_${u}`, `north_${u}`, `height_${u}`, `sd_east_${u}`, `sd_north_${u}`, `sd_height_${u}`,
-      `ellipse_semi_major_1sigma_${u}`, `ellipse_semi_minor_1sigma_${u}`, 'ellipse_azimuth_deg', `ellipse_semi_major_${Math.round(conf * 1000) / 10}pct_${u}`, `ellipse_semi_minor_${Math.round(conf * 1000) / 10}pct_${u}`]]
-    for (const s of r.stations) {
-      rows.push([s.name, s.kind, s.fixed ? 'fixed' : '', len(s.east), len(s.north), len(s.height), len(s.sdEast, 5), len(s.sdNorth, 5), len(s.sdHeight, 5),
-        len(s.ellipse?.semiMajor, 5), len(s.ellipse?.semiMinor, 5), s.ellipse ? s.ellipse.azimuthDeg.toFixed(2) : null, len(s.ellipse95?.semiMajor, 5), len(s.ellipse95?.semiMinor, 5)])
-    }
-    return { fileName: `run-${number}-coordinates.csv`, text: head.join('\n') + '\n' + csv(rows) }
-  }
-  const rows: unknown[][] = [['line', 'kind', 'at', 'from', 'to', 'residual', 'residual_unit', 'redundancy', 'w', 'tau', 'mdb', 'flagged', 'weak', 'excluded']]
-  for (const o of r.observations) {
-    rows.push([o.line, o.kind, o.at, o.from, o.to, o.residual === null ? null : (o.residualUnit === 'm' ? o.residual * 1000 : o.residual).toFixed(2),
-      o.residualUnit === 'm' ? 'mm' : 'arcsec', o.redundancy?.toFixed(3), o.w?.toFixed(2), o.tau?.toFixed(2),
-      o.mdb === null ? null : (o.residualUnit === 'm' ? o.mdb * 1000 : o.mdb).toFixed(2), o.flagged ? 'yes' : 'no', o.weak ? 'yes' : 'no', o.excluded ? 'yes' : 'no'])
-  }
-  return { fileName: `run-${number}-residuals.csv`, text: head.join('\n') + '\n' + csv(rows) }
+  return { fileName: `run-${number}-${what}.csv`, stream: await csvStream(run, project, what) }
 }
 
 // ── exclude and run again ───────────────────────────────────────────────────
@@ -287,32 +295,9 @@ async function computeAndStore(run: Adjustment): Promise<ProcessOutcome> {
     const [locked] = await tx.select({ status: adjustments.status }).from(adjustments)
       .where(and(eq(adjustments.firmId, firmId), eq(adjustments.id, run.id))).for('update')
     if (!locked || locked.status !== 'running') return
-    const chunk = <T>(xs: T[], n = 500) => Array.from({ length: Math.ceil(xs.length / n) }, (_, i) => xs.slice(i * n, i * n + n))
-    for (const part of chunk(r.stations)) {
-      await tx.insert(adjustedStations).values(part.map((s) => ({
-        firmId, adjustmentId: run.id, name: s.name, kind: inputs.stationKinds.get(s.name) ?? s.kind, fixed: s.fixed,
-        east: s.east, north: s.north, height: s.height, sdEast: s.sdEast, sdNorth: s.sdNorth, sdHeight: s.sdHeight,
-        semiMajor: s.ellipse?.semiMajor ?? null, semiMinor: s.ellipse?.semiMinor ?? null, azimuthDeg: s.ellipse?.azimuthDeg ?? null,
-        semiMajor95: s.ellipse95?.semiMajor ?? null, semiMinor95: s.ellipse95?.semiMinor ?? null,
-      })))
-    }
-    const obsRows = r.observations.filter((o) => o.kind !== 'control')
-    for (const part of chunk(obsRows)) {
-      await tx.insert(observationResults).values(part.map((o) => ({
-        firmId, adjustmentId: run.id, observationId: typeof o.id === 'number' ? o.id : null, line: o.line,
-        kind: o.kind as Exclude<typeof o.kind, 'control'>, at: o.at, from: o.from, to: o.to,
-        residual: o.residual, redundancy: o.redundancy, w: o.w, tau: o.tau, mdb: o.mdb, flagged: o.flagged, excluded: o.excluded,
-      })))
-    }
-    for (const part of chunk(relChecks)) {
-      await tx.insert(relativePrecisions).values(part.map(({ rel, check }) => ({
-        firmId, adjustmentId: run.id, fromStation: rel.from, toStation: rel.to, distance: rel.distance,
-        semiMajor: rel.semiMajor, semiMinor: rel.semiMinor, azimuthDeg: rel.azimuthDeg, semiMajor95: check.semiMajor95,
-        allowable: check.allowable, passes: check.passes,
-      })))
-    }
+    summary.storeMs = await storeResults(tx, firmId, run.id, r, inputs.stationKinds, relChecks)
     await tx.update(adjustments).set({
-      status: 'done', finishedAt: new Date(), summary, result: r as unknown as Record<string, unknown>, inputHash: inputs.hash, errorText: null,
+      status: 'done', finishedAt: new Date(), summary: summary as unknown as Record<string, unknown>, inputHash: inputs.hash, errorText: null,
     }).where(and(eq(adjustments.firmId, firmId), eq(adjustments.id, run.id)))
     await tx.update(projects).set({ status: 'adjusted' })
       .where(and(eq(projects.firmId, firmId), eq(projects.id, run.projectId), eq(projects.status, 'collecting')))
@@ -325,25 +310,6 @@ async function computeAndStore(run: Adjustment): Promise<ProcessOutcome> {
 function stripResolved(s: Record<string, unknown>): RunSettings {
   const { observationSetIds: _ids, ...rest } = s
   return rest as unknown as RunSettings
-}
-
-function buildSummary(r: AdjustmentResult, tolerance: ToleranceSpec | null, passes: (boolean | null)[], engineMs: number, warnings: string[], weighting: RunWeighting[]) {
-  const used = r.observations.filter((o) => !o.excluded && o.kind !== 'control')
-  const tested = used.filter((o) => o.w !== null).length
-  return {
-    converged: r.converged, iterations: r.iterations, dof: r.dof, sigma0: r.sigma0, globalTest: r.globalTest, counts: r.counts,
-    health: r.health, critical: r.critical, plane: r.plane ?? null, height: r.height ?? null,
-    flagged: used.filter((o) => o.flagged).length,
-    weak: used.filter((o) => o.weak).length,
-    excluded: r.observations.filter((o) => o.excluded).length,
-    confidence: r.settings.confidence, scaling: r.settings.scaling, alpha: r.settings.alpha, alpha0: r.settings.alpha0, beta0: r.settings.beta0,
-    weakRedundancy: r.settings.weakRedundancy,
-    tolerance: tolerance ? { ...tolerance, description: describeTolerance(tolerance) } : null,
-    relative: { checked: passes.filter((p) => p !== null).length, passed: passes.filter((p) => p === true).length, failed: passes.filter((p) => p === false).length },
-    // data snooping tests each observation at α0: even a sound network flags about n·α0 by chance
-    chance: { tested, expectedFlags: tested * r.settings.alpha0 },
-    engineMs, warnings, weighting,
-  }
 }
 
 /**

@@ -391,7 +391,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   if (r.sigma0 !== null) line('A-posteriori standard deviation of unit weight σ0', r.sigma0.toFixed(3))
   if (r.globalTest) {
     const g = r.globalTest
-    line('Global test (χ²)', `${g.passed ? 'passed' : 'FAILED'}: statistic ${g.statistic.toFixed(2)}, acceptance interval ${g.lower.toFixed(2)} to ${g.upper.toFixed(2)}`)
+    line('Global test (χ²)', `${g.passed === null ? 'not applicable (no redundancy)' : g.passed ? 'passed' : 'FAILED'}: statistic ${g.statistic.toFixed(2)}, acceptance interval ${g.lower.toFixed(2)} to ${g.upper.toFixed(2)}`)
   }
   line('Input hash', r.inputHash)
 

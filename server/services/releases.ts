@@ -67,7 +67,7 @@ export async function createRelease(ctx: FirmContext, project: Project, body: Re
         stations: signoff.stations as unknown as SignedStation[], accuracyCheck: signoff.accuracyCheck as unknown as AccuracyCheck,
       },
       run: runSummary(run),
-      ...runReportExtras(run),
+      ...(await runReportExtras(run)),
     })
     await tx.insert(releaseFiles).values(files.map((f) => ({
       firmId: ctx.firm.id, releaseId: rel!.id, format: f.format, fileName: f.fileName, contentType: f.contentType,

@@ -15,12 +15,13 @@ import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
 import { DomainError, notFound } from '../utils/errors'
 import { checkAccuracy, defaultSignStations } from './accuracy-check'
-import type { AccuracyCheck } from './accuracy-check'
+import type { AccuracyCheck, ResultLike } from './accuracy-check'
 import { audit } from './audit'
 import { notifySignoffCompleted, notifySignoffRequested } from './notifications'
 import { sha256Hex } from './passwords'
 import { checkCredentials } from './signin'
 import { RunInputError, loadRunInputs } from './run-inputs'
+import { allRelative, allStations, countFlaggedAny, type RunSummary } from './run-results'
 import { getToleranceProfile } from './tolerance'
 
 /** One signed station: metres and degrees, rounded to the canonical decimals. */
@@ -95,11 +96,30 @@ export async function findRun(firmId: number, projectId: number, number: number)
   return run
 }
 
-function doneResult(run: Adjustment): AdjustmentResult {
-  if (run.status !== 'done' || !run.result) {
+/** What the accuracy check and the sign-off read of a finished run, from its result tables. */
+interface SignableResult extends ResultLike {
+  stations: StationResult[]
+  summary: RunSummary
+  /** observations in use that fail data snooping or the τ test */
+  flaggedAny: number
+}
+
+async function doneResult(run: Adjustment): Promise<SignableResult> {
+  if (run.status !== 'done' || !run.summary) {
     throw new DomainError('conflict', `Run ${run.number} is ${run.status}; only a finished run can be signed off`)
   }
-  return run.result as unknown as AdjustmentResult
+  const summary = run.summary as unknown as RunSummary
+  const [stations, relative, flaggedAny] = await Promise.all([
+    allStations(run.firmId, run.id),
+    allRelative(run.firmId, run.id),
+    summary.flaggedAny ?? countFlaggedAny(run.firmId, run.id),
+  ])
+  return {
+    stations, relative, summary, flaggedAny,
+    settings: summary.settings ?? { confidence: summary.confidence, scaling: summary.scaling },
+    dof: summary.dof,
+    ...(summary.plane ? { plane: { dof: summary.plane.dof } } : {}),
+  }
 }
 
 export interface RunSummaryDto {
@@ -120,7 +140,7 @@ export interface RunSummaryDto {
 }
 
 export function runSummary(run: Adjustment): RunSummaryDto {
-  const r = (run.result ?? null) as Partial<AdjustmentResult> | null
+  const r = (run.status === 'done' ? run.summary ?? null : null) as Partial<RunSummary> | null
   return {
     number: run.number,
     finishedAt: run.finishedAt?.toISOString() ?? null,
@@ -129,31 +149,23 @@ export function runSummary(run: Adjustment): RunSummaryDto {
     dof: r?.dof ?? null,
     globalTest: r?.globalTest ?? null,
     counts: r?.counts ?? null,
-    confidence: r?.settings?.confidence ?? null,
-    alpha: r?.settings?.alpha ?? null,
-    datum: r?.settings?.datum ? (r.settings.datum === 'free' ? 'free' : 'as-stored') : null,
-    scaling: r?.settings?.scaling ?? null,
+    confidence: r?.confidence ?? null,
+    alpha: r?.alpha ?? null,
+    datum: (run.settings as { datum?: string } | null)?.datum === 'free' ? 'free' : 'as-stored',
+    scaling: r?.scaling ?? null,
   }
 }
 
 /** What the PDF draws and lists from the signed run: its network and the observations the signer accepted flagged. */
-export function runReportExtras(run: Adjustment): { network: NetworkDrawing; flagged: FlaggedObservation[] } {
-  const r = (run.result ?? null) as Partial<AdjustmentResult> | null
-  const stations = (r?.stations ?? []).filter((s) => s.east !== null && s.north !== null)
+export async function runReportExtras(run: Adjustment): Promise<{ network: NetworkDrawing; flagged: FlaggedObservation[] }> {
+  const stations = (await allStations(run.firmId, run.id)).filter((s) => s.east !== null && s.north !== null)
     .map((s) => ({ name: s.name, east: s.east!, north: s.north!, fixed: s.fixed, semiMajor95: s.ellipse95?.semiMajor ?? null, semiMinor95: s.ellipse95?.semiMinor ?? null, azimuthDeg: s.ellipse95?.azimuthDeg ?? null }))
-  const seen = new Set<string>()
-  const lines: [string, string][] = []
-  for (const o of r?.observations ?? []) {
-    if (o.kind === 'control' || !o.to || o.excluded) continue
-    const key = o.at < o.to ? `${o.at}\u0000${o.to}` : `${o.to}\u0000${o.at}`
-    if (seen.has(key)) continue
-    seen.add(key)
-    lines.push([o.at, o.to])
-  }
-  const flagged = (r?.observations ?? []).filter((o) => !o.excluded && (o.flagged || o.tauFlagged))
-    .sort((a, b) => Math.abs(b.w ?? 0) - Math.abs(a.w ?? 0))
-    .map((o) => ({ line: o.line, kind: o.kind, at: o.at, from: o.from ?? null, to: o.to ?? null, w: o.w }))
-  return { network: { stations, lines }, flagged }
+  // observed lines, one per pair, and the observations still flagged (largest |w| first)
+  const pairs = await useDb().execute<{ a: string; b: string }>(sql`select distinct least("at", "to") as a, greatest("at", "to") as b from observation_results
+    where firm_id = ${run.firmId} and adjustment_id = ${run.id} and kind <> 'control' and not excluded`)
+  const flaggedRows = await useDb().execute<{ line: number; kind: string; at: string; from: string | null; to: string | null; w: number | null }>(sql`select line, kind, "at", "from", "to", w from observation_results
+    where firm_id = ${run.firmId} and adjustment_id = ${run.id} and not excluded and (flagged or tau_flagged) order by abs(coalesce(w, 0)) desc limit 500`)
+  return { network: { stations, lines: pairs.rows.map((r) => [r.a, r.b] as [string, string]) }, flagged: flaggedRows.rows }
 }
 
 export interface NetworkDrawing {
@@ -174,7 +186,7 @@ export interface SignoffPreview {
 /** What the sign-off page shows for one finished run before anyone signs. */
 export async function previewSignoff(ctx: FirmContext, project: Project, runNumber: number): Promise<SignoffPreview> {
   const run = await findRun(ctx.firm.id, project.id, runNumber)
-  const result = doneResult(run)
+  const result = await doneResult(run)
   const profile = await getToleranceProfile(ctx.firm.id, project.toleranceProfileId)
   const check = checkAccuracy(profile, result)
   const defaults = defaultSignStations(result, check)
@@ -241,7 +253,7 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
     throw new DomainError('invalid', 'The password is not correct; nothing was signed', [{ field: 'password', message: 'password: is not correct' }])
   }
   const run = await findRun(ctx.firm.id, project.id, runNumber)
-  const result = doneResult(run)
+  const result = await doneResult(run)
   const testWarnings = failedTests(result)
   if (testWarnings.length && body.acknowledgeFailedTests !== true) {
     throw new DomainError('invalid', `Run ${runNumber} did not pass its statistical tests: ${testWarnings.join('; ')}. Read the run report, then confirm that you sign regardless; nothing was signed.`, [
@@ -294,17 +306,27 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
 }
 
 /** What a signer must knowingly accept: a failed global test, flagged observations still in use. */
-export function failedTests(result: AdjustmentResult): string[] {
+export function failedTests(result: { summary: Pick<RunSummary, 'globalTest' | 'plane' | 'height'>; flaggedAny: number }): string[] {
   const out: string[] = []
-  if (!result.globalTest.passed) out.push('failed its global test')
-  const flagged = result.observations.filter((o) => !o.excluded && (o.flagged || o.tauFlagged)).length
+  // the plane and the height network are gated separately: one may pass while the
+  // other fails or has no redundancy at all (its global test is then not applicable)
+  const summary = result.summary
+  if (summary.globalTest.passed === false) out.push('failed its global test')
+  const nets = [['plane', summary.plane], ['height', summary.height]] as const
+  for (const [name, net] of nets) {
+    if (!net) continue
+    if (net.globalTest.passed === false && summary.globalTest.passed !== false) out.push(`the ${name} network failed its global test`)
+    if (net.globalTest.passed === null) out.push(`the ${name} network has no redundancy: its global test is not applicable and nothing in it is checked`)
+  }
+  if (summary.globalTest.passed === null && !summary.plane && !summary.height) out.push('has no redundancy: the global test is not applicable')
+  const flagged = result.flaggedAny
   if (flagged) out.push(`still uses ${flagged} flagged observation${flagged === 1 ? '' : 's'}`)
   return out
 }
 
 export async function requestSignoff(ctx: FirmContext, project: Project, runNumber: number, note?: string) {
   const run = await findRun(ctx.firm.id, project.id, runNumber)
-  doneResult(run)
+  if (run.status !== 'done' || !run.summary) throw new DomainError('conflict', `Run ${run.number} is ${run.status}; only a finished run can be signed off`)
   const out = await notifySignoffRequested({ firmId: ctx.firm.id, projectId: project.id, runNumber, requestedBy: ctx.user.name, note })
   await audit(useDb(), { firmId: ctx.firm.id, userId: ctx.user.id, action: 'signoff.request', entityType: 'adjustment', entityId: run.id, projectId: project.id, after: { run: runNumber, recipients: out.recipients } })
   if (out.recipients.length === 0) throw new DomainError('conflict', 'The firm has no licensed surveyor to ask; an owner can invite one on the Members page')

@@ -1,10 +1,11 @@
 // Adjustment runs through the API, the queue and the worker, on the invented
 // demo network (server/db/demo): queueing, results, exports, roles, firm
 // isolation, exclusion with a new run, and that finished runs never change.
+import { DEMO_PROJECT_HEIGHT_M } from '../../server/db/demo/generate'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
-import { adjustedStations, adjustments, mailboxMessages, observationSets, observations, projects, toleranceProfiles } from '../../server/db/schema'
+import { adjustedStations, adjustments, mailboxMessages, observationResults, observationSets, observations, projects, toleranceProfiles } from '../../server/db/schema'
 import { adjustNetwork } from '../../server/engine/index'
 import { as, DEMO, type Client } from '../support/http'
 import { BLUNDER, DEMO_CSV, projectWithNetwork, readCsv, waitForRun } from './adjustments-fixture'
@@ -42,7 +43,8 @@ describe('a run on the demo network', () => {
 
   it('stores the coordinates the engine computes from the same file (1e-6 m)', async () => {
     const read = readCsv(DEMO_CSV)
-    const engine = adjustNetwork({ controls: read.controls, observations: read.observations })
+    // the run passes the project's settings: the demo project lies at its project height
+    const engine = adjustNetwork({ controls: read.controls, observations: read.observations, projectHeightM: DEMO_PROJECT_HEIGHT_M })
     expect(engine.ok).toBe(true)
     if (!engine.ok) return
     const [first] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, fx.projectId), eq(adjustments.number, 1)))
@@ -113,7 +115,7 @@ describe('a run on the demo network', () => {
       expect(pair.allowable).toBeCloseTo(0.020 + 50e-6 * pair.distance, 12)
       expect(pair.passes).toBe(pair.semiMajor95 <= pair.allowable)
     }
-    expect(r.summary.relative.checked).toBe(r.relative.length)
+    expect(r.summary.relative.checked).toBe(r.totals.relative)
     // without a profile nothing is rated
     expect(run.summary.tolerance).toBeNull()
     expect(run.relative.every((p: any) => p.allowable === null && p.passes === null)).toBe(true)
@@ -129,7 +131,7 @@ describe('a run on the demo network', () => {
     expect(text).toContain(`CP1,control,fixed,${cp1.east.toFixed(4)},${cp1.north.toFixed(4)}`)
     const r = await chief.raw(`${runPath(1)}/export/residuals.csv`)
     const rtext = await r.text()
-    expect(rtext.split('\n').filter((l) => l && !l.startsWith('#')).length).toBe(run.observations.length + 1)
+    expect(rtext.split('\n').filter((l) => l && !l.startsWith('#')).length).toBe(run.totals.observations + 1)
   })
 
   it('exclude-and-re-run excludes the blunder and the new run passes the global test', async () => {
@@ -141,11 +143,130 @@ describe('a run on the demo network', () => {
     const second = (await chief.get(runPath(3))).body
     expect(second.status).toBe('done')
     expect(second.summary.globalTest.passed).toBe(true)
-    expect(second.observations.find((o: any) => o.line === BLUNDER.line).excluded).toBe(true)
+    const excluded = (await chief.get(`${runPath(3)}/observations?excluded=1`)).body
+    expect(excluded.rows.map((o: any) => o.line)).toEqual([BLUNDER.line])
     expect(second.inputHash).not.toBe(run.inputHash)
     expect(second.settings).toEqual(run.settings)
     const [o] = await useDb().select().from(observations).where(eq(observations.id, obsId))
     expect(o!.excluded).toBe(true)
+  })
+
+  it('compares two runs in SQL: σ̂0, shifts largest first, the blunder excluded and no longer flagged', async () => {
+    const r = await chief.get(`${base}/adjustments/compare?a=1&b=3&size=5`)
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    const c = r.body
+    expect(c.a.sigma0).toBeCloseTo(run.summary.sigma0, 12)
+    expect(c.b.globalTest.passed).toBe(true)
+    const s1 = (await chief.get(`${runPath(1)}/stations?size=500`)).body.rows as any[]
+    const s3 = (await chief.get(`${runPath(3)}/stations?size=500`)).body.rows as any[]
+    const shifts = s3.map((s) => {
+      const o = s1.find((x) => x.name === s.name)
+      return { name: s.name, horiz: Math.hypot(s.east - o.east, s.north - o.north) }
+    }).sort((x, y) => y.horiz - x.horiz)
+    expect(c.stations.total).toBe(s3.length)
+    expect(c.stations.rows.map((x: any) => x.name)).toEqual(shifts.slice(0, 5).map((x) => x.name))
+    c.stations.rows.forEach((x: any, i: number) => expect(x.horiz).toBeCloseTo(shifts[i]!.horiz, 9))
+    expect(c.exclusions.added.rows.map((o: any) => o.line)).toEqual([BLUNDER.line])
+    expect(c.exclusions.removed.total).toBe(0)
+    expect(c.flags.removed.rows.map((o: any) => o.line)).toContain(BLUNDER.line)
+    expect(c.flags.added.total).toBe(0)
+    expect((await chief.get(`${base}/adjustments/compare?a=1&b=999`)).status).toBe(404)
+    expect((await chief.get(`${base}/adjustments/compare?a=1`)).status).toBe(422)
+  })
+
+  it('stores results only in the result tables: the run row keeps a summary without per-station or per-observation lists', async () => {
+    const [row] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, fx.projectId), eq(adjustments.number, 1)))
+    expect(Object.keys(row!)).not.toContain('result')
+    const summary = row!.summary as Record<string, unknown>
+    expect(summary.stations).toBeUndefined()
+    expect(summary.observations).toBeUndefined()
+    expect(summary.rows).toEqual({ stations: run.totals.stations, observations: run.totals.observations, relative: run.totals.relative })
+    const stored = await useDb().select().from(observationResults).where(and(eq(observationResults.firmId, fx.firmId), eq(observationResults.adjustmentId, row!.id)))
+    expect(stored.length).toBe(run.totals.observations)
+    // the engine's own list, in the same order, with every field the page shows
+    const read = readCsv(DEMO_CSV)
+    const engine = adjustNetwork({ controls: read.controls, observations: read.observations.map((o) => ({ ...o, id: fx.obsIdByLine.get(o.line) })) })
+    if (!engine.ok) throw new Error(engine.reason)
+    const all = (await chief.get(`${runPath(1)}/observations?sort=order&size=500`)).body
+    expect(all.total).toBe(engine.result.observations.length)
+    const key = (o: { line: number; kind: string; component: string | null }) => `${o.line}|${o.kind}|${o.component ?? ''}`
+    const mine = new Map(all.rows.map((o: any) => [key(o), o]))
+    for (const e of engine.result.observations) {
+      const o = mine.get(key(e)) as any
+      expect(o, key(e)).toBeDefined()
+      expect([o.at, o.to, o.flagged, o.tauFlagged, o.weak, o.excluded, o.residualUnit, o.valueUnit]).toEqual([e.at, e.to, e.flagged, e.tauFlagged, e.weak, e.excluded, e.residualUnit, e.valueUnit])
+      for (const k of ['residual', 'sigma', 'redundancy', 'w', 'tau', 'mdb', 'observed'] as const) {
+        if (e[k] === null) expect(o[k], `${e.line} ${k}`).toBeNull()
+        else expect(Math.abs(o[k] - e[k]!), `${e.line} ${k}`).toBeLessThan(1e-6 * Math.max(1, Math.abs(e[k]!)))
+      }
+    }
+  })
+
+  it('pages, sorts and filters observation results on the server', async () => {
+    const all = (await chief.get(`${runPath(1)}/observations?sort=order&size=500`)).body.rows as any[]
+    const byAbsW = [...all].filter((o) => o.w !== null).sort((a, b) => Math.abs(b.w) - Math.abs(a.w))
+    const p1 = (await chief.get(`${runPath(1)}/observations?sort=-absW&size=3`)).body
+    const p2 = (await chief.get(`${runPath(1)}/observations?sort=-absW&size=3&page=2`)).body
+    expect(p1.total).toBe(all.length)
+    expect([p1.page, p1.size, p2.page]).toEqual([1, 3, 2])
+    expect([...p1.rows, ...p2.rows].map((o: any) => Math.abs(o.w))).toEqual(byAbsW.slice(0, 6).map((o) => Math.abs(o.w)))
+    const flagged = (await chief.get(`${runPath(1)}/observations?sort=-absW&flagged=1`)).body
+    const expectFlagged = all.filter((o) => !o.excluded && (o.flagged || o.tauFlagged))
+    expect(flagged.total).toBe(expectFlagged.length)
+    expect(flagged.rows.map((o: any) => o.line)).toContain(BLUNDER.line)
+    const notFlagged = (await chief.get(`${runPath(1)}/observations?flagged=0&size=1`)).body
+    expect(notFlagged.total + flagged.total).toBe(all.length)
+    const byLine = (await chief.get(`${runPath(1)}/observations?sort=-line&size=5`)).body.rows.map((o: any) => o.line)
+    expect(byLine).toEqual([...all].map((o) => o.line).sort((a, b) => b - a).slice(0, 5))
+    const at = all[0].at
+    const station = (await chief.get(`${runPath(1)}/observations?station=${encodeURIComponent(at)}&size=500`)).body
+    expect(station.total).toBe(all.filter((o) => o.at === at || o.to === at || o.from === at).length)
+    const kind = (await chief.get(`${runPath(1)}/observations?kind=direction&size=500`)).body
+    expect(kind.rows.every((o: any) => o.kind === 'direction')).toBe(true)
+    expect(kind.total).toBe(all.filter((o) => o.kind === 'direction').length)
+  })
+
+  it('pages and sorts stations and relative precisions; bounded page sizes and unknown sorts answer 422', async () => {
+    const st = (await chief.get(`${runPath(1)}/stations?sort=-east&size=2`)).body
+    const all = (await chief.get(`${runPath(1)}/stations?size=500`)).body
+    expect(st.total).toBe(all.total)
+    expect(st.rows.map((s: any) => s.name)).toEqual([...all.rows].filter((s: any) => s.east !== null).sort((a: any, b: any) => b.east - a.east).slice(0, 2).map((s: any) => s.name))
+    const fixed = (await chief.get(`${runPath(1)}/stations?fixed=1&size=500`)).body
+    expect(fixed.total).toBe(all.rows.filter((s: any) => s.fixed).length)
+    const q = (await chief.get(`${runPath(1)}/stations?q=cp`)).body
+    expect(q.rows.map((s: any) => s.name).sort()).toEqual(all.rows.filter((s: any) => s.name.toLowerCase().includes('cp')).map((s: any) => s.name).sort())
+    const rel = (await chief.get(`${runPath(1)}/relative?sort=-distance&size=3`)).body
+    const relAll = (await chief.get(`${runPath(1)}/relative?size=500`)).body
+    expect(rel.rows.map((p: any) => p.distance)).toEqual(relAll.rows.map((p: any) => p.distance).sort((a: number, b: number) => b - a).slice(0, 3))
+    for (const bad of ['size=501', 'page=0', 'sort=secret', 'flagged=yes', 'sort=-absW;drop']) {
+      const r = await chief.get(`${runPath(1)}/observations?${bad}`)
+      expect(r.status, bad).toBe(422)
+      expect(r.body.errors[0].field, bad).toBeTruthy()
+    }
+    expect((await chief.get(`${runPath(1)}/stations?size=501`)).status).toBe(422)
+  })
+
+  it('the run GET is small: summary, weighting and the first page with totals', async () => {
+    expect(run.stations.length).toBeLessThanOrEqual(50)
+    expect(run.observations.length).toBeLessThanOrEqual(50)
+    expect(run.totals.observations).toBeGreaterThan(run.observations.length - 1)
+    expect(run).toHaveProperty('weighting')
+    expect(run.result.observations.map((o: any) => o.line)).toEqual(run.observations.map((o: any) => o.line))
+  })
+
+  it('the overview gives the map every station and connected pair, and the w histogram counts every used w', async () => {
+    const ov = (await chief.get(`${runPath(1)}/overview`)).body
+    const all = (await chief.get(`${runPath(1)}/observations?sort=order&size=500`)).body.rows as any[]
+    expect(ov.stations.name.length).toBe(run.totals.stations)
+    const pairs = new Set(all.filter((o) => o.kind !== 'control' && o.at !== o.to).map((o) => [o.at, o.to].sort().join('|')))
+    expect(ov.lines.from.length).toBe(pairs.size)
+    const blunder = all.find((o) => o.line === BLUNDER.line)
+    const i = ov.lines.from.findIndex((f: number, k: number) => [ov.stations.name[f], ov.stations.name[ov.lines.to[k]]].sort().join('|') === [blunder.at, blunder.to].sort().join('|'))
+    expect(ov.lines.rating[i]).toBe(2)
+    const used = all.filter((o) => !o.excluded && o.w !== null)
+    expect(ov.distributions.w.counts.reduce((a: number, b: number) => a + b, 0)).toBe(used.length)
+    const beyond = used.filter((o) => o.w >= 4.5).length
+    expect(ov.distributions.w.counts[19]).toBe(beyond)
   })
 
   it('lists runs newest first with σ̂0 and verdict', async () => {
@@ -190,6 +311,27 @@ describe('settings and numbering', () => {
     const weighted = await runToEnd(chief, { holds: [{ station: 'CP2', hold: 'weighted', sdEastMm: 5, sdNorthMm: 5 }] })
     expect(weighted.status, weighted.errorText).toBe('done')
     expect(weighted.stations.find((s: any) => s.name === 'CP2').fixed).toBe(false)
+  })
+})
+
+describe('streamed CSV exports', () => {
+  it('keep a station name a spreadsheet would run as a formula as text (apostrophe in front), and negative numbers as numbers', async () => {
+    // regression: the streamed export must follow the same rule as the other CSV files (OWASP "CSV Injection")
+    const csv = DEMO_CSV.replaceAll('KF01', '=KF01').replaceAll('KF02', '-KF02')
+    const f = await projectWithNetwork(DEMO.firm, 'Formula names', csv)
+    const path = `/api/firms/${DEMO.firm}/projects/${f.projectId}/adjustments`
+    const r = await chief.post(path, {})
+    expect(r.status).toBe(202)
+    await waitForRun(async () => (await chief.get(`${path}/${r.body.number}/status`)).body)
+    const coords = await (await chief.raw(`${path}/${r.body.number}/export/coordinates.csv`)).text()
+    const names = coords.split('\n').filter((l) => l && !l.startsWith('#')).slice(1).map((l) => l.split(',')[0])
+    expect(names).toContain("'=KF01")
+    expect(names).toContain("'-KF02")
+    expect(names.some((n) => n === '=KF01' || n === '-KF02')).toBe(false)
+    const residuals = await (await chief.raw(`${path}/${r.body.number}/export/residuals.csv`)).text()
+    expect(residuals).toContain(",'=KF01,")
+    // a negative residual stays a plain number
+    expect(residuals.split('\n').some((l) => /^\d+,[a-z_]+,[^,]*,[^,]*,[^,]*,-\d/.test(l))).toBe(true)
   })
 })
 
@@ -248,7 +390,9 @@ describe('who may do what', () => {
   it('another firm’s run answers 404 on every route', async () => {
     const other = await as(DEMO.other)
     const otherBase = `/api/firms/${DEMO.otherFirm}/projects/${fx.projectId}`
-    for (const p of [`${base}/adjustments`, runPath(1), `${runPath(1)}/status`, `${runPath(1)}/export/residuals.csv`, `${otherBase}/adjustments/1`]) {
+    for (const p of [`${base}/adjustments`, runPath(1), `${runPath(1)}/status`, `${runPath(1)}/export/residuals.csv`, `${otherBase}/adjustments/1`,
+      `${runPath(1)}/stations`, `${runPath(1)}/observations?sort=-absW&flagged=1`, `${runPath(1)}/relative`, `${runPath(1)}/overview`,
+      `${base}/adjustments/compare?a=1&b=3`, `${otherBase}/adjustments/1/observations`]) {
       expect((await other.get(p)).status, p).toBe(404)
     }
     expect((await other.post(`${base}/adjustments`, {})).status).toBe(404)

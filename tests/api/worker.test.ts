@@ -57,7 +57,7 @@ describe('a worker killed mid-run', () => {
     expect(['done', 'failed']).toContain(final)
     expect(run.status).not.toBe('running')
     expect(run.attempts).toBeGreaterThanOrEqual(2)
-    if (final === 'done') expect(run.result).not.toBeNull()
+    if (final === 'done') expect(run.summary).not.toBeNull()
     else expect(run.errorText).toMatch(/worker/)
   }, 120_000)
 })

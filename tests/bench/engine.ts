@@ -1,140 +1,106 @@
 // Engine benchmark: invented perturbed-grid networks (≈ 6 neighbours per station,
-// a direction and a distance to each, 4 fixed corners). Prints size, time per
-// phase (approximations, factorization, statistics with every redundancy number,
-// ellipse and MDB effect), the process's peak RSS after the adjustment, and our
-// compression + pivoted QR against ml-matrix QrDecomposition on the same whitened
-// matrix. Each size runs in its own process (so peak RSS is that size's) after a
-// small warm-up network (so the JIT is not timed); sizes up to 300 stations
-// report the fastest of three runs, our QR the fastest of three. Targets: 300 stations with
-// full statistics well under 5 s; 1,000 stations under a minute; own QR ≥ 3×
-// faster than ml-matrix. Run: npx tsx tests/bench/engine.ts [--quick] [--ml-all]
-// (--ml-all also times ml-matrix on 1,000 stations, which takes many minutes).
+// a direction and a distance to each, one direction set per station, 4 fixed
+// corners; tests/unit/engine/helpers.ts). For 1,000, 2,000, 5,000 and 10,000
+// stations it prints the time per phase — approximations, ordering (symbolic
+// analysis, once), factorization (every Gauss–Newton iteration, ordering
+// included), statistics (selected inverse, qvv and rᵢ of every observation, w, τ,
+// MDB and its effect, absolute ellipses of every station, relative ellipses of
+// every connected pair, condition estimate), other (input checks, building the
+// model, each iteration's linearization) — the total, the process's CPU time
+// and its peak RSS. Each size runs in its own process (so peak RSS is that
+// size's) after a small warm-up network. The growth exponent is the least-squares
+// slope of log(total) against log(stations).
+//
+// Targets (issue 12): 10,000 stations < 10 s and < 1 GB on 2 cores; 2,000 < 2 s;
+// growth ≤ N^1.4. The machine is shared: wall times depend on its load, which is
+// printed with the figures (CPU time is the less disturbed measure).
+//
+// Run: npx tsx tests/bench/engine.ts [--quick] [--dense] [--sizes 1000,2000]
+//   --quick  1,000 and 2,000 stations only
+//   --dense  the dense path (u×u QR, the oracle) instead — the "before" figures;
+//            it needs minutes and gigabytes above 2,000 stations
 import { spawnSync } from 'node:child_process'
+import { loadavg } from 'node:os'
 import { fileURLToPath } from 'node:url'
-import { Matrix, QrDecomposition } from 'ml-matrix'
 import { adjustNetworkTimed } from '../../server/engine/adjust'
-import { compressRows, factorize } from '../../server/engine/qr'
 import { gridNetwork } from '../unit/engine/helpers'
 
-const quick = process.argv.includes('--quick')
-const mlAll = process.argv.includes('--ml-all')
-const oneAt = process.argv.indexOf('--one')
-const sizes = quick ? [100] : [100, 300, 1000]
-const peakMb = () => process.resourceUsage().maxRSS / 1024
-
-/** The whitened design of one iteration, rebuilt here for the ml-matrix comparison. */
-function whitenedDirectionDistanceMatrix(side: number): { a: Float64Array; m: number; n: number } {
-  const net = gridNetwork(side, 1)
-  const names = [...net.truth.keys()]
-  const idx = new Map(names.map((s, i) => [s, i]))
-  const sets = new Map<string, number>()
-  for (const o of net.observations) if (o.kind === 'direction' && !sets.has(o.at)) sets.set(o.at, sets.size)
-  const n = sets.size + 2 * names.length
-  const m = net.observations.length
-  const a = new Float64Array(m * n)
-  net.observations.forEach((o, t) => {
-    const p = net.truth.get(o.at)!
-    const q = net.truth.get(o.to)!
-    const de = q[0] - p[0]
-    const dn = q[1] - p[1]
-    const d2 = de * de + dn * dn
-    const d = Math.sqrt(d2)
-    const i = sets.size + 2 * idx.get(o.at)!
-    const j = sets.size + 2 * idx.get(o.to)!
-    const w = 1 / o.sigma!
-    if (o.kind === 'direction') {
-      a[sets.get(o.at)! * m + t] = -w
-      a[i * m + t] = (-dn / d2) * w
-      a[(i + 1) * m + t] = (de / d2) * w
-      a[j * m + t] = (dn / d2) * w
-      a[(j + 1) * m + t] = (-de / d2) * w
-    } else {
-      a[i * m + t] = (-de / d) * w
-      a[(i + 1) * m + t] = (-dn / d) * w
-      a[j * m + t] = (de / d) * w
-      a[(j + 1) * m + t] = (dn / d) * w
-    }
-  })
-  return { a, m, n }
-}
+const argv = process.argv
+const dense = argv.includes('--dense')
+const oneAt = argv.indexOf('--one')
+const sizesAt = argv.indexOf('--sizes')
+const sizes =
+  sizesAt >= 0 ? argv[sizesAt + 1].split(',').map(Number) : argv.includes('--quick') ? [1000, 2000] : [1000, 2000, 5000, 10000]
 
 function runOne(stations: number): string {
   const side = Math.round(Math.sqrt(stations))
-  adjustNetworkTimed(gridNetwork(5, 2)) // warm-up
+  const options = { factorization: dense ? ('dense' as const) : ('sparse' as const) }
+  adjustNetworkTimed(gridNetwork(6, 2), {}, options) // warm-up: the JIT is not timed
   const net = gridNetwork(side, 1)
-  // the machine is shared: the fastest of a few runs is the least disturbed one
-  let best: (ReturnType<typeof adjustNetworkTimed> & { total: number }) | null = null
-  for (let rep = 0; rep < (stations <= 300 ? 3 : 1); rep++) {
-    const t0 = performance.now()
-    const run = adjustNetworkTimed(net)
-    const total = performance.now() - t0
-    if (!best || total < best.total) best = { ...run, total }
-  }
-  const { outcome, timings, total } = best!
-  if (!outcome.ok) return `${side * side} stations: failed: ${outcome.reason}`
+  const cpu0 = process.cpuUsage()
+  const t0 = performance.now()
+  const { outcome, timings } = adjustNetworkTimed(net, {}, options)
+  const total = performance.now() - t0
+  const cpu = process.cpuUsage(cpu0)
+  if (!outcome.ok) return JSON.stringify({ stations: side * side, failed: outcome.reason })
   const res = outcome.result
-  const rss = peakMb()
-  // QR comparison on one iteration's whitened design (all stations as unknowns, so
-  // it has the datum defect; both factor the same matrix, only the time is compared)
-  const { a, m, n } = whitenedDirectionDistanceMatrix(side)
-  const rows: number[][] = []
-  for (let i = 0; i < m; i++) rows.push(Array.from({ length: n }, (_, j) => a[j * m + i]))
-  // our path: sparse whitened rows (sorted by first unknown) → R₀ → pivoted Householder QR
-  const sparse = rows
-    .map((row) => {
-      const cols: number[] = []
-      const values: number[] = []
-      row.forEach((v, j) => {
-        if (v !== 0) {
-          cols.push(j)
-          values.push(v)
-        }
-      })
-      return { cols, values, rhs: 0 }
-    })
-    .sort((p, q) => p.cols[0] - q.cols[0])
-  let own = Infinity
-  for (let rep = 0; rep < 3; rep++) {
-    const t1 = performance.now()
-    const c = compressRows(sparse, n)
-    factorize(c.r0, n, n, c.qtb)
-    own = Math.min(own, performance.now() - t1)
-  }
-  let mlText = 'skipped'
-  let ratio = '—'
-  if (stations <= 300 || mlAll) {
-    const mat = new Matrix(rows)
-    const t2 = performance.now()
-    new QrDecomposition(mat)
-    const ml = performance.now() - t2
-    mlText = ml.toFixed(0)
-    ratio = `${(ml / own).toFixed(1)}×`
-  }
-  return [
-    String(side * side).padStart(8),
-    String(res.counts.n).padStart(5),
-    String(res.counts.u).padStart(9),
-    timings.approximationMs.toFixed(0).padStart(10),
-    timings.factorizationMs.toFixed(0).padStart(10),
-    timings.statisticsMs.toFixed(0).padStart(9),
-    total.toFixed(0).padStart(9),
-    rss.toFixed(0).padStart(12),
-    own.toFixed(0).padStart(9),
-    mlText.padStart(16),
-    ratio.padStart(6),
-  ].join(' ')
+  return JSON.stringify({
+    stations: side * side,
+    rows: res.counts.n,
+    unknowns: res.counts.u,
+    iterations: res.iterations,
+    approx: timings.approximationMs,
+    ordering: timings.orderingMs,
+    factor: timings.factorizationMs,
+    stats: timings.statisticsMs,
+    total,
+    cpu: (cpu.user + cpu.system) / 1000,
+    rssMb: process.resourceUsage().maxRSS / 1024,
+    relative: res.relative.length,
+  })
 }
 
 if (oneAt >= 0) {
-  console.log(runOne(Number(process.argv[oneAt + 1])))
+  console.log(runOne(Number(argv[oneAt + 1])))
 } else {
-  console.log('stations  rows  unknowns  approx ms  factor ms  stats ms  total ms  peak RSS MB  ownQR ms  ml-matrix QR ms  ratio')
+  const f = (v: number, w: number) => v.toFixed(0).padStart(w)
+  console.log(`engine bench (${dense ? 'dense path' : 'sparse path'}), load average ${loadavg().map((x) => x.toFixed(2)).join(' ')} on a shared machine`)
+  console.log('stations   rows unknowns it  approx ms  ordering ms  factor ms  stats ms  other ms  total ms  cpu ms  peak RSS MB')
   const self = fileURLToPath(import.meta.url)
+  const points: [number, number, number][] = []
   for (const stations of sizes) {
-    const child = spawnSync(process.execPath, [...process.execArgv, self, '--one', String(stations), ...(mlAll ? ['--ml-all'] : [])], {
+    const child = spawnSync(process.execPath, [...process.execArgv, self, '--one', String(stations), ...(dense ? ['--dense'] : [])], {
       encoding: 'utf8',
       maxBuffer: 1 << 20,
     })
-    process.stdout.write(child.stdout || `${stations} stations: ${child.stderr}\n`)
+    const line = (child.stdout || '').trim().split('\n').pop() ?? ''
+    let r: Record<string, number> | null = null
+    try {
+      r = JSON.parse(line)
+    } catch {
+      r = null
+    }
+    if (!r || r.failed !== undefined || r.total === undefined) {
+      console.log(`${stations} stations: ${line || child.stderr?.slice(0, 400) || `exit ${child.status}`}`)
+      continue
+    }
+    points.push([r.stations, r.total, r.cpu])
+    console.log(
+      [f(r.stations, 8), f(r.rows, 6), f(r.unknowns, 8), f(r.iterations, 2), f(r.approx, 10), f(r.ordering, 12), f(r.factor, 10), f(r.stats, 9), f(r.total - r.approx - r.factor - r.stats, 9), f(r.total, 9), f(r.cpu, 7), f(r.rssMb, 12)].join(' '),
+    )
+  }
+  if (points.length >= 2) {
+    // least-squares slope of log(time) on log(stations)
+    const slope = (k: 1 | 2) => {
+      const xs = points.map((p) => Math.log(p[0]))
+      const ys = points.map((p) => Math.log(p[k]))
+      const mx = xs.reduce((a, b) => a + b, 0) / xs.length
+      const my = ys.reduce((a, b) => a + b, 0) / ys.length
+      let sxy = 0
+      let sxx = 0
+      xs.forEach((x, i) => ((sxy += (x - mx) * (ys[i] - my)), (sxx += (x - mx) ** 2)))
+      return sxy / sxx
+    }
+    console.log(`growth: total ∝ N^${slope(1).toFixed(2)}, cpu ∝ N^${slope(2).toFixed(2)} (target ≤ N^1.4); load average now ${loadavg().map((x) => x.toFixed(2)).join(' ')}`)
   }
 }

@@ -11,9 +11,11 @@ import { BLUNDER, DEMO_CSV, projectWithNetwork } from '../api/adjustments-fixtur
 let browser: Browser
 let page: Page
 let base: string
+let projectId: number
 
 beforeAll(async () => {
   const fx = await projectWithNetwork(DEMO.firm, 'Harrow Creek e2e', DEMO_CSV)
+  projectId = fx.projectId
   base = `/f/${DEMO.firm}/projects/${fx.projectId}`
   browser = await launch()
   page = await newPage(browser)
@@ -48,24 +50,34 @@ describe('runs in the browser', () => {
     await verdict.waitFor({ timeout: 60_000 })
     expect(await verdict.innerText()).toContain('global test passed')
     expect(await page.locator('[data-report-run="1"]').count()).toBe(0)
+    // excluded observations have no w, so they sort last: the table shows them on request
+    await page.getByTestId('residual-show').selectOption('excluded')
     const row = page.locator(`[data-testid="residual-table"] tbody tr[data-line="${BLUNDER.line}"]`).first()
+    await row.waitFor()
     expect(await row.getAttribute('data-rating')).toBe('excluded')
+    expect(await page.locator('[data-testid="residual-table"] tbody tr[data-line]').count()).toBe(1)
   })
 
   it('draws the network with exaggerated ellipses on the map', async () => {
     const map = page.getByTestId('network-map')
-    await map.locator('.leaflet-interactive').first().waitFor({ timeout: 20_000 })
-    // stations (circle markers) + observation lines + ellipses are SVG paths
-    expect(await map.locator('path.leaflet-interactive').count()).toBeGreaterThan(20)
-    expect(await map.locator('path').count()).toBeGreaterThan(await map.locator('path.leaflet-interactive').count())
+    // one canvas (Leaflet's canvas renderer), not one SVG path per line or station
+    await map.locator('canvas').first().waitFor({ timeout: 20_000 })
+    expect(await map.locator('svg path').count()).toBe(0)
+    const run = await (await page.request.get(`/api/firms/${DEMO.firm}/projects/${projectId}/adjustments/2`)).json()
+    expect(Number(await map.getAttribute('data-stations'))).toBe(run.totals.stations)
+    expect(Number(await map.getAttribute('data-lines'))).toBeGreaterThan(10)
+    // a small network: every name and every ellipse of a new station is drawn
+    expect(Number(await map.getAttribute('data-labels'))).toBe(run.totals.stations)
+    expect(Number(await map.getAttribute('data-ellipses'))).toBeGreaterThan(0)
     expect(await page.getByTestId('ellipse-scale').innerText()).toMatch(/exaggerated ×[\d,]+/)
     await map.scrollIntoViewIfNeeded()
     await map.screenshot({ path: 'tests/screenshots/runs-2-map.png' })
     await shot(page, 'runs-2-report')
     // clicking a station on the map highlights its row in the coordinates table
-    await map.locator('path.leaflet-interactive').last().click({ force: true })
-    await page.locator('tr.outline').first().waitFor({ timeout: 5_000 })
-    expect(await page.locator('tr.outline').count()).toBeGreaterThan(0)
+    const [x, y] = (await map.getAttribute('data-last-station-point'))!.split(',').map(Number)
+    await map.click({ position: { x: x!, y: y! } })
+    await page.locator('[data-testid="station-table"] tr.outline').first().waitFor({ timeout: 5_000 })
+    expect(await page.locator('[data-testid="station-table"] tr.outline').count()).toBe(1)
   })
 
   it('compares the two runs: the shifts and the excluded observation', async () => {

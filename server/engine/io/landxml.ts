@@ -1,7 +1,9 @@
 // Reader for LandXML 1.2 raw survey observations and control points (an open
 // standard: LandXML.org, "LandXML-1.2.xsd", 2008). It reads Units, CgPoints and
 // Survey/InstrumentSetup/RawObservation into the same records as the CSV
-// reader, in metres and radians.
+// reader, in metres and radians. The text is read in one SAX pass (saxes:
+// strict XML 1.0 well-formedness, no DTD processing, no entity expansion)
+// into a small tree of just what is read, so a 10 MB file never becomes a DOM.
 //
 // How the schema maps to our records (see ./README.md for the full table):
 // - CgPoint text is "northing easting [elevation]" (LandXML order, north first).
@@ -12,13 +14,13 @@
 //   slope_distance, horizDistance → horizontal_distance, azimuth → azimuth.
 //   instrumentHeight and targetHeight become hi and ht.
 // - RawObservations in an ObservationGroup find their set-up by setupID.
-// - Every issue carries the real source line of the element (from the parser's
-//   start offset) and, as its column, the element path with ordinals, e.g.
+// - Every issue carries the real source line of the element (where its start
+//   tag begins, from the SAX parser) and, as its column, the element path with ordinals, e.g.
 //   "Survey[1]/InstrumentSetup[2]/RawObservation[4]@horizAngle".
 // - Elements we do not read are reported as warnings, never dropped silently.
 // - The reader never throws, whatever bytes it is given.
 
-import { XMLParser, XMLValidator } from 'fast-xml-parser'
+import { SaxesParser } from 'saxes'
 import type { ControlRecord, ObservationKind, ObservationRecord, ReadIssue, ReadResult } from '../types'
 import { RAD_PER_DEG, RAD_PER_GON, clip, parseNumber, parsePackedDms, type Parsed } from './units'
 
@@ -117,31 +119,12 @@ function read(input: string): ReadResult {
   if (text.trim() === '') {
     return { ok: false, errors: [{ line: 1, column: 'xml', message: 'the file is empty' }], warnings }
   }
-  const valid = XMLValidator.validate(text)
-  if (valid !== true) {
-    const e = valid.err
-    return {
-      ok: false,
-      errors: [{ line: Math.max(1, e.line || 1), column: 'xml', message: `is not well-formed XML (column ${e.col}): ${e.msg}` }],
-      warnings,
-    }
-  }
-
-  const parser = new XMLParser({
-    preserveOrder: true,
-    ignoreAttributes: false,
-    attributeNamePrefix: '',
-    removeNSPrefix: true,
-    parseTagValue: false,
-    parseAttributeValue: false,
-    trimValues: true,
-    captureMetaData: true,
-    // No entity expansion: a DOCTYPE cannot define entities that blow up memory ("billion laughs") or pull in text.
-    processEntities: false,
-  })
-  // The parser's tree is dropped as soon as it is converted, to keep peak
-  // memory of a large upload down.
-  const roots = toNodes(parser.parse(text) as unknown[], null, lineIndex(text))
+  // One streaming pass (saxes, a strict SAX parser: well-formedness errors
+  // with their line, no DTD and no entity expansion) builds only the small
+  // tree below; no full DOM of the file is ever made.
+  const tree = buildTree(text)
+  if (!tree.ok) return { ok: false, errors: [tree.issue], warnings }
+  const roots = tree.roots
   const root = roots.find((n) => n.name === 'LandXML')
   if (!root) {
     const first = roots.find((n) => !n.name.startsWith('?'))
@@ -174,53 +157,92 @@ function read(input: string): ReadResult {
   return { ok: true, controls: ctx.controls, observations: ctx.observations, warnings }
 }
 
-/** Maps a character offset to its 1-based line. */
-function lineIndex(text: string): (offset: number | undefined) => number {
-  const starts = [0]
-  for (let i = text.indexOf('\n'); i !== -1; i = text.indexOf('\n', i + 1)) starts.push(i + 1)
-  return (offset) => {
-    if (offset === undefined || !Number.isFinite(offset)) return 1
-    let lo = 0
-    let hi = starts.length - 1
-    while (lo < hi) {
-      const mid = (lo + hi + 1) >> 1
-      if (starts[mid]! <= offset) lo = mid
-      else hi = mid - 1
-    }
-    return lo + 1
-  }
+/** Characters fed to the parser at a time: the text is read in slices, never copied whole. */
+const SLICE = 1 << 16
+/** Deeper nesting than any LandXML survey needs is refused rather than walked. */
+const MAX_DEPTH = 256
+/** Thrown inside a parser handler to stop at the first problem. */
+const STOP = Symbol('stop')
+
+/** The local part of a qualified name (namespace prefixes are dropped, as LandXML files use them freely). */
+const local = (name: string) => {
+  const i = name.indexOf(':')
+  return i < 0 ? name : name.slice(i + 1)
 }
 
-const META = XMLParser.getMetaDataSymbol() as unknown as symbol
-
-/** Turns fast-xml-parser's ordered output into a small tree with paths and lines. */
-function toNodes(items: unknown[], parent: XNode | null, lineOf: (o: number | undefined) => number): XNode[] {
-  const nodes: XNode[] = []
-  const counts = new Map<string, number>()
-  for (const item of items) {
-    if (typeof item !== 'object' || item === null) continue
-    const rec = item as Record<string | symbol, unknown>
-    const name = Object.keys(rec).find((k) => k !== ':@' && k !== '#text')
-    if (name === undefined) continue
+/**
+ * Builds the small element tree the reader walks, with each element's source
+ * line (where its start tag begins), ordinal among same-named siblings and
+ * trimmed text, in one SAX pass over the text.
+ */
+function buildTree(text: string): { ok: true; roots: XNode[] } | { ok: false; issue: ReadIssue } {
+  const parser = new SaxesParser({ position: true })
+  const roots: XNode[] = []
+  const stack: XNode[] = []
+  const siblings: Map<string, number>[] = [new Map()]
+  const parts: string[][] = []
+  let current = ''
+  let tagLine = 1
+  let issue: ReadIssue | null = null
+  const flush = () => {
+    const t = current.trim()
+    if (t !== '' && parts.length > 0) parts[parts.length - 1]!.push(t)
+    current = ''
+  }
+  parser.on('error', (e) => {
+    const msg = e.message.replace(/^[^:]*:\d+:\d+: /, '')
+    issue ??= { line: Math.max(1, parser.line), column: 'xml', message: `is not well-formed XML (column ${parser.column}): ${msg}` }
+    throw STOP
+  })
+  // Fired once the name is read, so the parser already stands past the
+  // character after it; when that was a line break (column 0), the tag began on the line before.
+  parser.on('opentagstart', () => { tagLine = parser.column === 0 ? parser.line - 1 : parser.line })
+  parser.on('opentag', (tag) => {
+    flush()
+    if (stack.length >= MAX_DEPTH) {
+      issue ??= { line: tagLine, column: 'xml', message: `nests elements more than ${MAX_DEPTH} deep` }
+      throw STOP
+    }
+    const name = local(tag.name)
+    const counts = siblings[siblings.length - 1]!
     const ordinal = (counts.get(name) ?? 0) + 1
     counts.set(name, ordinal)
-    const meta = rec[META] as { startIndex?: number } | undefined
-    const kids = Array.isArray(rec[name]) ? (rec[name] as unknown[]) : []
     const attrs: Attrs = {}
-    const rawAttrs = rec[':@']
-    if (rawAttrs && typeof rawAttrs === 'object') {
-      for (const [k, v] of Object.entries(rawAttrs as Record<string, unknown>)) attrs[k] = String(v)
+    for (const [k, v] of Object.entries(tag.attributes as Record<string, string>)) {
+      if (k === 'xmlns' || k.startsWith('xmlns:')) continue
+      attrs[local(k)] = v
     }
-    const text = kids
-      .filter((k): k is { '#text': unknown } => typeof k === 'object' && k !== null && '#text' in k)
-      .map((k) => String(k['#text']))
-      .join(' ')
-      .trim()
-    const node: XNode = { name, attrs, text, children: [], line: lineOf(meta?.startIndex), parent, ordinal }
-    node.children = toNodes(kids, node, lineOf)
-    nodes.push(node)
+    const parent = stack[stack.length - 1] ?? null
+    const node: XNode = { name, attrs, text: '', children: [], line: tagLine, parent, ordinal }
+    ;(parent ? parent.children : roots).push(node)
+    stack.push(node)
+    siblings.push(new Map())
+    parts.push([])
+  })
+  parser.on('text', (t) => { current += t })
+  parser.on('cdata', (t) => { current += t })
+  parser.on('closetag', () => {
+    flush()
+    const node = stack.pop()
+    siblings.pop()
+    const own = parts.pop()
+    if (node && own && own.length > 0) node.text = own.join(' ')
+  })
+  try {
+    for (let i = 0; i < text.length; i += SLICE) {
+      // never split a surrogate pair between two slices
+      let end = Math.min(i + SLICE, text.length)
+      const last = text.charCodeAt(end - 1)
+      if (end < text.length && last >= 0xd800 && last <= 0xdbff) end++
+      parser.write(text.slice(i, end))
+      i = end - SLICE
+    }
+    parser.close()
+  } catch (e) {
+    if (e !== STOP) throw e
   }
-  return nodes
+  if (issue) return { ok: false, issue }
+  return { ok: true, roots }
 }
 
 interface PendingObservation {

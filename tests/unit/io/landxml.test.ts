@@ -174,6 +174,36 @@ describe('errors and warnings name the element and its source line', () => {
   })
 })
 
+describe('the streaming (SAX) read', () => {
+  it('a start tag spread over several lines is reported at the line where it begins', () => {
+    const body = '<Survey>\n<InstrumentSetup stationName="A">\n<RawObservation\n  horizAngle="400"\n  slopeDistance="10">\n<TargetPoint pntRef="B"/></RawObservation></InstrumentSetup></Survey>'
+    const errs = errorsOf(readLandXml(doc(body)))
+    // doc(): line 1 declaration, 2 LandXML, 3 Units, 4 Survey, 5 InstrumentSetup, 6 RawObservation begins
+    expect(errs).toEqual([expect.objectContaining({ line: 6, column: 'LandXML[1]/Survey[1]/InstrumentSetup[1]/RawObservation[1]@horizAngle' })])
+  })
+  it('entities declared in a DTD are never expanded: the file is refused at the reference', () => {
+    const text = '<?xml version="1.0"?>\n<!DOCTYPE LandXML [<!ENTITY d "123.4">]>\n<LandXML>\n<Units><Metric linearUnit="meter" angularUnit="decimal degrees"/></Units>\n<CgPoints><CgPoint name="A" pntSurv="control">&d; 1</CgPoint></CgPoints>\n</LandXML>'
+    const errs = errorsOf(readLandXml(text))
+    expect(errs).toHaveLength(1)
+    expect(errs[0]).toMatchObject({ line: 5, column: 'xml' })
+    expect(errs[0]!.message).toMatch(/not well-formed/)
+  })
+  it('the five predefined entities and character references still read (XML 1.0, section 4.6)', () => {
+    const body = '<Survey><InstrumentSetup stationName="A&amp;B"><RawObservation horizAngle="1" desc="&lt;x&#62;"><TargetPoint pntRef="C"/></RawObservation></InstrumentSetup></Survey>'
+    const r = ok(readLandXml(doc(body)))
+    expect(r.observations[0]).toMatchObject({ at: 'A&B', note: '<x>' })
+  })
+  it('a file longer than one parser slice reads the same as its parts (64 Ki characters)', () => {
+    const setups = Array.from({ length: 900 }, (_, i) => `<InstrumentSetup id="S${i}" stationName="P${i}"><RawObservation horizAngle="${(i % 359) + 0.5}" slopeDistance="${100 + i}"><TargetPoint pntRef="Q${i}"/></RawObservation></InstrumentSetup>`)
+    const text = doc(`<Survey>\n${setups.join('\n')}\n</Survey>`)
+    expect(text.length).toBeGreaterThan(1 << 17)
+    const r = ok(readLandXml(text))
+    expect(r.observations).toHaveLength(1800)
+    // line 4 is <Survey>, set-up i sits on line 5 + i
+    expect(r.observations[1798]).toMatchObject({ line: 904, kind: 'direction', at: 'P899', to: 'Q899', set: 'S899' })
+  })
+})
+
 describe('the file unit is kept beside the SI value', () => {
   it('U.S. survey feet for distances, grads for angles, the direction unit (radians) for the azimuth', () => {
     const r = ok(readLandXml(fixture('landxml-imperial.xml')))

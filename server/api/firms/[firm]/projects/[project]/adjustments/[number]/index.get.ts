@@ -1,4 +1,4 @@
-// GET /api/firms/:firm/projects/:project/adjustments/:number — status, summary, stations, observations, `result` in the CLI JSON shape
+// GET /api/firms/:firm/projects/:project/adjustments/:number — status, summary, weighting, the first page of stations, observations and relative precisions with totals, `result` in the CLI JSON shape over that page
 import { STAFF } from '../../../../../../../../shared/roles'
 import { getRun } from '../../../../../../../services/adjustments'
 

@@ -1,0 +1,431 @@
+// The results of a finished run: stored once in three tables (adjusted
+// stations, observation results, relative precisions) with COPY inside the
+// run's transaction, plus a typed summary on the run row; read back by page,
+// sorted and filtered in SQL, compared between two runs in SQL, and exported
+// as CSV streamed straight out of COPY TO STDOUT. The tables are the one
+// source of truth: nothing else holds a run's stations or observations.
+import { PassThrough, type Readable } from 'node:stream'
+import { sql, type SQL } from 'drizzle-orm'
+import { to as copyTo } from 'pg-copy-streams'
+import type { CompareQuery, ObservationPageQuery, RelativePageQuery, StationPageQuery } from '../../shared/schemas/run-results'
+import { useDb, usePool } from '../db/client'
+import type { Tx } from '../db/client'
+import { chunked, copyBool, copyInto, copyNumber, copyStat, copyText } from '../db/copy'
+import type { Adjustment } from '../db/schema'
+import { METRES_PER } from '../engine/io/units'
+import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary, NetworkSummary, ObservationResult, RelativeResult, StationResult } from '../engine/types'
+import { describeTolerance, type ToleranceSpec } from './accuracy'
+
+// ── the summary ─────────────────────────────────────────────────────────────
+
+/** What a finished run keeps on its own row: global figures only, never per-station or per-observation lists. */
+export interface RunSummary {
+  converged: boolean
+  iterations: number
+  dof: number
+  sigma0: number | null
+  globalTest: GlobalTest
+  counts: AdjustmentResult['counts']
+  health: AdjustmentResult['health']
+  critical: AdjustmentResult['critical']
+  plane: NetworkSummary | null
+  height: NetworkSummary | null
+  /** observations in use that fail data snooping (|w| above the critical value) */
+  flagged: number
+  /** observations in use that fail data snooping or the τ test */
+  flaggedAny?: number
+  weak: number
+  excluded: number
+  confidence: number
+  scaling: AdjustSettings['scaling']
+  alpha: number
+  alpha0: number
+  beta0: number
+  weakRedundancy: number
+  /** the engine's settings as used */
+  settings?: AdjustSettings
+  gridReduction?: GridReductionSummary | null
+  /** how each observation set was weighted (server/services/run-inputs.ts) */
+  weighting?: unknown
+  /** data snooping tests each observation at α0: even a sound network flags about n·α0 by chance */
+  chance?: { tested: number; expectedFlags: number }
+  tolerance: (ToleranceSpec & { description: string }) | null
+  relative: { checked: number; passed: number; failed: number }
+  /** rows stored: stations, observation results (with control rows) and relative precisions */
+  rows?: { stations: number; observations: number; relative: number }
+  engineMs: number
+  /** time to store the three result tables (COPY), ms */
+  storeMs?: number
+  /** refraction coefficient k and its σ the run used */
+  refraction: AdjustmentResult['refraction'] | null
+  warnings: string[]
+}
+
+export function buildSummary(r: AdjustmentResult, tolerance: (ToleranceSpec & { name?: string }) | null, passes: (boolean | null)[], engineMs: number, warnings: string[], runWeighting?: unknown): RunSummary {
+  let tested = 0
+  for (const o of r.observations) if (!o.excluded && o.kind !== 'control' && o.w !== null) tested++
+  let flagged = 0
+  let flaggedAny = 0
+  let weak = 0
+  let excluded = 0
+  for (const o of r.observations) {
+    if (o.excluded) { excluded++; continue }
+    if (o.kind === 'control') continue
+    if (o.flagged) flagged++
+    if (o.weak) weak++
+  }
+  for (const o of r.observations) if (!o.excluded && (o.flagged || o.tauFlagged)) flaggedAny++
+  const weighting = runWeighting ?? (r as { weighting?: unknown }).weighting
+  return {
+    converged: r.converged, iterations: r.iterations, dof: r.dof, sigma0: r.sigma0, globalTest: r.globalTest, counts: r.counts,
+    health: r.health, critical: r.critical, plane: r.plane ?? null, height: r.height ?? null,
+    flagged, flaggedAny, weak, excluded,
+    confidence: r.settings.confidence, scaling: r.settings.scaling, alpha: r.settings.alpha, alpha0: r.settings.alpha0, beta0: r.settings.beta0,
+    weakRedundancy: r.settings.weakRedundancy, settings: r.settings, gridReduction: r.gridReduction ?? null,
+    // the geodetic settings the run used (project settings at queue time), shown with the run
+    refraction: r.refraction ?? null,
+    ...(weighting !== undefined ? { weighting } : {}),
+    tolerance: tolerance ? { ...tolerance, description: describeTolerance(tolerance) } : null,
+    relative: { checked: passes.filter((p) => p !== null).length, passed: passes.filter((p) => p === true).length, failed: passes.filter((p) => p === false).length },
+    rows: { stations: r.stations.length, observations: r.observations.length, relative: r.relative.length },
+    chance: { tested, expectedFlags: tested * r.settings.alpha0 },
+    engineMs, warnings,
+  }
+}
+
+// ── storing ─────────────────────────────────────────────────────────────────
+
+const STATION_COLUMNS = 'firm_id, adjustment_id, name, kind, fixed, east, north, height, sd_east, sd_north, sd_height, semi_major, semi_minor, azimuth_deg, semi_major95, semi_minor95, controlled_east, controlled_north, controlled_height'
+const OBSERVATION_COLUMNS = 'firm_id, adjustment_id, observation_id, line, kind, component, at, "from", "to", observed, adjusted, value_unit, residual, sigma, residual_unit, redundancy, w, tau, mdb, mdb_effect, flagged, tau_flagged, weak, excluded, remark, combined_factor, elevation_factor, scale_factor'
+const RELATIVE_COLUMNS = 'firm_id, adjustment_id, from_station, to_station, distance, semi_major, semi_minor, azimuth_deg, semi_major95, sd_distance, allowable, passes'
+
+export interface RelativeCheck { rel: RelativeResult; check: { semiMajor95: number; allowable: number | null; passes: boolean | null } }
+
+/**
+ * Writes the three result tables of one run with COPY on the transaction's
+ * connection (rows keep the engine's order: ids follow it). Returns the time
+ * taken in ms.
+ */
+export async function storeResults(tx: Tx, firmId: number, runId: number, r: AdjustmentResult, stationKinds: Map<string, 'control' | 'new'>, rel: RelativeCheck[]): Promise<number> {
+  const t0 = performance.now()
+  const head = `${firmId}\t${runId}\t`
+  await copyInto(tx, 'adjusted_stations', STATION_COLUMNS, chunked(r.stations, (s) =>
+    head + copyText(s.name) + '\t' + (stationKinds.get(s.name) ?? s.kind) + '\t' + copyBool(s.fixed) + '\t'
+    + copyStat(s.east) + '\t' + copyStat(s.north) + '\t' + copyStat(s.height) + '\t' + copyStat(s.sdEast) + '\t' + copyStat(s.sdNorth) + '\t' + copyStat(s.sdHeight) + '\t'
+    + copyStat(s.ellipse?.semiMajor) + '\t' + copyStat(s.ellipse?.semiMinor) + '\t' + copyStat(s.ellipse?.azimuthDeg ?? s.ellipse95?.azimuthDeg) + '\t'
+    + copyStat(s.ellipse95?.semiMajor) + '\t' + copyStat(s.ellipse95?.semiMinor) + '\t'
+    + copyBool(s.controlled.east) + '\t' + copyBool(s.controlled.north) + '\t' + copyBool(s.controlled.height) + '\n'))
+  await copyInto(tx, 'observation_results', OBSERVATION_COLUMNS, chunked(r.observations, (o) =>
+    head + (typeof o.id === 'number' ? String(o.id) : '\\N') + '\t' + o.line + '\t' + o.kind + '\t' + copyText(o.component) + '\t'
+    + copyText(o.at) + '\t' + copyText(o.from) + '\t' + copyText(o.to) + '\t' + copyNumber(o.observed) + '\t' + copyStat(o.adjusted) + '\t' + o.valueUnit + '\t'
+    + copyStat(o.residual) + '\t' + copyStat(o.sigma) + '\t' + o.residualUnit + '\t' + copyStat(o.redundancy) + '\t' + copyStat(o.w) + '\t' + copyStat(o.tau) + '\t'
+    + copyStat(o.mdb) + '\t' + copyStat(o.mdbEffect) + '\t' + copyBool(o.flagged) + '\t' + copyBool(o.tauFlagged) + '\t' + copyBool(o.weak) + '\t' + copyBool(o.excluded) + '\t'
+    + copyText(o.remark) + '\t' + copyStat(o.combinedFactor) + '\t' + copyStat(o.elevationFactor) + '\t' + copyStat(o.scaleFactor) + '\n'))
+  await copyInto(tx, 'relative_precisions', RELATIVE_COLUMNS, chunked(rel, ({ rel: p, check }) =>
+    head + copyText(p.from) + '\t' + copyText(p.to) + '\t' + copyNumber(p.distance) + '\t' + copyNumber(p.semiMajor) + '\t' + copyNumber(p.semiMinor) + '\t'
+    + copyNumber(p.azimuthDeg) + '\t' + copyNumber(check.semiMajor95) + '\t' + copyStat(p.sdDistance) + '\t' + copyStat(check.allowable) + '\t' + copyBool(check.passes) + '\n'))
+  return Math.round(performance.now() - t0)
+}
+
+// ── rows back into the engine's shapes ──────────────────────────────────────
+
+const STATION_SELECT = sql.raw(`name, kind, fixed, east, north, height, sd_east as "sdEast", sd_north as "sdNorth", sd_height as "sdHeight",
+  semi_major as "semiMajor", semi_minor as "semiMinor", azimuth_deg as "azimuthDeg", semi_major95 as "semiMajor95", semi_minor95 as "semiMinor95",
+  controlled_east as "controlledEast", controlled_north as "controlledNorth", controlled_height as "controlledHeight"`)
+type StationRow = {
+  name: string; kind: 'control' | 'new'; fixed: boolean; east: number | null; north: number | null; height: number | null
+  sdEast: number | null; sdNorth: number | null; sdHeight: number | null; semiMajor: number | null; semiMinor: number | null; azimuthDeg: number | null
+  semiMajor95: number | null; semiMinor95: number | null; controlledEast: boolean; controlledNorth: boolean; controlledHeight: boolean
+}
+export function stationOf(s: StationRow): StationResult {
+  return {
+    name: s.name, east: s.east, north: s.north, height: s.height, sdEast: s.sdEast, sdNorth: s.sdNorth, sdHeight: s.sdHeight,
+    ellipse: s.semiMajor !== null && s.semiMinor !== null ? { semiMajor: s.semiMajor, semiMinor: s.semiMinor, azimuthDeg: s.azimuthDeg ?? 0 } : null,
+    ellipse95: s.semiMajor95 !== null && s.semiMinor95 !== null ? { semiMajor: s.semiMajor95, semiMinor: s.semiMinor95, azimuthDeg: s.azimuthDeg ?? 0 } : null,
+    fixed: s.fixed, kind: s.kind, controlled: { east: s.controlledEast, north: s.controlledNorth, height: s.controlledHeight },
+  }
+}
+
+const OBSERVATION_SELECT = sql.raw(`observation_id as "id", line, kind, component, at, "from", "to", observed, adjusted, value_unit as "valueUnit",
+  residual, sigma, residual_unit as "residualUnit", redundancy, w, flagged, tau, tau_flagged as "tauFlagged", mdb, mdb_effect as "mdbEffect",
+  excluded, weak, remark, combined_factor as "combinedFactor", elevation_factor as "elevationFactor", scale_factor as "scaleFactor"`)
+type ObservationRow = Omit<ObservationResult, 'combinedFactor' | 'elevationFactor' | 'scaleFactor'> & { combinedFactor: number | null; elevationFactor: number | null; scaleFactor: number | null }
+export function observationOf(o: ObservationRow): ObservationResult {
+  const { combinedFactor, elevationFactor, scaleFactor, ...rest } = o
+  return { ...rest, ...(combinedFactor !== null ? { combinedFactor } : {}), ...(elevationFactor !== null ? { elevationFactor } : {}), ...(scaleFactor !== null ? { scaleFactor } : {}) }
+}
+
+const RELATIVE_SELECT = sql.raw(`from_station as "from", to_station as "to", distance, semi_major as "semiMajor", semi_minor as "semiMinor",
+  azimuth_deg as "azimuthDeg", semi_major95 as "semiMajor95", sd_distance as "sdDistance", allowable, passes`)
+export type RelativeRow = { from: string; to: string; distance: number; semiMajor: number; semiMinor: number; azimuthDeg: number; semiMajor95: number; sdDistance: number | null; allowable: number | null; passes: boolean | null }
+
+// ── pages ───────────────────────────────────────────────────────────────────
+
+export interface Page<T> { page: number; size: number; total: number; sort: string; rows: T[] }
+
+function orderBy(sort: string, columns: Record<string, string>): SQL {
+  const desc = sort.startsWith('-')
+  const expr = columns[desc ? sort.slice(1) : sort] ?? 'id'
+  return sql.raw(`${expr} ${desc ? 'desc' : 'asc'} nulls last, id asc`)
+}
+
+/** `needle` inside `column`, case-insensitive, with no LIKE wildcards to escape. */
+const contains = (column: string, needle: string) => sql`position(lower(${needle}) in lower(${sql.raw(column)})) > 0`
+
+/** `known`: the unfiltered total when the caller has it (the summary's row counts), saving the count. */
+async function paged<T>(table: string, select: SQL, where: SQL[], order: SQL, q: { page: number; size: number; sort: string }, map: (row: any) => T, known?: number): Promise<Page<T>> {
+  const db = useDb()
+  const cond = sql.join(where, sql` and `)
+  const useKnown = known !== undefined && where.length === 1
+  const [rows, count] = await Promise.all([
+    db.execute(sql`select ${select} from ${sql.raw(table)} where ${cond} order by ${order} limit ${q.size} offset ${(q.page - 1) * q.size}`),
+    useKnown ? Promise.resolve({ rows: [{ n: known }] }) : db.execute<{ n: number }>(sql`select count(*)::int as n from ${sql.raw(table)} where ${cond}`),
+  ])
+  return { page: q.page, size: q.size, total: count.rows[0]?.n ?? 0, sort: q.sort, rows: rows.rows.map(map) }
+}
+
+const runScope = (firmId: number, runId: number) => sql`firm_id = ${firmId} and adjustment_id = ${runId}`
+
+const STATION_SORT_SQL: Record<string, string> = {
+  order: 'id', name: 'name', east: 'east', north: 'north', height: 'height', sdEast: 'sd_east', sdNorth: 'sd_north', sdHeight: 'sd_height', semiMajor95: 'semi_major95',
+}
+export function pageStations(firmId: number, runId: number, known: number | undefined, q: StationPageQuery): Promise<Page<StationResult>> {
+  const where = [runScope(firmId, runId)]
+  if (q.q) where.push(contains('name', q.q))
+  if (q.kind) where.push(sql`kind = ${q.kind}`)
+  if (q.fixed !== undefined) where.push(sql`fixed = ${q.fixed}`)
+  return paged('adjusted_stations', STATION_SELECT, where, orderBy(q.sort, STATION_SORT_SQL), q, stationOf, known)
+}
+
+/** mm for lengths and arcseconds for angles, so one |residual| order makes sense across kinds (as the table shows them). */
+const NATURAL = `case when residual_unit = 'm' then 1000 else 1 end`
+const OBSERVATION_SORT_SQL: Record<string, string> = {
+  order: 'id', line: 'line', absW: 'abs(w)', w: 'w', tau: 'abs(tau)', redundancy: 'redundancy', absResidual: `abs(residual) * ${NATURAL}`,
+  mdb: `mdb * ${NATURAL}`, kind: 'kind::text', at: 'at',
+}
+/** The residual table's rating in SQL (rateObservation in composables/useRunFormat.ts). */
+const FAILS = `(not excluded and (flagged or tau_flagged))`
+const WATCH = `(not excluded and not (flagged or tau_flagged) and (coalesce(abs(w), 0) > 2 or weak))`
+export function pageObservations(firmId: number, runId: number, known: number | undefined, q: ObservationPageQuery): Promise<Page<ObservationResult>> {
+  const where = [runScope(firmId, runId)]
+  if (q.q) where.push(sql`(${contains('at', q.q)} or ${contains('"to"', q.q)} or ${contains('coalesce("from", \'\')', q.q)})`)
+  if (q.station) where.push(sql`(at = ${q.station} or "to" = ${q.station} or "from" = ${q.station})`)
+  if (q.flagged !== undefined) where.push(q.flagged ? sql.raw(FAILS) : sql.raw(`not ${FAILS}`))
+  if (q.weak !== undefined) where.push(sql`weak = ${q.weak}`)
+  if (q.excluded !== undefined) where.push(sql`excluded = ${q.excluded}`)
+  if (q.kind) where.push(sql`kind = ${q.kind}`)
+  if (q.rating === 'fail') where.push(sql.raw(FAILS))
+  if (q.rating === 'watch') where.push(sql.raw(WATCH))
+  if (q.rating === 'pass') where.push(sql.raw(`not ${FAILS} and not ${WATCH}`))
+  return paged('observation_results', OBSERVATION_SELECT, where, orderBy(q.sort, OBSERVATION_SORT_SQL), q, observationOf, known)
+}
+
+const RELATIVE_SORT_SQL: Record<string, string> = {
+  order: 'id', from: 'from_station', to: 'to_station', distance: 'distance', semiMajor95: 'semi_major95', ratio: 'semi_major95 / nullif(allowable, 0)',
+}
+export function pageRelative(firmId: number, runId: number, known: number | undefined, q: RelativePageQuery): Promise<Page<RelativeRow>> {
+  const where = [runScope(firmId, runId)]
+  if (q.q) where.push(sql`(${contains('from_station', q.q)} or ${contains('to_station', q.q)})`)
+  if (q.passes !== undefined) where.push(sql`passes = ${q.passes}`)
+  return paged('relative_precisions', RELATIVE_SELECT, where, orderBy(q.sort, RELATIVE_SORT_SQL), q, (r) => r as RelativeRow, known)
+}
+
+// ── overviews computed in SQL (histograms, redundancy bins, the map) ────────
+
+/** Counts of w in 0.5-wide bins from −5 to 5 (outermost bins collect the rest) and of rᵢ in the redundancy report's bins. */
+export async function distributions(firmId: number, runId: number) {
+  const db = useDb()
+  const [w, r] = await Promise.all([
+    db.execute<{ bin: number; n: number }>(sql`select least(greatest(floor((w + 5) / 0.5), 0), 19)::int as bin, count(*)::int as n
+      from observation_results where ${runScope(firmId, runId)} and not excluded and w is not null group by 1`),
+    db.execute<{ bin: number; n: number }>(sql`select width_bucket(redundancy, array[0, 0.1, 0.2, 0.4, 0.6, 0.8, 1.0001]::float8[])::int as bin, count(*)::int as n
+      from observation_results where ${runScope(firmId, runId)} and not excluded and redundancy is not null group by 1`),
+  ])
+  const wBins = Array.from({ length: 20 }, () => 0)
+  for (const row of w.rows) wBins[row.bin] = row.n
+  const rBins = Array.from({ length: 6 }, () => 0)
+  for (const row of r.rows) if (row.bin >= 1 && row.bin <= 6) rBins[row.bin - 1] = row.n
+  return { w: { from: -5, width: 0.5, counts: wBins }, redundancy: { edges: [0, 0.1, 0.2, 0.4, 0.6, 0.8, 1], counts: rBins } }
+}
+
+const round = (v: number, d: number) => Math.round(v * 10 ** d) / 10 ** d
+
+/**
+ * Everything the map draws, as parallel arrays (a 10,000-station run is a
+ * few hundred KB, not megabytes of objects): stations with their ellipse at
+ * the run's confidence, and one line per connected pair with its worst
+ * rating (0 pass, 1 watch, 2 fail) and observation counts.
+ */
+export async function mapData(firmId: number, runId: number) {
+  const db = useDb()
+  const [st, ln] = await Promise.all([
+    db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null; ce: boolean; cn: boolean; ch: boolean }>(sql`
+      select name, kind, fixed, east, north, semi_major95 as a, semi_minor95 as b, azimuth_deg as az, controlled_east as ce, controlled_north as cn, controlled_height as ch
+      from adjusted_stations where ${runScope(firmId, runId)} and east is not null and north is not null order by id`),
+    db.execute<{ p: string; q: string; used: number; excl: number; rating: number }>(sql`
+      select least(at, "to") as p, greatest(at, "to") as q, count(*) filter (where not excluded)::int as used, count(*) filter (where excluded)::int as excl,
+        max(case when ${sql.raw(FAILS)} then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating
+      from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2`),
+  ])
+  const index = new Map<string, number>()
+  const stations = { name: [] as string[], east: [] as number[], north: [] as number[], kind: [] as number[], a: [] as (number | null)[], b: [] as (number | null)[], az: [] as (number | null)[] }
+  st.rows.forEach((s, i) => {
+    index.set(s.name, i)
+    stations.name.push(s.name)
+    // drawn, not quoted: positions to the millimetre, axes to 0.01 mm, azimuths to 0.1°, keep the payload small
+    stations.east.push(round(s.east, 3))
+    stations.north.push(round(s.north, 3))
+    // 0 new, 1 control held fixed, 2 control weighted or free
+    stations.kind.push(s.kind !== 'control' ? 0 : s.fixed ? 1 : 2)
+    stations.a.push(s.fixed || s.a === null ? null : round(s.a, 5))
+    stations.b.push(s.fixed || s.b === null ? null : round(s.b, 5))
+    stations.az.push(s.fixed || s.az === null ? null : round(s.az, 1))
+  })
+  const lines = { from: [] as number[], to: [] as number[], rating: [] as number[], used: [] as number[], excluded: [] as number[] }
+  for (const l of ln.rows) {
+    const i = index.get(l.p)
+    const j = index.get(l.q)
+    if (i === undefined || j === undefined) continue
+    lines.from.push(i)
+    lines.to.push(j)
+    lines.rating.push(l.rating)
+    lines.used.push(l.used)
+    lines.excluded.push(l.excl)
+  }
+  return { stations, lines }
+}
+
+// ── whole lists, for the sign-off and its accuracy check ────────────────────
+
+export async function allStations(firmId: number, runId: number): Promise<StationResult[]> {
+  const res = await useDb().execute(sql`select ${STATION_SELECT} from adjusted_stations where ${runScope(firmId, runId)} order by id`)
+  return (res.rows as StationRow[]).map(stationOf)
+}
+
+export async function allRelative(firmId: number, runId: number): Promise<RelativeResult[]> {
+  const res = await useDb().execute(sql`select ${RELATIVE_SELECT} from relative_precisions where ${runScope(firmId, runId)} order by id`)
+  return (res.rows as unknown as RelativeRow[]).map((r) => ({ from: r.from, to: r.to, distance: r.distance, semiMajor: r.semiMajor, semiMinor: r.semiMinor, azimuthDeg: r.azimuthDeg, semiMajor95: r.semiMajor95, sdDistance: r.sdDistance ?? Number.NaN }))
+}
+
+/** Observations in use that fail data snooping or the τ test, counted in SQL (runs stored before the summary counted them). */
+export async function countFlaggedAny(firmId: number, runId: number): Promise<number> {
+  const res = await useDb().execute<{ n: number }>(sql`select count(*)::int as n from observation_results where ${runScope(firmId, runId)} and ${sql.raw(FAILS)}`)
+  return res.rows[0]?.n ?? 0
+}
+
+/** The CLI's JSON shape (the engine README's result fields) out of the summary and some stations and observations. */
+export function cliShape(s: RunSummary, stations: StationResult[], observations: ObservationResult[]) {
+  const net = (n: NetworkSummary | null) => n && { dof: n.dof, sigma0: n.sigma0, globalTest: n.globalTest }
+  return {
+    converged: s.converged, iterations: s.iterations, dof: s.dof, sigma0: s.sigma0, globalTest: s.globalTest,
+    stations: stations.map((x) => ({ name: x.name, east: x.east, north: x.north, height: x.height, sdEast: x.sdEast, sdNorth: x.sdNorth, sdHeight: x.sdHeight, ellipse: x.ellipse, fixed: x.fixed })),
+    observations: observations.map((o) => ({ line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to, residual: o.residual, redundancy: o.redundancy, w: o.w, flagged: o.flagged, mdb: o.mdb })),
+    ...(s.plane ? { plane: net(s.plane) } : {}),
+    ...(s.height ? { height: net(s.height) } : {}),
+  }
+}
+
+// ── comparing two runs in SQL ───────────────────────────────────────────────
+
+export type ShiftRow = { name: string; dE: number | null; dN: number | null; dH: number | null; horiz: number | null; onlyA: boolean; onlyB: boolean }
+export type ChangedObservation = { id: number | null; line: number; kind: string; component: string | null; at: string; from: string | null; to: string }
+
+/** Which observation of run A is which in run B: the stored observation, else (for control rows) kind, station, component and line. */
+const SAME_OBSERVATION = `coalesce(x.observation_id, -1) = coalesce(y.observation_id, -1) and x.line = y.line and x.kind = y.kind
+  and x.at = y.at and x."to" = y."to" and coalesce(x.component::text, '') = coalesce(y.component::text, '')`
+const CHANGE_LIMIT = 200
+
+export async function compareRuns(firmId: number, a: Adjustment, b: Adjustment, q: CompareQuery) {
+  const db = useDb()
+  const offset = (q.page - 1) * q.size
+  const shifts = db.execute<ShiftRow & { total: number }>(sql`
+    with pairs as (
+      select coalesce(y.name, x.name) as name, y.east - x.east as "dE", y.north - x.north as "dN", y.height - x.height as "dH",
+        y.name is null as "onlyA", x.name is null as "onlyB"
+      from (select * from adjusted_stations where ${runScope(firmId, a.id)}) x
+      full join (select * from adjusted_stations where ${runScope(firmId, b.id)}) y on x.name = y.name)
+    select *, sqrt("dE" * "dE" + "dN" * "dN") as horiz, count(*) over ()::int as total from pairs
+    order by horiz desc nulls last, name limit ${q.size} offset ${offset}`)
+  const changed = (pred: string) => {
+    const onlyIn = (p: Adjustment, other: Adjustment) => db.execute<ChangedObservation & { total: number }>(sql`
+      select x.observation_id as id, x.line, x.kind, x.component, x.at, x."from", x."to", count(*) over ()::int as total
+      from observation_results x where x.firm_id = ${firmId} and x.adjustment_id = ${p.id} and ${sql.raw(pred.replaceAll('$', 'x.'))}
+        and not exists (select 1 from observation_results y where y.firm_id = ${firmId} and y.adjustment_id = ${other.id}
+          and ${sql.raw(SAME_OBSERVATION)} and ${sql.raw(pred.replaceAll('$', 'y.'))})
+      order by x.line, x.id limit ${CHANGE_LIMIT}`)
+    return Promise.all([onlyIn(b, a), onlyIn(a, b)])
+  }
+  const [st, [flagAdded, flagRemoved], [exclAdded, exclRemoved]] = await Promise.all([
+    shifts,
+    changed('(not $excluded and ($flagged or $tau_flagged))'),
+    changed('$excluded'),
+  ])
+  const list = (res: { rows: (ChangedObservation & { total: number })[] }) => ({
+    total: res.rows[0]?.total ?? 0,
+    rows: res.rows.map(({ total: _t, ...o }) => o),
+  })
+  return {
+    stations: { page: q.page, size: q.size, total: st.rows[0]?.total ?? (q.page === 1 ? 0 : await countShiftRows(firmId, a.id, b.id)), rows: st.rows.map(({ total: _t, ...r }) => r) },
+    flags: { added: list(flagAdded), removed: list(flagRemoved) },
+    exclusions: { added: list(exclAdded), removed: list(exclRemoved) },
+  }
+}
+
+async function countShiftRows(firmId: number, a: number, b: number): Promise<number> {
+  const res = await useDb().execute<{ n: number }>(sql`select count(distinct name)::int as n from adjusted_stations where firm_id = ${firmId} and adjustment_id in (${a}, ${b})`)
+  return res.rows[0]?.n ?? 0
+}
+
+// ── CSV streamed out of COPY TO STDOUT ──────────────────────────────────────
+
+/**
+ * The CSV of one run straight from PostgreSQL: COPY (SELECT …) TO STDOUT in
+ * CSV format, formatted in SQL (project units, fixed decimals), piped to the
+ * response behind the comment lines. Only numbers from the database are put
+ * into the COPY text (COPY takes no bind parameters).
+ */
+export async function csvStream(run: Adjustment, project: { name: string; units: 'm' | 'ft' | 'usft' }, what: 'coordinates' | 'residuals'): Promise<Readable> {
+  const firmId = Number(run.firmId)
+  const runId = Number(run.id)
+  const u = project.units
+  const k = Number(METRES_PER[u])
+  const fixed = (col: string, d: number, scale = `/ ${k}`) => `round((${col} ${scale})::numeric, ${d})::text`
+  // a name a spreadsheet would run as a formula gets an apostrophe in front (safeCell in ./csv.ts, same rule)
+  const safe = (col: string) => `case when ${col} ~ '^[=+@\t\r-]' and ${col} !~ '^[+-]?([0-9]+\\.?[0-9]*|\\.[0-9]+)([eE][+-]?[0-9]+)?$' then '''' || ${col} else ${col} end`
+  let query: string
+  let header: string
+  if (what === 'coordinates') {
+    const conf = Number((run.settings as { confidence?: number }).confidence ?? 0.95)
+    const pct = Math.round(conf * 1000) / 10
+    header = ['station', 'kind', 'held', `east_${u}`, `north_${u}`, `height_${u}`, `sd_east_${u}`, `sd_north_${u}`, `sd_height_${u}`,
+      `ellipse_semi_major_1sigma_${u}`, `ellipse_semi_minor_1sigma_${u}`, 'ellipse_azimuth_deg', `ellipse_semi_major_${pct}pct_${u}`, `ellipse_semi_minor_${pct}pct_${u}`].join(',')
+    query = `select ${safe('name')}, kind, case when fixed then 'fixed' else '' end, ${fixed('east', 4)}, ${fixed('north', 4)}, ${fixed('height', 4)},
+      ${fixed('sd_east', 5)}, ${fixed('sd_north', 5)}, ${fixed('sd_height', 5)}, ${fixed('semi_major', 5)}, ${fixed('semi_minor', 5)},
+      case when semi_major is null then null else round(azimuth_deg::numeric, 2)::text end, ${fixed('semi_major95', 5)}, ${fixed('semi_minor95', 5)}
+      from adjusted_stations where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
+  } else {
+    header = 'line,kind,at,from,to,residual,residual_unit,redundancy,w,tau,mdb,flagged,weak,excluded'
+    const nat = `* ${NATURAL}`
+    query = `select line, kind, ${safe('at')}, ${safe('"from"')}, ${safe('"to"')}, ${fixed('residual', 2, nat)}, case when residual_unit = 'm' then 'mm' else 'arcsec' end,
+      round(redundancy::numeric, 3)::text, round(w::numeric, 2)::text, round(tau::numeric, 2)::text, ${fixed('mdb', 2, nat)},
+      case when flagged then 'yes' else 'no' end, case when weak then 'yes' else 'no' end, case when excluded then 'yes' else 'no' end
+      from observation_results where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
+  }
+  const head = [`# Tiepoint run ${run.number} of project "${project.name.replace(/[\r\n]+/g, ' ').replace(/"/g, "'")}"; input SHA-256 ${run.inputHash}`,
+    '# Coordinates must be checked against local regulations and licensed practice before use.', header].join('\n') + '\n'
+  const client = await usePool().connect()
+  const out = new PassThrough()
+  let released = false
+  const release = (err?: Error) => {
+    if (released) return
+    released = true
+    client.release(err)
+  }
+  out.write(head)
+  const source = client.query(copyTo(`copy (${query}) to stdout with (format csv)`))
+  source.on('error', (e) => { release(e); out.destroy(e) })
+  source.on('end', () => release())
+  out.on('close', () => { if (!released) { source.destroy(); release(new Error('client went away')) } })
+  source.pipe(out)
+  return out
+}
