@@ -61,3 +61,18 @@ export async function closeDb(): Promise<void> {
   db = undefined
   await p?.end()
 }
+
+/**
+ * The pg client a drizzle node-postgres transaction runs on, so that work done
+ * by another library (COPY, the job queue's insert) joins the transaction.
+ * Drizzle keeps it in a private field of the session (drizzle-orm 0.45,
+ * pinned); the check turns a future change there into a clear error instead
+ * of a write outside the transaction.
+ */
+export function txClient(tx: Tx): pg.ClientBase {
+  const client = (tx._.session as unknown as { client?: unknown }).client
+  if (typeof (client as { query?: unknown } | undefined)?.query !== 'function') {
+    throw new Error('cannot reach the transaction\'s pg client (drizzle-orm internals changed)')
+  }
+  return client as pg.ClientBase
+}

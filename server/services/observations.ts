@@ -6,18 +6,18 @@
 import { createHash } from 'node:crypto'
 import { Readable } from 'node:stream'
 import { pipeline } from 'node:stream/promises'
-import type { ClientBase } from 'pg'
 import { from as copyFrom } from 'pg-copy-streams'
 import { and, asc, desc, eq, ilike, or, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import Papa from 'papaparse'
+import { CHIEFS } from '../../shared/roles'
 import type { ManualObservations, ObservationPatch, ObservationQuery } from '../../shared/schemas/fielddata'
 import { readObservationCsv } from '../engine/io/csv'
 import { readLandXml } from '../engine/io/landxml'
 import { RAD_PER_ARCSEC, formatDms, formatGon, formatLength, parseAngle, parseLength } from '../engine/io/units'
 import { distanceSigma, levellingSigma, zenithSigma } from '../engine/sigma'
 import type { InstrumentProfile, ObservationRecord, ReadIssue, ReadResult } from '../engine/types'
-import { useDb } from '../db/client'
+import { txClient, useDb } from '../db/client'
 import type { Tx } from '../db/client'
 import { crewMembers, crews, instrumentProfiles, observationSets, observations, projectCrews, users } from '../db/schema'
 import type { ObservationRow, ObservationSetRow, Project } from '../db/schema'
@@ -183,20 +183,6 @@ function* copyRows(firmId: number, projectId: number, setId: number, recs: Obser
 }
 
 /**
- * The pg client a drizzle node-postgres transaction runs on. Drizzle keeps it
- * in a private field of the session (drizzle-orm 0.45, pinned); the check
- * turns a future change there into a clear error instead of a write outside
- * the transaction.
- */
-function clientOf(tx: Tx): ClientBase {
-  const client = (tx._.session as unknown as { client?: unknown }).client
-  if (typeof (client as { query?: unknown } | undefined)?.query !== 'function') {
-    throw new Error('cannot reach the transaction\'s pg client for COPY (drizzle-orm internals changed)')
-  }
-  return client as ClientBase
-}
-
-/**
  * Stores the observations of one set with COPY FROM STDIN on the
  * transaction's own connection, so a failure anywhere still rolls back the
  * set, stations and audit row with it. Rows are generated in chunks as the
@@ -204,7 +190,7 @@ function clientOf(tx: Tx): ClientBase {
  */
 async function insertObservations(tx: Tx, firmId: number, projectId: number, setId: number, recs: ObservationRecord[]): Promise<void> {
   if (recs.length === 0) return
-  const client = clientOf(tx)
+  const client = txClient(tx)
   const sink = client.query(copyFrom(`copy observations (${COPY_COLUMNS}) from stdin with (format text)`))
   await pipeline(Readable.from(copyRows(firmId, projectId, setId, recs), { objectMode: false }), sink)
 }
@@ -225,6 +211,22 @@ function nulCharacters(read: Extract<ReadResult, { ok: true }>): ReadIssue[] {
     check(o.line, 'set', o.set); check(o.line, 'note', o.note)
   }
   return issues
+}
+
+/**
+ * Held coordinates change only by a party chief, a licensed surveyor or the
+ * owner (CHIEFS): a field crew's file that carries control (CSV `control`
+ * rows, LandXML CgPoints with pntSurv="control") is refused, naming each line,
+ * and nothing is saved. The crew uploads the measurements; the chief sets the
+ * control on the Stations tab or uploads it.
+ */
+function controlFromCrew(ctx: FirmContext, read: Extract<ReadResult, { ok: true }>, format: FileFormat): ReadIssue[] {
+  if (CHIEFS.includes(ctx.role)) return []
+  return read.controls.map((c) => ({
+    line: c.line,
+    column: format === 'landxml' ? 'CgPoint@pntSurv' : 'kind',
+    message: `sets the held coordinates of control point '${c.station}'; only a party chief or licensed surveyor may set control. Remove the control ${format === 'landxml' ? 'CgPoint' : 'row'} and ask a party chief to enter it`,
+  }))
 }
 
 /**
@@ -256,6 +258,8 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
   if (!read.ok) refuse(read)
   const unstorable = nulCharacters(read)
   if (unstorable.length > 0) refuse({ ok: false, errors: unstorable, warnings: read.warnings })
+  const control = controlFromCrew(ctx, read, format)
+  if (control.length > 0) refuse({ ok: false, errors: control, warnings: read.warnings })
 
   const names = new Set<string>()
   for (const o of read.observations) { names.add(o.at); names.add(o.to); if (o.from) names.add(o.from) }
@@ -333,6 +337,11 @@ export async function addManualObservations(ctx: FirmContext, project: Project, 
   if (!read.ok) {
     throw new ApiError(422, `${new Set(read.errors.map((e) => e.line)).size} typed-in row(s) are not valid; nothing was saved`,
       read.errors.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.${e.column}`, message: `row ${e.line - 1}, ${e.column}: ${e.message}` })))
+  }
+  const control = controlFromCrew(ctx, read, 'manual')
+  if (control.length) {
+    throw new ApiError(422, `${control.length} typed-in row(s) set control; nothing was saved`,
+      control.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.kind`, message: `row ${e.line - 1}, kind: ${e.message}` })))
   }
   const name = `Typed in by ${ctx.user.name}, ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC`
   return uploadObservationSet(ctx, project, { name, bytes: Buffer.from(text, 'utf8'), format: 'manual', crewId: body.crewId, instrumentProfileId: body.instrumentProfileId })
