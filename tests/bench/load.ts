@@ -80,7 +80,7 @@ async function main() {
       headers: { origin: baseUrl, 'sec-fetch-site': 'same-origin' },
       requests: [reportReq, pageReq, reportReq, pageReq, reportReq, pageReq, reportReq, pageReq, uploadReq],
       setupClient: (c: autocannon.Client) => { c.setHeaders({ origin: baseUrl, 'sec-fetch-site': 'same-origin', cookie: cookies[client++ % cookies.length]! }) },
-    })
+    }) as unknown as autocannon.Instance & Promise<autocannon.Result> // without a callback it is both (autocannon README)
     instance.on('response', (_c: unknown, _status: number, _bytes: number, ms: number) => { latencies.push(ms) })
     const r = await instance
     const loadAfter = loadavg()
