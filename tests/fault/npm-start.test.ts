@@ -143,12 +143,14 @@ describe('npm start under faults', () => {
     expect(bytes.toString().split('\n').length - 1).toBe(100_000)
     const app = pidOf('app')
 
-    const pending = upload(chief, project, bytes).then((r) => r.status, (e: Error) => e)
-    // kill it while the observations stream into the database
-    await until('the upload reaches COPY', () => superuser(async (c) =>
-      (await c.query(`select count(*)::int as n from pg_stat_activity where query ilike 'copy observations%'`)).rows[0].n as number), (n) => n > 0, 60_000, 20)
-    process.kill(app, 'SIGKILL')
-    expect(await pending).toBeInstanceOf(Error)
+    // kill it while the observations stream into the database (one watching connection, polled fast)
+    await superuser(async (watch) => {
+      const pending = upload(chief, project, bytes).then((r) => r.status, (e: Error) => e)
+      await until('the upload reaches COPY', async () =>
+        (await watch.query(`select count(*)::int as n from pg_stat_activity where query ilike 'copy observations%' and state = 'active'`)).rows[0].n as number, (n) => n > 0, 60_000, 5)
+      process.kill(app, 'SIGKILL')
+      expect(await pending).toBeInstanceOf(Error)
+    })
 
     const counts = () => superuser(async (c) => (await c.query(
       `select (select count(*)::int from observation_sets where project_id = $1) as sets,
@@ -201,11 +203,18 @@ describe('npm start under faults', () => {
 
   it('SIGTERM to the npm start process group leaves no process, no PostgreSQL and no open port', async () => {
     const pids = [pidOf('app'), pidOf('worker')]
+    const group = start!.pid!
+    const inGroup = () => execFileSync('ps', ['-eo', 'pid=,pgid='], { encoding: 'utf8' }).split('\n')
+      .map((l) => l.trim().split(/\s+/).map(Number)).filter(([pid, pgid]) => pgid === group && pid !== undefined).map(([pid]) => pid)
     const exited = new Promise<number | null>((done) => start!.once('exit', (code) => done(code)))
-    process.kill(-start!.pid!, 'SIGTERM')
+    process.kill(-group, 'SIGTERM')
     await Promise.race([exited, sleep(60_000)])
     expect(start!.exitCode ?? start!.signalCode).not.toBeNull()
+    // the stop is bounded: within 45 s nothing of it is left
+    await until('everything has stopped', async () => ({ group: inGroup(), children: pids.filter(alive), pg: pgRunning() }),
+      (x) => x.group.length === 0 && x.children.length === 0 && !x.pg, 45_000, 250)
     for (const p of pids) expect(alive(p)).toBe(false)
+    expect(inGroup()).toEqual([])
     expect(pgRunning()).toBe(false)
     expect(await portOpen(APP_PORT)).toBe(false)
     expect(await portOpen(PG_PORT)).toBe(false)
