@@ -2,8 +2,4 @@
 import { profileUpdateSchema } from '../../shared/schemas/profile'
 import { updateProfile } from '../services/profile'
 
-export default defineApiHandler(async (event) => {
-  const user = await requireUser(event)
-  const body = await parseBody(event, profileUpdateSchema)
-  return updateProfile(user, body)
-})
+export default defineUserRoute({ body: profileUpdateSchema }, ({ user, body }) => updateProfile(user, body))

@@ -4,22 +4,17 @@
 // mechanism, valid for the invitation period); an existing person is made a
 // client of the firm if they are not in it yet and told by e-mail.
 import { and, asc, eq } from 'drizzle-orm'
-import { z } from 'zod'
+import type { AccessGrant } from '../../shared/schemas/access'
 import { memberships, passwordResets, projectAccess, users } from '../db/schema'
 import type { Project } from '../db/schema'
 import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
-import { ApiError } from '../utils/api'
+import { DomainError } from '../utils/errors'
 import { audit } from './audit'
 import { INVITATION_DAYS } from './invitations'
 import { publicUrl, sendMail } from './mail'
 import { newToken } from './passwords'
 
-export const accessGrantSchema = z.object({
-  email: z.string().trim().toLowerCase().email('is not an e-mail address').max(254),
-  name: z.string().trim().min(1).max(120).optional(),
-}).strict()
-export type AccessGrant = z.infer<typeof accessGrantSchema>
 
 export interface AccessDto { userId: number; email: string; name: string; grantedAt: string; accountReady: boolean }
 
@@ -49,7 +44,7 @@ export async function grantAccess(ctx: FirmContext, project: Project, body: Acce
     const [membership] = await tx.select().from(memberships)
       .where(and(eq(memberships.firmId, ctx.firm.id), eq(memberships.userId, user!.id))).limit(1)
     if (membership && membership.role !== 'client') {
-      throw new ApiError(409, `${body.email} works for ${ctx.firm.name} (role ${membership.role.replace('_', ' ')}) and sees the project already; client access is for people outside the firm`, [{ field: 'email', message: 'email: is a staff member of this firm' }])
+      throw new DomainError('conflict', `${body.email} works for ${ctx.firm.name} (role ${membership.role.replace('_', ' ')}) and sees the project already; client access is for people outside the firm`, [{ field: 'email', message: 'email: is a staff member of this firm' }])
     }
     if (!membership) await tx.insert(memberships).values({ firmId: ctx.firm.id, userId: user!.id, role: 'client' })
     const [row] = await tx.insert(projectAccess).values({ firmId: ctx.firm.id, projectId: project.id, userId: user!.id, grantedBy: ctx.user.id })

@@ -11,7 +11,7 @@ import type { Adjustment, Project } from '../db/schema'
 import { adjustNetwork } from '../engine/index'
 import { METRES_PER } from '../engine/io/units'
 import type { AdjustmentResult } from '../engine/types'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
 import { checkRelative, describeTolerance, semiMajorAt95, type ToleranceSpec } from './accuracy'
 import { audit } from './audit'
@@ -49,14 +49,14 @@ export interface RunListItem {
 export async function queueRun(ctx: FirmContext, project: Project, body: unknown, opts: { queue?: string; before?: (tx: Tx) => Promise<void> } = {}): Promise<{ number: number; status: RunStatus }> {
   const parsed = runSettingsSchema.safeParse(body ?? {})
   if (!parsed.success) {
-    throw new ApiError(422, 'Some settings are not valid', parsed.error.issues.map((i) => ({ field: i.path.join('.') || undefined, message: i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message })))
+    throw new DomainError('invalid', 'Some settings are not valid', parsed.error.issues.map((i) => ({ field: i.path.join('.') || undefined, message: i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message })))
   }
   const queue = opts.queue ?? ADJUST_QUEUE
   try {
     await readyQueue(queue)
   } catch (e) {
     console.error('[tiepoint] the job queue is not available:', (e as Error).message)
-    throw new ApiError(503, 'The job queue is not available right now; nothing was queued. Please try again in a minute.')
+    throw new DomainError('busy', 'The job queue is not available right now; nothing was queued. Please try again in a minute.')
   }
   try {
     const run = await useDb().transaction(async (tx) => {
@@ -76,10 +76,10 @@ export async function queueRun(ctx: FirmContext, project: Project, body: unknown
     })
     return { number: run.number, status: run.status }
   } catch (e) {
-    if (e instanceof RunInputError) throw new ApiError(422, e.message, [{ field: e.field, message: e.message }])
-    if (e instanceof ApiError) throw e
+    if (e instanceof RunInputError) throw new DomainError('invalid', e.message, [{ field: e.field, message: e.message }])
+    if (e instanceof DomainError) throw e
     console.error('[tiepoint] queueing a run failed:', e)
-    throw new ApiError(503, 'The run could not be queued; nothing was saved. Please try again in a minute.')
+    throw new DomainError('busy', 'The run could not be queued; nothing was saved. Please try again in a minute.')
   }
 }
 
@@ -159,7 +159,7 @@ const csv = (rows: unknown[][]) => rows.map((r) => r.map(csvCell).join(',')).joi
 
 export async function exportCsv(ctx: FirmContext, project: Project, number: number, what: 'coordinates' | 'residuals'): Promise<{ fileName: string; text: string }> {
   const run = await findRun(ctx, project, number)
-  if (run.status !== 'done' || !run.result) throw new ApiError(409, `Run ${number} has no results (${run.status})`)
+  if (run.status !== 'done' || !run.result) throw new DomainError('conflict', `Run ${number} has no results (${run.status})`)
   const r = run.result as unknown as AdjustmentResult
   const u = project.units
   const k = METRES_PER[u]
@@ -193,7 +193,7 @@ export async function excludeAndRerun(ctx: FirmContext, project: Project, number
   const db = useDb()
   const [obs] = await db.select().from(observations)
     .where(and(eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id), eq(observations.id, observationId))).limit(1)
-  if (!obs) throw new ApiError(422, 'That observation is not in this project', [{ field: 'observationId', message: 'observationId: not in this project' }])
+  if (!obs) throw new DomainError('invalid', 'That observation is not in this project', [{ field: 'observationId', message: 'observationId: not in this project' }])
   // The exclusion and the re-run commit together: a run that cannot be queued leaves the observation as it was.
   const exclude = async (tx: Tx) => {
     if (obs.excluded) return

@@ -4,23 +4,11 @@
 import { and, desc, eq, gte, like, lt, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import Papa from 'papaparse'
-import { z } from 'zod'
+import type { AuditQuery } from '../../shared/schemas/audit'
 import { auditLog, projects, users } from '../db/schema'
 import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
 
-const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'must be a date written YYYY-MM-DD')
-export const auditQuerySchema = z.object({
-  /** exact action ('signoff.create') or a prefix ending in '.' ('release.') */
-  action: z.string().trim().max(80).optional(),
-  user: z.coerce.number().int().positive().optional(),
-  from: day.optional(),
-  to: day.optional(),
-  format: z.enum(['json', 'csv']).default('json'),
-  limit: z.coerce.number().int().min(1).max(1000).default(200),
-  offset: z.coerce.number().int().min(0).default(0),
-})
-export type AuditQuery = z.infer<typeof auditQuerySchema>
 
 export interface AuditEntryDto {
   id: number

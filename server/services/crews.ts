@@ -6,7 +6,7 @@ import { useDb } from '../db/client'
 import type { Tx } from '../db/client'
 import { crewMembers, crews, memberships, projectCrews, users } from '../db/schema'
 import type { Project } from '../db/schema'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
 import { audit } from './audit'
 
@@ -47,7 +47,7 @@ async function setMembers(tx: Tx, ctx: FirmContext, crewId: number, userIds: num
       .where(and(eq(memberships.firmId, ctx.firm.id), inArray(memberships.userId, ids)))
     const staff = new Set(ok.map((r) => r.userId))
     const bad = ids.filter((id) => !staff.has(id))
-    if (bad.length) throw new ApiError(422, 'Some fields are not valid', [{ field: 'memberIds', message: `memberIds: ${bad.join(', ')} are not members of this firm` }])
+    if (bad.length) throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'memberIds', message: `memberIds: ${bad.join(', ')} are not members of this firm` }])
   }
   await tx.delete(crewMembers).where(and(eq(crewMembers.firmId, ctx.firm.id), eq(crewMembers.crewId, crewId)))
   if (ids.length) await tx.insert(crewMembers).values(ids.map((userId) => ({ firmId: ctx.firm.id, crewId, userId })))
@@ -56,7 +56,7 @@ async function setMembers(tx: Tx, ctx: FirmContext, crewId: number, userIds: num
 export async function createCrew(ctx: FirmContext, body: CrewBody): Promise<CrewDto> {
   const id = await useDb().transaction(async (tx) => {
     const [c] = await tx.insert(crews).values({ firmId: ctx.firm.id, name: body.name }).onConflictDoNothing().returning()
-    if (!c) throw new ApiError(409, `A crew named '${body.name}' already exists`)
+    if (!c) throw new DomainError('conflict', `A crew named '${body.name}' already exists`)
     await setMembers(tx, ctx, c.id, body.memberIds ?? [])
     await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'crew.create', entityType: 'crew', entityId: c.id, after: body })
     return c.id
@@ -70,7 +70,7 @@ export async function updateCrew(ctx: FirmContext, id: number, body: CrewUpdate)
   await useDb().transaction(async (tx) => {
     if (body.name && body.name !== before.name) {
       const [clash] = await tx.select({ id: crews.id }).from(crews).where(and(eq(crews.firmId, ctx.firm.id), eq(crews.name, body.name))).limit(1)
-      if (clash) throw new ApiError(409, `A crew named '${body.name}' already exists`)
+      if (clash) throw new DomainError('conflict', `A crew named '${body.name}' already exists`)
       await tx.update(crews).set({ name: body.name }).where(and(eq(crews.firmId, ctx.firm.id), eq(crews.id, id)))
     }
     if (body.memberIds) await setMembers(tx, ctx, id, body.memberIds)
@@ -89,7 +89,7 @@ export async function deleteCrew(ctx: FirmContext, id: number): Promise<void> {
 
 export async function assignCrew(ctx: FirmContext, project: Project, crewId: number): Promise<CrewDto[]> {
   const c = await findCrew(ctx, crewId).catch(() => {
-    throw new ApiError(422, 'Some fields are not valid', [{ field: 'crewId', message: 'crewId: no such crew in this firm' }])
+    throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'crewId', message: 'crewId: no such crew in this firm' }])
   })
   await useDb().transaction(async (tx) => {
     await tx.insert(projectCrews).values({ firmId: ctx.firm.id, projectId: project.id, crewId: c.id }).onConflictDoNothing()

@@ -5,7 +5,7 @@ import { and, asc, eq, sql } from 'drizzle-orm'
 import type { InstrumentBody, InstrumentUpdate } from '../../shared/schemas/fielddata'
 import { useDb } from '../db/client'
 import { instrumentProfiles, observationSets } from '../db/schema'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
 import { audit } from './audit'
 
@@ -46,7 +46,7 @@ async function find(ctx: FirmContext, id: number): Promise<Row> {
   return r
 }
 
-const taken = (name: string) => new ApiError(409, `An instrument profile named '${name}' already exists in this firm`)
+const taken = (name: string) => new DomainError('conflict', `An instrument profile named '${name}' already exists in this firm`)
 
 export async function createInstrument(ctx: FirmContext, body: InstrumentBody): Promise<InstrumentDto> {
   return useDb().transaction(async (tx) => {

@@ -10,11 +10,11 @@ import type { InvitationAccept, InvitationCreate } from '../../shared/schemas/me
 import { firms, invitations, memberships, users } from '../db/schema'
 import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import { audit } from './audit'
 import { publicUrl, sendMail } from './mail'
 import { hashPassword, newToken, sha256Hex } from './passwords'
-import { checkCredentials, ThrottledError } from './signin'
+import { checkCredentials } from './signin'
 
 export const INVITATION_DAYS = 7
 
@@ -55,7 +55,7 @@ export async function createInvitation(ctx: FirmContext, body: InvitationCreate)
   const [already] = await db.select({ id: memberships.id }).from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(and(eq(memberships.firmId, ctx.firm.id), eq(users.email, body.email))).limit(1)
-  if (already) throw new ApiError(409, `${body.email} is already a member of ${ctx.firm.name}`, [{ field: 'email', message: 'email: is already a member of this firm' }])
+  if (already) throw new DomainError('conflict', `${body.email} is already a member of ${ctx.firm.name}`, [{ field: 'email', message: 'email: is already a member of this firm' }])
 
   const { token, hash } = newToken('tpi')
   const expiresAt = new Date(Date.now() + INVITATION_DAYS * 24 * 3600 * 1000)
@@ -83,7 +83,7 @@ export async function createInvitation(ctx: FirmContext, body: InvitationCreate)
       })
     } catch (error) {
       console.error('[tiepoint] invitation e-mail failed:', (error as Error).message)
-      throw new ApiError(502, 'The invitation e-mail could not be sent; nothing was saved. Please try again later.')
+      throw new DomainError('upstream', 'The invitation e-mail could not be sent; nothing was saved. Please try again later.')
     }
     return {
       id: inv!.id, email: inv!.email, role: inv!.role, invitedBy: ctx.user.name,
@@ -104,7 +104,7 @@ export async function revokeInvitation(ctx: FirmContext, invitationId: number): 
   })
 }
 
-const invalidLink = () => new ApiError(404, 'This invitation link is not valid: it may have expired, been used already or been withdrawn. Ask the firm for a new one.')
+const invalidLink = () => new DomainError('not_found', 'This invitation link is not valid: it may have expired, been used already or been withdrawn. Ask the firm for a new one.')
 
 async function openInvitation(token: string) {
   const db = useDb()
@@ -129,16 +129,10 @@ export async function acceptInvitation(token: string, body: InvitationAccept, ip
   const existing = !!user?.passwordHash
   if (existing) {
     // Goes through the sign-in check so guessing a password here is throttled like sign-in.
-    let ok
-    try {
-      ok = await checkCredentials(inv.email, body.password, ip)
-    } catch (error) {
-      if (error instanceof ThrottledError) throw new ApiError(429, error.message)
-      throw error
-    }
-    if (!ok) throw new ApiError(422, 'That is not the password of your Tiepoint account', [{ field: 'password', message: 'password: does not match your Tiepoint password' }])
+    const ok = await checkCredentials(inv.email, body.password, ip)
+    if (!ok) throw new DomainError('invalid', 'That is not the password of your Tiepoint account', [{ field: 'password', message: 'password: does not match your Tiepoint password' }])
   } else if (!body.name) {
-    throw new ApiError(422, 'Some fields are not valid', [{ field: 'name', message: 'name: is required' }])
+    throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'name', message: 'name: is required' }])
   }
   const passwordHash = existing ? null : await hashPassword(body.password)
 

@@ -6,7 +6,7 @@ import { and, desc, eq, sql } from 'drizzle-orm'
 import { invitations, mailboxMessages, memberships, users } from '../db/schema'
 import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
-import { notFound } from '../utils/api'
+import { notFound } from '../utils/errors'
 import { devMailboxEnabled } from './mail'
 
 export interface MailboxMessageDto {

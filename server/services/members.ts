@@ -6,7 +6,7 @@ import { crewMembers, memberships, projectAccess, users } from '../db/schema'
 import type { Tx } from '../db/client'
 import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import { audit } from './audit'
 
 export interface MemberDto {
@@ -76,7 +76,7 @@ async function lockTarget(tx: Tx, ctx: FirmContext, memberId: number) {
   return { target, ownerCount: owners.length }
 }
 
-const lastOwner = () => new ApiError(409, 'A firm needs at least one owner: make another member an owner first')
+const lastOwner = () => new DomainError('conflict', 'A firm needs at least one owner: make another member an owner first')
 
 export async function updateMemberRole(ctx: FirmContext, memberId: number, role: Role): Promise<MemberDto> {
   return useDb().transaction(async (tx) => {

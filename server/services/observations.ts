@@ -21,7 +21,7 @@ import { txClient, useDb } from '../db/client'
 import type { Tx } from '../db/client'
 import { crewMembers, crews, instrumentProfiles, observationSets, observations, projectCrews, users } from '../db/schema'
 import type { ObservationRow, ObservationSetRow, Project } from '../db/schema'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
 import { audit } from './audit'
 import { applyControls, ensureStations } from './stations'
@@ -92,7 +92,7 @@ function decodeUtf8(bytes: Buffer): string {
     const loose = new TextDecoder('utf-8').decode(bytes)
     const at = loose.indexOf('\uFFFD')
     const line = at < 0 ? 1 : countLines(loose.slice(0, at + 1))
-    throw new ApiError(422, 'The file is not UTF-8 text; nothing was saved', [{ line, column: 'file', message: 'holds bytes that are not UTF-8 (save the file as UTF-8)' }])
+    throw new DomainError('invalid', 'The file is not UTF-8 text; nothing was saved', [{ line, column: 'file', message: 'holds bytes that are not UTF-8 (save the file as UTF-8)' }])
   }
 }
 
@@ -112,7 +112,7 @@ async function loadProfile(ctx: FirmContext, id: number | null | undefined) {
   if (id === null || id === undefined) return null
   const [p] = await useDb().select().from(instrumentProfiles)
     .where(and(eq(instrumentProfiles.firmId, ctx.firm.id), eq(instrumentProfiles.id, id))).limit(1)
-  if (!p) throw new ApiError(422, 'Some fields are not valid', [{ field: 'instrumentProfileId', message: 'instrumentProfileId: no such instrument profile in this firm' }])
+  if (!p) throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'instrumentProfileId', message: 'instrumentProfileId: no such instrument profile in this firm' }])
   return p
 }
 
@@ -121,7 +121,7 @@ async function resolveCrew(ctx: FirmContext, project: Project, id: number | null
   const db = useDb()
   if (id !== null && id !== undefined) {
     const [c] = await db.select({ id: crews.id }).from(crews).where(and(eq(crews.firmId, ctx.firm.id), eq(crews.id, id))).limit(1)
-    if (!c) throw new ApiError(422, 'Some fields are not valid', [{ field: 'crewId', message: 'crewId: no such crew in this firm' }])
+    if (!c) throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'crewId', message: 'crewId: no such crew in this firm' }])
     return c.id
   }
   if (ctx.role !== 'field_crew') return null
@@ -133,7 +133,7 @@ async function resolveCrew(ctx: FirmContext, project: Project, id: number | null
 
 function refuse(read: Extract<ReadResult, { ok: false }>, what = 'The file'): never {
   const lines = new Set(read.errors.map((e) => e.line)).size
-  throw new ApiError(422, `${what} has ${lines} bad line${lines === 1 ? '' : 's'}; nothing was saved. Fix every line listed and upload again.`,
+  throw new DomainError('invalid', `${what} has ${lines} bad line${lines === 1 ? '' : 's'}; nothing was saved. Fix every line listed and upload again.`,
     read.errors.map((e) => ({ line: e.line, column: e.column, message: e.message })), { warnings: read.warnings })
 }
 
@@ -236,14 +236,14 @@ function controlFromCrew(ctx: FirmContext, read: Extract<ReadResult, { ok: true 
  */
 export async function uploadObservationSet(ctx: FirmContext, project: Project, input: UploadInput): Promise<UploadResult> {
   const { bytes } = input
-  if (bytes.length === 0) throw new ApiError(422, 'The file is empty; nothing was saved', [{ line: 1, column: 'file', message: 'the file is empty' }])
+  if (bytes.length === 0) throw new DomainError('invalid', 'The file is empty; nothing was saved', [{ line: 1, column: 'file', message: 'the file is empty' }])
   if (bytes.length > MAX_UPLOAD_BYTES) throw tooLarge()
   // `let` so the decoded text (as large as the file) can be let go once the
   // records exist: only they live on while rows stream to the database.
   let text: string | undefined = decodeUtf8(bytes)
   const lines = countLines(text)
   if (lines > MAX_UPLOAD_LINES) {
-    throw new ApiError(413, `The file has ${lines.toLocaleString('en')} lines; the limit is ${MAX_UPLOAD_LINES.toLocaleString('en')} lines per upload. Split it into several files.`)
+    throw new DomainError('too_large', `The file has ${lines.toLocaleString('en')} lines; the limit is ${MAX_UPLOAD_LINES.toLocaleString('en')} lines per upload. Split it into several files.`)
   }
   const sha256 = createHash('sha256').update(bytes).digest('hex')
   const db = useDb()
@@ -300,7 +300,7 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
   }
 }
 
-export const tooLarge = () => new ApiError(413, `The file is larger than ${MAX_UPLOAD_BYTES / 1024 / 1024} MB, the limit per upload. Split it into several files.`)
+export const tooLarge = () => new DomainError('too_large', `The file is larger than ${MAX_UPLOAD_BYTES / 1024 / 1024} MB, the limit per upload. Split it into several files.`)
 
 function isUniqueViolation(e: unknown): boolean {
   const code = (e as { code?: string; cause?: { code?: string } })?.code ?? (e as { cause?: { code?: string } })?.cause?.code
@@ -314,7 +314,7 @@ async function findBySha(ctx: FirmContext, project: Project, sha256: string) {
 }
 
 function duplicate(earlier: { id: number; name: string; uploadedAt: Date }) {
-  return new ApiError(409, `This file was already uploaded as set ${earlier.id} '${earlier.name}' on ${earlier.uploadedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC; nothing was saved.`,
+  return new DomainError('conflict', `This file was already uploaded as set ${earlier.id} '${earlier.name}' on ${earlier.uploadedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC; nothing was saved.`,
     undefined, { existingSetId: earlier.id, existingName: earlier.name })
 }
 
@@ -335,12 +335,12 @@ export async function addManualObservations(ctx: FirmContext, project: Project, 
   const profileRow = await loadProfile(ctx, body.instrumentProfileId)
   const read = readObservationCsv(text, profileRow ? { profile: profileOf(profileRow) } : {})
   if (!read.ok) {
-    throw new ApiError(422, `${new Set(read.errors.map((e) => e.line)).size} typed-in row(s) are not valid; nothing was saved`,
+    throw new DomainError('invalid', `${new Set(read.errors.map((e) => e.line)).size} typed-in row(s) are not valid; nothing was saved`,
       read.errors.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.${e.column}`, message: `row ${e.line - 1}, ${e.column}: ${e.message}` })))
   }
   const control = controlFromCrew(ctx, read, 'manual')
   if (control.length) {
-    throw new ApiError(422, `${control.length} typed-in row(s) set control; nothing was saved`,
+    throw new DomainError('invalid', `${control.length} typed-in row(s) set control; nothing was saved`,
       control.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.kind`, message: `row ${e.line - 1}, kind: ${e.message}` })))
   }
   const name = `Typed in by ${ctx.user.name}, ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC`
@@ -500,12 +500,12 @@ export async function listObservations(ctx: FirmContext, project: Project, q: Ob
 /** Parses a value typed in the project's units / angle format into metres or radians. */
 function parseTyped(kind: string, text: string, project: Project): number {
   const p = ANGLE_KINDS.has(kind) ? parseAngle(text, project.angleFormat === 'gon' ? 'gon' : 'dms') : parseLength(text, project.units)
-  if (!p.ok) throw new ApiError(422, 'Some fields are not valid', [{ field: 'valueText', message: `valueText: ${p.message}` }])
+  if (!p.ok) throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'valueText', message: `valueText: ${p.message}` }])
   return p.value
 }
 
 function checkRange(kind: string, value: number) {
-  const bad = (m: string) => new ApiError(422, 'Some fields are not valid', [{ field: 'value', message: `value: ${m}` }])
+  const bad = (m: string) => new DomainError('invalid', 'Some fields are not valid', [{ field: 'value', message: `value: ${m}` }])
   if (ANGLE_KINDS.has(kind)) {
     if (!(value >= 0 && value < 2 * Math.PI)) throw bad('an angle must be ≥ 0 and below a full circle')
   } else if (kind === 'height_difference') {

@@ -5,7 +5,7 @@ import { and, eq, gt, isNull } from 'drizzle-orm'
 import { RateLimiterMemory } from 'rate-limiter-flexible'
 import { passwordResets, users } from '../db/schema'
 import { useDb } from '../db/client'
-import { ApiError } from '../utils/api'
+import { DomainError } from '../utils/errors'
 import { publicUrl, sendMail } from './mail'
 import { hashPassword, newToken, sha256Hex } from './passwords'
 
@@ -50,7 +50,7 @@ export async function confirmPasswordReset(token: string, password: string): Pro
     const [claimed] = await tx.update(passwordResets).set({ usedAt: now })
       .where(and(eq(passwordResets.tokenHash, sha256Hex(token)), isNull(passwordResets.usedAt), gt(passwordResets.expiresAt, now)))
       .returning({ userId: passwordResets.userId })
-    if (!claimed) throw new ApiError(404, 'This reset link is not valid: it may have expired or been used already. Ask for a new one.', [{ field: 'token', message: 'token: is not valid or has expired' }])
+    if (!claimed) throw new DomainError('not_found', 'This reset link is not valid: it may have expired or been used already. Ask for a new one.', [{ field: 'token', message: 'token: is not valid or has expired' }])
     await tx.update(users).set({ passwordHash }).where(eq(users.id, claimed.userId))
     // Older links for the same person stop working once the password has changed.
     await tx.update(passwordResets).set({ usedAt: now })

@@ -1,12 +1,13 @@
 // A person's own profile: name, licence details (needed to sign off), password.
 import { eq } from 'drizzle-orm'
+import type { Role } from '../../shared/roles'
 import type { PasswordChange, ProfileUpdate } from '../../shared/schemas/profile'
-import { users } from '../db/schema'
+import { firms, memberships, users } from '../db/schema'
 import { useDb } from '../db/client'
-import { ApiError } from '../utils/api'
+import { DomainError } from '../utils/errors'
 import type { SessionUser } from '../utils/guard'
 import { hashPassword } from './passwords'
-import { checkCredentials, ThrottledError } from './signin'
+import { checkCredentials } from './signin'
 
 export interface ProfileDto {
   id: number
@@ -14,6 +15,17 @@ export interface ProfileDto {
   name: string
   licenceNumber: string | null
   licenceJurisdiction: string | null
+}
+
+/** The signed-in person, their firms and their role in each. */
+export async function getMe(user: SessionUser): Promise<{ user: ProfileDto; firms: { slug: string; name: string; role: Role }[] }> {
+  const rows = await useDb().select({ slug: firms.slug, name: firms.name, role: memberships.role })
+    .from(memberships).innerJoin(firms, eq(firms.id, memberships.firmId))
+    .where(eq(memberships.userId, user.id)).orderBy(firms.name)
+  return {
+    user: { id: user.id, email: user.email, name: user.name, licenceNumber: user.licenceNumber, licenceJurisdiction: user.licenceJurisdiction },
+    firms: rows,
+  }
 }
 
 export async function updateProfile(user: SessionUser, body: ProfileUpdate): Promise<ProfileDto> {
@@ -30,15 +42,9 @@ export async function updateProfile(user: SessionUser, body: ProfileUpdate): Pro
 
 export async function changePassword(user: SessionUser, body: PasswordChange, ip: string): Promise<void> {
   // The current password is checked like a sign-in, so it is throttled like one.
-  let ok
-  try {
-    ok = await checkCredentials(user.email, body.current, ip)
-  } catch (error) {
-    if (error instanceof ThrottledError) throw new ApiError(429, error.message)
-    throw error
-  }
+  const ok = await checkCredentials(user.email, body.current, ip)
   if (!ok || ok.id !== user.id) {
-    throw new ApiError(422, 'Your current password is not right', [{ field: 'current', message: 'current: is not your current password' }])
+    throw new DomainError('invalid', 'Your current password is not right', [{ field: 'current', message: 'current: is not your current password' }])
   }
   await useDb().update(users).set({ passwordHash: await hashPassword(body.next) }).where(eq(users.id, user.id))
 }

@@ -6,7 +6,7 @@ import { adjustments, observations, projectAccess, projects, stations } from '..
 import type { Project } from '../db/schema'
 import type { FirmContext } from '../utils/guard'
 import { useDb } from '../db/client'
-import { ApiError } from '../utils/api'
+import { DomainError } from '../utils/errors'
 import { audit } from './audit'
 import { getToleranceProfile } from './tolerance'
 
@@ -81,7 +81,7 @@ export async function updateProject(ctx: FirmContext, project: Project, body: Pr
   const db = useDb()
   // The id arrives in the body, so it must be looked up in this firm like any other reference.
   if (body.toleranceProfileId != null && !(await getToleranceProfile(ctx.firm.id, body.toleranceProfileId))) {
-    throw new ApiError(422, 'Some fields are not valid', [{ field: 'toleranceProfileId', message: 'toleranceProfileId: no such accuracy standard in this firm' }])
+    throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'toleranceProfileId', message: 'toleranceProfileId: no such accuracy standard in this firm' }])
   }
   return db.transaction(async (tx) => {
     const patch: Partial<typeof projects.$inferInsert> = { ...body }

@@ -2,13 +2,13 @@
 // GeoJSON, LandXML, PDF), each stored with its SHA-256. Every download is
 // logged in `downloads` and in the audit log.
 import { and, desc, eq, inArray, sql } from 'drizzle-orm'
-import { z } from 'zod'
+import type { ReleaseCreate } from '../../shared/schemas/releases'
 import { findCrs } from '../../shared/crs'
 import { adjustments, downloads, projects, releaseFiles, releases, signoffs } from '../db/schema'
 import type { Project } from '../db/schema'
 import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import type { AccuracyCheck } from './accuracy-check'
 import { audit } from './audit'
 import { buildDeliverables } from './deliverables'
@@ -17,11 +17,6 @@ import { notifyReleasePublished } from './notifications'
 import type { SignedStation } from './signoffs'
 import { getSignoff, runSummary, supersededState } from './signoffs'
 
-export const releaseCreateSchema = z.object({
-  signoffId: z.number().int().positive(),
-  note: z.string().max(2000).optional(),
-}).strict()
-export type ReleaseCreate = z.infer<typeof releaseCreateSchema>
 
 export const FORMATS = ['csv', 'geojson', 'landxml', 'pdf'] as const
 
@@ -51,10 +46,10 @@ const RELEASE_LOCK_NS = 7034
 
 export async function createRelease(ctx: FirmContext, project: Project, body: ReleaseCreate): Promise<ReleaseDto> {
   const { signoff, run } = await getSignoff(ctx.firm.id, project.id, body.signoffId).catch(() => {
-    throw new ApiError(422, 'No such sign-off in this project', [{ field: 'signoffId', message: 'signoffId: is not a sign-off of this project' }])
+    throw new DomainError('invalid', 'No such sign-off in this project', [{ field: 'signoffId', message: 'signoffId: is not a sign-off of this project' }])
   })
   const state = await supersededState(ctx.firm.id, project.id, run)
-  if (state.superseded) throw new ApiError(409, `${state.reason} Sign off the current run before releasing.`)
+  if (state.superseded) throw new DomainError('conflict', `${state.reason} Sign off the current run before releasing.`)
   const publishedAt = new Date()
   const db = useDb()
   const out = await db.transaction(async (tx) => {

@@ -5,16 +5,13 @@ import { RateLimiterMemory } from 'rate-limiter-flexible'
 import { users } from '../db/schema'
 import { useDb } from '../db/client'
 import { verifyPassword } from './passwords'
+import { ThrottledError } from '../utils/errors'
 
 // 10 failed attempts per account and 30 per address within 15 minutes (common practice for interactive sign-in).
 const perAccount = new RateLimiterMemory({ keyPrefix: 'signin-account', points: 10, duration: 15 * 60 })
 const perAddress = new RateLimiterMemory({ keyPrefix: 'signin-address', points: 30, duration: 15 * 60 })
 
-export class ThrottledError extends Error {
-  constructor(public retryAfterSeconds: number) {
-    super(`Too many sign-in attempts. Try again in ${Math.ceil(retryAfterSeconds / 60)} minutes.`)
-  }
-}
+export { ThrottledError }
 
 export async function throttleState(email: string, ip: string): Promise<number> {
   const [a, b] = await Promise.all([perAccount.get(email.toLowerCase()), perAddress.get(ip)])

@@ -6,14 +6,14 @@
 // refuses UPDATE and DELETE); when the inputs change later it is shown as
 // superseded, never edited.
 import { and, desc, eq, gt, inArray, sql } from 'drizzle-orm'
-import { z } from 'zod'
+import type { SignoffCreate } from '../../shared/schemas/signoffs'
 import type { AdjustmentResult, StationResult } from '../engine/types'
 import type { RunSettings } from '../../shared/schemas/adjustments'
 import { adjustments, observationSets, projects, signoffs, users } from '../db/schema'
 import type { Adjustment, Project, Signoff } from '../db/schema'
 import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import { checkAccuracy, defaultSignStations } from './accuracy-check'
 import type { AccuracyCheck } from './accuracy-check'
 import { audit } from './audit'
@@ -96,7 +96,7 @@ export async function findRun(firmId: number, projectId: number, number: number)
 
 function doneResult(run: Adjustment): AdjustmentResult {
   if (run.status !== 'done' || !run.result) {
-    throw new ApiError(409, `Run ${run.number} is ${run.status}; only a finished run can be signed off`)
+    throw new DomainError('conflict', `Run ${run.number} is ${run.status}; only a finished run can be signed off`)
   }
   return run.result as unknown as AdjustmentResult
 }
@@ -156,14 +156,6 @@ export async function previewSignoff(ctx: FirmContext, project: Project, runNumb
 
 // ── signing ────────────────────────────────────────────────────────────────
 
-export const signoffCreateSchema = z.object({
-  statement: z.string().trim().min(10, 'is required: at least 10 characters saying what you certify').max(5000),
-  password: z.string().min(1, 'is required: confirm with your password'),
-  stations: z.array(z.string().trim().min(1)).min(1, 'must name at least one station').max(5000).optional(),
-  /** required when the run failed its global test or still has flagged observations */
-  acknowledgeFailedTests: z.boolean().optional(),
-}).strict()
-export type SignoffCreate = z.infer<typeof signoffCreateSchema>
 
 export interface SignoffDto {
   id: number
@@ -206,19 +198,19 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
   const db = useDb()
   const [signer] = await db.select().from(users).where(eq(users.id, ctx.user.id)).limit(1)
   if (!signer?.licenceNumber?.trim() || !signer.licenceJurisdiction?.trim()) {
-    throw new ApiError(422, 'Your profile has no licence number and jurisdiction. Add both on your profile before signing off.', [
+    throw new DomainError('invalid', 'Your profile has no licence number and jurisdiction. Add both on your profile before signing off.', [
       ...(!signer?.licenceNumber?.trim() ? [{ field: 'licenceNumber', message: 'licenceNumber: is required on your profile to sign off' }] : []),
       ...(!signer?.licenceJurisdiction?.trim() ? [{ field: 'licenceJurisdiction', message: 'licenceJurisdiction: is required on your profile to sign off' }] : []),
     ])
   }
   if (!(await verifyPassword(body.password, signer.passwordHash))) {
-    throw new ApiError(422, 'The password is not correct; nothing was signed', [{ field: 'password', message: 'password: is not correct' }])
+    throw new DomainError('invalid', 'The password is not correct; nothing was signed', [{ field: 'password', message: 'password: is not correct' }])
   }
   const run = await findRun(ctx.firm.id, project.id, runNumber)
   const result = doneResult(run)
   const testWarnings = failedTests(result)
   if (testWarnings.length && body.acknowledgeFailedTests !== true) {
-    throw new ApiError(422, `Run ${runNumber} did not pass its statistical tests: ${testWarnings.join('; ')}. Read the run report, then confirm that you sign regardless; nothing was signed.`, [
+    throw new DomainError('invalid', `Run ${runNumber} did not pass its statistical tests: ${testWarnings.join('; ')}. Read the run report, then confirm that you sign regardless; nothing was signed.`, [
       { field: 'acknowledgeFailedTests', message: `acknowledgeFailedTests: must be true to sign a run that ${testWarnings.join(' and ')}` },
     ])
   }
@@ -227,7 +219,7 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
   const byName = new Map(result.stations.map((s) => [s.name, s]))
   const names = body.stations ? [...new Set(body.stations)] : defaultSignStations(result, check)
   if (names.length === 0) {
-    throw new ApiError(422, 'No station passes the accuracy check, so there is nothing to sign by default; name the stations to sign', [{ field: 'stations', message: 'stations: none selected' }])
+    throw new DomainError('invalid', 'No station passes the accuracy check, so there is nothing to sign by default; name the stations to sign', [{ field: 'stations', message: 'stations: none selected' }])
   }
   const issues = names.flatMap((n, i) => {
     const s = byName.get(n)
@@ -235,7 +227,7 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
     if (s.east === null || s.north === null) return [{ field: `stations.${i}`, message: `stations.${i}: '${n}' has no adjusted horizontal position` }]
     return []
   })
-  if (issues.length) throw new ApiError(422, 'Some stations cannot be signed', issues)
+  if (issues.length) throw new DomainError('invalid', 'Some stations cannot be signed', issues)
 
   const signed = names.map((n) => toSignedStation(byName.get(n)!)).sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0))
   const sha256 = signoffHash(signed, run.inputHash)
@@ -288,7 +280,7 @@ export async function requestSignoff(ctx: FirmContext, project: Project, runNumb
   doneResult(run)
   const out = await notifySignoffRequested({ firmId: ctx.firm.id, projectId: project.id, runNumber, requestedBy: ctx.user.name, note })
   await audit(useDb(), { firmId: ctx.firm.id, userId: ctx.user.id, action: 'signoff.request', entityType: 'adjustment', entityId: run.id, projectId: project.id, after: { run: runNumber, recipients: out.recipients } })
-  if (out.recipients.length === 0) throw new ApiError(409, 'The firm has no licensed surveyor to ask; an owner can invite one on the Members page')
+  if (out.recipients.length === 0) throw new DomainError('conflict', 'The firm has no licensed surveyor to ask; an owner can invite one on the Members page')
   return { run: runNumber, sentTo: out.recipients.length }
 }
 

@@ -11,7 +11,7 @@ import { useDb } from '../db/client'
 import type { Db, Tx } from '../db/client'
 import { observations, stations } from '../db/schema'
 import type { Project, Station } from '../db/schema'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
 import { audit } from './audit'
 
@@ -93,7 +93,7 @@ function impliedKind(b: StationUpdate, current?: Station): 'control' | 'new' {
 export async function createStation(ctx: FirmContext, project: Project, body: StationCreate): Promise<StationDto> {
   return useDb().transaction(async (tx) => {
     if (await nameTaken(tx, ctx, project, body.name)) {
-      throw new ApiError(409, `A station named '${body.name}' already exists in this project`)
+      throw new DomainError('conflict', `A station named '${body.name}' already exists in this project`)
     }
     const [s] = await tx.insert(stations).values({
       firmId: ctx.firm.id,
@@ -114,7 +114,7 @@ export async function updateStation(ctx: FirmContext, project: Project, id: numb
     let renamed = 0
     if (body.name !== undefined && body.name !== before.name) {
       if (await nameTaken(tx, ctx, project, body.name)) {
-        throw new ApiError(409, `A station named '${body.name}' already exists in this project`)
+        throw new DomainError('conflict', `A station named '${body.name}' already exists in this project`)
       }
       const scope = and(eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id))
       const r1 = await tx.update(observations).set({ at: body.name }).where(and(scope, eq(observations.at, before.name)))
@@ -124,7 +124,7 @@ export async function updateStation(ctx: FirmContext, project: Project, id: numb
     }
     const merged = { ...before, ...body }
     if ((merged.controlEast === null) !== (merged.controlNorth === null)) {
-      throw new ApiError(422, 'Some fields are not valid', [{ field: 'controlNorth', message: 'give control east and north together' }])
+      throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'controlNorth', message: 'give control east and north together' }])
     }
     const [s] = await tx.update(stations).set({ ...body, kind: impliedKind(body, before) })
       .where(and(eq(stations.firmId, ctx.firm.id), eq(stations.id, id))).returning()
@@ -143,7 +143,7 @@ export async function deleteStation(ctx: FirmContext, project: Project, id: numb
     const [used] = await tx.select({ n: sql<number>`count(*)::int` }).from(observations)
       .where(and(eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id),
         sql`(${observations.at} = ${before.name} or ${observations.to} = ${before.name} or ${observations.from} = ${before.name})`))
-    if ((used?.n ?? 0) > 0) throw new ApiError(409, `Station '${before.name}' is used by ${used!.n} observations; exclude or rename them first`)
+    if ((used?.n ?? 0) > 0) throw new DomainError('conflict', `Station '${before.name}' is used by ${used!.n} observations; exclude or rename them first`)
     await tx.delete(stations).where(and(eq(stations.firmId, ctx.firm.id), eq(stations.id, id)))
     await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'station.delete', entityType: 'station', entityId: id, projectId: project.id, before: stationDto(before) })
   })
@@ -258,7 +258,7 @@ export async function importControlCsv(ctx: FirmContext, project: Project, text:
   const read = readControlCsv(text, project.units)
   if (!read.ok) {
     const lines = new Set(read.errors.map((e) => e.line)).size
-    throw new ApiError(422, `The control file has ${lines} bad line${lines === 1 ? '' : 's'}; nothing was saved`, read.errors)
+    throw new DomainError('invalid', `The control file has ${lines} bad line${lines === 1 ? '' : 's'}; nothing was saved`, read.errors)
   }
   return useDb().transaction(async (tx) => {
     const changes = await applyControls(tx, ctx.firm.id, project.id, read.controls)

@@ -5,7 +5,7 @@ import { and, desc, eq, isNull } from 'drizzle-orm'
 import { apiTokens } from '../db/schema'
 import type { User } from '../db/schema'
 import { useDb } from '../db/client'
-import { ApiError, notFound } from '../utils/api'
+import { DomainError, notFound } from '../utils/errors'
 import { newToken } from './passwords'
 
 export const MAX_ACTIVE_TOKENS = 20
@@ -36,7 +36,7 @@ export async function createToken(userId: User['id'], name: string): Promise<Tok
   return useDb().transaction(async (tx) => {
     const active = await tx.select({ id: apiTokens.id }).from(apiTokens)
       .where(and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt))).for('update')
-    if (active.length >= MAX_ACTIVE_TOKENS) throw new ApiError(409, `You already have ${MAX_ACTIVE_TOKENS} active tokens; revoke one you no longer use first`)
+    if (active.length >= MAX_ACTIVE_TOKENS) throw new DomainError('conflict', `You already have ${MAX_ACTIVE_TOKENS} active tokens; revoke one you no longer use first`)
     const { token, hash, shown } = newToken('tp')
     const [row] = await tx.insert(apiTokens).values({ userId, name, tokenHash: hash, prefix: shown }).returning()
     return { ...tokenDto(row!), token }

@@ -11,11 +11,11 @@
 //   chooses.
 // - custom: a firm's own a mm + b ppm rule, evaluated like relative_ppm.
 import { and, asc, eq } from 'drizzle-orm'
-import { z } from 'zod'
+import type { ToleranceCreate } from '../../shared/schemas/tolerance'
 import { toleranceProfiles } from '../db/schema'
 import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
-import { ApiError } from '../utils/api'
+import { DomainError } from '../utils/errors'
 import { audit } from './audit'
 
 export type ToleranceProfileRow = typeof toleranceProfiles.$inferSelect
@@ -59,22 +59,6 @@ export function fgdcHorizontal95(sdEast: number, sdNorth: number, correlation = 
 
 // ── profiles as data ───────────────────────────────────────────────────────
 
-export const toleranceCreateSchema = z.discriminatedUnion('kind', [
-  z.object({
-    kind: z.enum(['relative_ppm', 'custom']),
-    name: z.string().trim().min(1, 'is required').max(120),
-    mm: z.number().min(0, 'must be 0 or more').max(10_000),
-    ppm: z.number().min(0, 'must be 0 or more').max(100_000),
-    source: z.string().trim().min(1, 'is required: say where the rule comes from').max(500),
-  }).strict(),
-  z.object({
-    kind: z.literal('fgdc_95'),
-    name: z.string().trim().min(1, 'is required').max(120),
-    thresholdMm: z.number().positive('must be more than 0').max(100_000),
-    source: z.string().trim().min(1, 'is required: say where the threshold comes from').max(500),
-  }).strict(),
-])
-export type ToleranceCreate = z.infer<typeof toleranceCreateSchema>
 
 export interface ToleranceProfileDto {
   id: number
@@ -116,7 +100,7 @@ export async function createToleranceProfile(ctx: FirmContext, body: ToleranceCr
     const [row] = await tx.insert(toleranceProfiles)
       .values({ firmId: ctx.firm.id, name: body.name, kind: body.kind, params, source: body.source })
       .onConflictDoNothing().returning()
-    if (!row) throw new ApiError(409, `A tolerance profile named '${body.name}' already exists`, [{ field: 'name', message: 'name: is already used' }])
+    if (!row) throw new DomainError('conflict', `A tolerance profile named '${body.name}' already exists`, [{ field: 'name', message: 'name: is already used' }])
     await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'tolerance.create', entityType: 'tolerance_profile', entityId: row.id, after: toleranceDto(row) })
     return toleranceDto(row)
   })

@@ -1,45 +1,17 @@
-// Route helpers: one error shape for the whole API and zod validation that
-// names the field. Errors answer `{ statusCode, message, errors? }`.
+// The API's one error shape: every error leaves as `{ statusCode, message, errors? }`.
+// Domain errors (server/utils/errors.ts) are mapped to their status by the
+// table there; zod errors name the field; anything unexpected is a 500 that
+// says nothing was saved and is logged.
 import type { H3Event } from 'h3'
 import { z } from 'zod'
-
-export interface ApiIssue {
-  line?: number
-  column?: string
-  field?: string
-  message: string
-}
-
-export class ApiError extends Error {
-  constructor(
-    public statusCode: number,
-    message: string,
-    public errors?: ApiIssue[],
-    public extra?: Record<string, unknown>,
-  ) {
-    super(message)
-  }
-}
-
-export const notFound = (what = 'Not found') => new ApiError(404, what)
-export const forbidden = (what = 'Your role in this firm may not do this') => new ApiError(403, what)
-export const unauthorized = () => new ApiError(401, 'Sign in first (session cookie or Authorization: Bearer token)')
-
-/** Wraps a handler so every thrown error leaves in the documented JSON shape. */
-export function defineApiHandler<T>(handler: (event: H3Event) => Promise<T> | T) {
-  return defineEventHandler(async (event) => {
-    try {
-      return await handler(event)
-    } catch (error) {
-      return sendApiError(event, error)
-    }
-  })
-}
+import { DomainError, ThrottledError, notFound } from './errors'
+import type { ApiIssue } from './errors'
 
 export function sendApiError(event: H3Event, error: unknown) {
   let body: { statusCode: number; message: string; errors?: ApiIssue[]; [k: string]: unknown }
-  if (error instanceof ApiError) {
+  if (error instanceof DomainError) {
     body = { statusCode: error.statusCode, message: error.message, ...(error.errors ? { errors: error.errors } : {}), ...error.extra }
+    if (error instanceof ThrottledError) setResponseHeader(event, 'retry-after', Math.ceil(error.retryAfterSeconds))
   } else if (error instanceof z.ZodError) {
     body = { statusCode: 422, message: 'Some fields are not valid', errors: zodIssues(error) }
   } else if (isH3Error(error)) {
@@ -61,25 +33,6 @@ export function zodIssues(error: z.ZodError): ApiIssue[] {
     field: i.path.length ? i.path.join('.') : undefined,
     message: i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message,
   }))
-}
-
-/** Reads and validates a JSON body; malformed JSON answers 400, invalid fields 422. */
-export async function parseBody<S extends z.ZodType>(event: H3Event, schema: S): Promise<z.infer<S>> {
-  let raw: unknown
-  try {
-    raw = await readBody(event)
-  } catch {
-    throw new ApiError(400, 'The request body is not valid JSON')
-  }
-  const parsed = schema.safeParse(raw ?? {})
-  if (!parsed.success) throw new ApiError(422, 'Some fields are not valid', zodIssues(parsed.error))
-  return parsed.data
-}
-
-export function parseQuery<S extends z.ZodType>(event: H3Event, schema: S): z.infer<S> {
-  const parsed = schema.safeParse(getQuery(event))
-  if (!parsed.success) throw new ApiError(422, 'Some query parameters are not valid', zodIssues(parsed.error))
-  return parsed.data
 }
 
 /** A positive integer route parameter; anything else is simply not found. */

@@ -9,7 +9,7 @@ import type { Role } from '../../shared/roles'
 import { apiTokens, firms, memberships, projectAccess, projectCrews, crewMembers, projects, users } from '../db/schema'
 import type { Firm, Project } from '../db/schema'
 import { sha256Hex } from '../services/passwords'
-import { ApiError, forbidden, notFound, unauthorized } from './api'
+import { DomainError, forbidden, notFound, unauthorized } from './errors'
 
 export interface SessionUser {
   id: number
@@ -38,12 +38,15 @@ export async function requireUser(event: H3Event): Promise<SessionUser> {
     const hash = sha256Hex(header.slice(7).trim())
     const [row] = await db.select({ id: apiTokens.id, userId: apiTokens.userId }).from(apiTokens)
       .where(and(eq(apiTokens.tokenHash, hash), isNull(apiTokens.revokedAt))).limit(1)
-    if (!row) throw new ApiError(401, 'This API token is not valid or was revoked')
+    if (!row) throw new DomainError('unauthenticated', 'This API token is not valid or was revoked')
     userId = row.userId
     via = 'token'
     await db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.id))
   } else {
-    const token = await getToken({ event }).catch(() => null)
+    // The secret is passed here because nuxt-auth learns it only when its
+    // /api/auth handler is first loaded: after an app restart, every session
+    // answered 401 until someone happened to open a sign-in route.
+    const token = await getToken({ event, secret: useRuntimeConfig().authSecret || process.env.AUTH_SECRET }).catch(() => null)
     const uid = token && (token as { uid?: unknown }).uid
     if (typeof uid === 'number') userId = uid
   }

@@ -3,24 +3,24 @@
 // of the body is drained so the client still receives the answer.
 import type { H3Event } from 'h3'
 import busboy from 'busboy'
-import { ApiError } from './api'
+import { DomainError } from './errors'
 
 export interface UploadForm {
   file: { name: string; data: Buffer; type?: string } | null
   fields: Record<string, string>
 }
 
-export async function readUploadForm(event: H3Event, maxFileBytes: number, tooLarge: () => ApiError): Promise<UploadForm> {
+export async function readUploadForm(event: H3Event, maxFileBytes: number, tooLarge: () => DomainError): Promise<UploadForm> {
   const type = getRequestHeader(event, 'content-type') ?? ''
   if (!type.toLowerCase().startsWith('multipart/form-data')) {
-    throw new ApiError(415, 'Send the file as multipart/form-data with the field `file`')
+    throw new DomainError('unsupported_media', 'Send the file as multipart/form-data with the field `file`')
   }
   const req = event.node.req
   let parser: busboy.Busboy
   try {
     parser = busboy({ headers: req.headers, limits: { fileSize: maxFileBytes, files: 1, fields: 20, fieldSize: 64 * 1024 }, defParamCharset: 'utf8' })
   } catch {
-    throw new ApiError(415, 'The multipart body has no boundary')
+    throw new DomainError('unsupported_media', 'The multipart body has no boundary')
   }
   const fields: Record<string, string> = {}
   let file: UploadForm['file'] = null
@@ -38,7 +38,7 @@ export async function readUploadForm(event: H3Event, maxFileBytes: number, tooLa
     })
     parser.on('field', (name, value) => { fields[name] = value })
     parser.on('close', () => resolve())
-    parser.on('error', (e: Error) => reject(new ApiError(400, `The multipart body could not be read: ${e.message}`)))
+    parser.on('error', (e: Error) => reject(new DomainError('malformed', `The multipart body could not be read: ${e.message}`)))
     req.pipe(parser)
   })
   if (truncated) throw tooLarge()
@@ -49,6 +49,6 @@ export async function readUploadForm(event: H3Event, maxFileBytes: number, tooLa
 export function formId(fields: Record<string, string>, name: string): number | null {
   const v = (fields[name] ?? '').trim()
   if (v === '' || v === 'null') return null
-  if (!/^\d{1,9}$/.test(v)) throw new ApiError(422, 'Some fields are not valid', [{ field: name, message: `${name}: must be a positive whole number` }])
+  if (!/^\d{1,9}$/.test(v)) throw new DomainError('invalid', 'Some fields are not valid', [{ field: name, message: `${name}: must be a positive whole number` }])
   return Number(v)
 }

@@ -102,3 +102,8 @@ export type CrewBody = z.infer<typeof crewSchema>
 export type CrewUpdate = z.infer<typeof crewUpdateSchema>
 
 export const projectCrewSchema = z.object({ crewId: z.number().int().positive() }).strict()
+
+/** A control-coordinate CSV uploaded as a file (multipart) may be this large. */
+export const MAX_CONTROL_BYTES = 5 * 1024 * 1024
+/** The same CSV pasted as text in a JSON body, which is capped at 1 MB like every JSON body. */
+export const controlImportTextSchema = z.object({ text: z.string().min(1, 'is blank').max(1024 * 1024) }).strict()

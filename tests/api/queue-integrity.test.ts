@@ -9,7 +9,7 @@ import { closeDb, usePool, useDb } from '../../server/db/client'
 import { adjustments, auditLog, observations, projects, releases, signoffs } from '../../server/db/schema'
 import { excludeAndRerun, queueRun, sweepQueuedWithoutJob } from '../../server/services/adjustments'
 import { stopBoss } from '../../server/services/run-queue'
-import { ApiError } from '../../server/utils/api'
+import { DomainError } from '../../server/utils/errors'
 import { as, DEMO, type Client } from '../support/http'
 import { demoPassword } from '../support/env'
 import { contextFor, DEMO_CSV, projectWithNetwork } from './adjustments-fixture'
@@ -41,10 +41,10 @@ const runsOf = async () => useDb().select().from(adjustments).where(eq(adjustmen
 const jobsFor = async (runId: number) =>
   (await usePool().query<{ state: string; name: string }>(`select state, name from pgboss.job where data->>'adjustmentId' = $1`, [String(runId)])).rows
 
-async function rejection(p: Promise<unknown>): Promise<ApiError> {
+async function rejection(p: Promise<unknown>): Promise<DomainError> {
   const e = await p.then(() => null, (x: unknown) => x)
-  expect(e).toBeInstanceOf(ApiError)
-  return e as ApiError
+  expect(e).toBeInstanceOf(DomainError)
+  return e as DomainError
 }
 
 describe('a run and its job in one transaction', () => {

@@ -29,6 +29,10 @@ export class Client {
     const headers = new Headers(init.headers)
     if (this.cookies.size) headers.set('cookie', this.cookieHeader())
     if (this.bearer) headers.set('authorization', `Bearer ${this.bearer}`)
+    // A browser sends Origin with every POST, PATCH and DELETE; the server refuses
+    // cookie-authenticated changes without it. Tests of that rule set their own.
+    const method = (init.method ?? 'GET').toUpperCase()
+    if (!['GET', 'HEAD'].includes(method) && !headers.has('origin')) headers.set('origin', this.base)
     const res = await fetch(this.base + path, { ...init, headers, redirect: 'manual' })
     this.keep(res)
     return res

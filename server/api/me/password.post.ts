@@ -2,10 +2,7 @@
 import { passwordChangeSchema } from '../../../shared/schemas/profile'
 import { changePassword } from '../../services/profile'
 
-export default defineApiHandler(async (event) => {
-  const user = await requireUser(event)
-  if (user.via !== 'session') throw forbidden('Change your password in the app, not with an API token')
-  const body = await parseBody(event, passwordChangeSchema)
-  await changePassword(user, body, getRequestIP(event, { xForwardedFor: false }) ?? 'unknown')
+export default defineUserRoute({ session: true, body: passwordChangeSchema }, async ({ event, user, body }) => {
+  await changePassword(user, body, clientIp(event))
   return { message: 'Your password has been changed.' }
 })

@@ -2,8 +2,7 @@
 import { passwordResetConfirmSchema } from '../../../shared/schemas/members'
 import { confirmPasswordReset } from '../../services/password-reset'
 
-export default defineApiHandler(async (event) => {
-  const body = await parseBody(event, passwordResetConfirmSchema)
+export default definePublicRoute({ body: passwordResetConfirmSchema }, async ({ body }) => {
   await confirmPasswordReset(body.token, body.password)
   return { message: 'Your password has been changed. Sign in with the new one.' }
 })

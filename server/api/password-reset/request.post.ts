@@ -2,9 +2,7 @@
 import { passwordResetRequestSchema } from '../../../shared/schemas/members'
 import { RESET_REQUESTED_MESSAGE, requestPasswordReset } from '../../services/password-reset'
 
-export default defineApiHandler(async (event) => {
-  const body = await parseBody(event, passwordResetRequestSchema)
+export default definePublicRoute({ body: passwordResetRequestSchema, status: 202 }, ({ body }) => {
   requestPasswordReset(body.email)
-  setResponseStatus(event, 202)
   return { message: RESET_REQUESTED_MESSAGE }
 })

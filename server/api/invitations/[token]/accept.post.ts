@@ -2,9 +2,5 @@
 import { invitationAcceptSchema } from '../../../../shared/schemas/members'
 import { acceptInvitation } from '../../../services/invitations'
 
-export default defineApiHandler(async (event) => {
-  const token = getRouterParam(event, 'token') ?? ''
-  const body = await parseBody(event, invitationAcceptSchema)
-  const ip = getRequestIP(event, { xForwardedFor: false }) ?? 'unknown'
-  return acceptInvitation(token, body, ip)
-})
+export default definePublicRoute({ body: invitationAcceptSchema }, ({ event, body }) =>
+  acceptInvitation(getRouterParam(event, 'token') ?? '', body, clientIp(event)))

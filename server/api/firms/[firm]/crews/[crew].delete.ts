@@ -2,9 +2,7 @@
 import { CHIEFS } from '../../../../../shared/roles'
 import { deleteCrew } from '../../../../services/crews'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
+export default defineFirmRoute({ roles: CHIEFS, status: 204 }, async ({ event, ctx }) => {
   await deleteCrew(ctx, idParam(event, 'crew'))
-  setResponseStatus(event, 204)
   return null
 })

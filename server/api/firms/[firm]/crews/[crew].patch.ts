@@ -3,9 +3,5 @@ import { CHIEFS } from '../../../../../shared/roles'
 import { crewUpdateSchema } from '../../../../../shared/schemas/fielddata'
 import { updateCrew } from '../../../../services/crews'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
-  const id = idParam(event, 'crew')
-  const body = await parseBody(event, crewUpdateSchema)
-  return updateCrew(ctx, id, body)
-})
+export default defineFirmRoute({ roles: CHIEFS, body: crewUpdateSchema }, ({ event, ctx, body }) =>
+  updateCrew(ctx, idParam(event, 'crew'), body))

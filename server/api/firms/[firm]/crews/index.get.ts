@@ -2,7 +2,4 @@
 import { STAFF } from '../../../../../shared/roles'
 import { listCrews } from '../../../../services/crews'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  return listCrews(ctx)
-})
+export default defineFirmRoute({ roles: STAFF }, ({ ctx }) => listCrews(ctx))

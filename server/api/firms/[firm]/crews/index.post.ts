@@ -3,10 +3,4 @@ import { CHIEFS } from '../../../../../shared/roles'
 import { crewSchema } from '../../../../../shared/schemas/fielddata'
 import { createCrew } from '../../../../services/crews'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
-  const body = await parseBody(event, crewSchema)
-  const crew = await createCrew(ctx, body)
-  setResponseStatus(event, 201)
-  return crew
-})
+export default defineFirmRoute({ roles: CHIEFS, body: crewSchema, status: 201 }, ({ ctx, body }) => createCrew(ctx, body))

@@ -2,9 +2,7 @@
 import { CHIEFS } from '../../../../../shared/roles'
 import { deleteInstrument } from '../../../../services/instruments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
+export default defineFirmRoute({ roles: CHIEFS, status: 204 }, async ({ event, ctx }) => {
   await deleteInstrument(ctx, idParam(event, 'instrument'))
-  setResponseStatus(event, 204)
   return null
 })

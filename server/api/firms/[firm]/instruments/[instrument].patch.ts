@@ -3,9 +3,5 @@ import { CHIEFS } from '../../../../../shared/roles'
 import { instrumentUpdateSchema } from '../../../../../shared/schemas/fielddata'
 import { updateInstrument } from '../../../../services/instruments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
-  const id = idParam(event, 'instrument')
-  const body = await parseBody(event, instrumentUpdateSchema)
-  return updateInstrument(ctx, id, body)
-})
+export default defineFirmRoute({ roles: CHIEFS, body: instrumentUpdateSchema }, ({ event, ctx, body }) =>
+  updateInstrument(ctx, idParam(event, 'instrument'), body))

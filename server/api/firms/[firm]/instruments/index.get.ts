@@ -2,7 +2,4 @@
 import { STAFF } from '../../../../../shared/roles'
 import { listInstruments } from '../../../../services/instruments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  return listInstruments(ctx)
-})
+export default defineFirmRoute({ roles: STAFF }, ({ ctx }) => listInstruments(ctx))

@@ -3,10 +3,4 @@ import { CHIEFS } from '../../../../../shared/roles'
 import { instrumentSchema } from '../../../../../shared/schemas/fielddata'
 import { createInstrument } from '../../../../services/instruments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
-  const body = await parseBody(event, instrumentSchema)
-  const row = await createInstrument(ctx, body)
-  setResponseStatus(event, 201)
-  return row
-})
+export default defineFirmRoute({ roles: CHIEFS, body: instrumentSchema, status: 201 }, ({ ctx, body }) => createInstrument(ctx, body))

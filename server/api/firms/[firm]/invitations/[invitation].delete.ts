@@ -2,10 +2,7 @@
 import { OWNERS } from '../../../../../shared/roles'
 import { revokeInvitation } from '../../../../services/invitations'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, OWNERS)
-  const invitationId = idParam(event, 'invitation')
-  await revokeInvitation(ctx, invitationId)
-  setResponseStatus(event, 204)
+export default defineFirmRoute({ roles: OWNERS, status: 204 }, async ({ event, ctx }) => {
+  await revokeInvitation(ctx, idParam(event, 'invitation'))
   return null
 })

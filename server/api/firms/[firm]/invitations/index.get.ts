@@ -2,7 +2,4 @@
 import { OWNERS } from '../../../../../shared/roles'
 import { listInvitations } from '../../../../services/invitations'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, OWNERS)
-  return listInvitations(ctx)
-})
+export default defineFirmRoute({ roles: OWNERS }, ({ ctx }) => listInvitations(ctx))

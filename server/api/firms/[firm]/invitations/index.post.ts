@@ -3,10 +3,4 @@ import { OWNERS } from '../../../../../shared/roles'
 import { invitationCreateSchema } from '../../../../../shared/schemas/members'
 import { createInvitation } from '../../../../services/invitations'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, OWNERS)
-  const body = await parseBody(event, invitationCreateSchema)
-  const invitation = await createInvitation(ctx, body)
-  setResponseStatus(event, 201)
-  return invitation
-})
+export default defineFirmRoute({ roles: OWNERS, body: invitationCreateSchema, status: 201 }, ({ ctx, body }) => createInvitation(ctx, body))

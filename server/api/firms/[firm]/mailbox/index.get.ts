@@ -2,7 +2,4 @@
 import { OWNERS } from '../../../../../shared/roles'
 import { listMailbox } from '../../../../services/mailbox'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, OWNERS)
-  return listMailbox(ctx)
-})
+export default defineFirmRoute({ roles: OWNERS }, ({ ctx }) => listMailbox(ctx))

@@ -2,10 +2,7 @@
 import { OWNERS } from '../../../../../shared/roles'
 import { removeMember } from '../../../../services/members'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, OWNERS)
-  const memberId = idParam(event, 'member')
-  await removeMember(ctx, memberId)
-  setResponseStatus(event, 204)
+export default defineFirmRoute({ roles: OWNERS, status: 204 }, async ({ event, ctx }) => {
+  await removeMember(ctx, idParam(event, 'member'))
   return null
 })

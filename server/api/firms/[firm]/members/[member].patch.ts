@@ -3,9 +3,5 @@ import { OWNERS } from '../../../../../shared/roles'
 import { memberUpdateSchema } from '../../../../../shared/schemas/members'
 import { updateMemberRole } from '../../../../services/members'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, OWNERS)
-  const memberId = idParam(event, 'member')
-  const body = await parseBody(event, memberUpdateSchema)
-  return updateMemberRole(ctx, memberId, body.role)
-})
+export default defineFirmRoute({ roles: OWNERS, body: memberUpdateSchema }, ({ event, ctx, body }) =>
+  updateMemberRole(ctx, idParam(event, 'member'), body.role))

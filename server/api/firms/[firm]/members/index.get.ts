@@ -2,7 +2,4 @@
 import { STAFF } from '../../../../../shared/roles'
 import { listMembers } from '../../../../services/members'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  return listMembers(ctx)
-})
+export default defineFirmRoute({ roles: STAFF }, ({ ctx }) => listMembers(ctx))

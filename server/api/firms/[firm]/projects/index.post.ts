@@ -3,10 +3,4 @@ import { CHIEFS } from '../../../../../shared/roles'
 import { projectCreateSchema } from '../../../../../shared/schemas/projects'
 import { createProject } from '../../../../services/projects'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
-  const body = await parseBody(event, projectCreateSchema)
-  const project = await createProject(ctx, body)
-  setResponseStatus(event, 201)
-  return project
-})
+export default defineFirmRoute({ roles: CHIEFS, body: projectCreateSchema, status: 201 }, ({ ctx, body }) => createProject(ctx, body))

@@ -3,9 +3,5 @@ import { CHIEFS } from '../../../../../../shared/roles'
 import { projectUpdateSchema } from '../../../../../../shared/schemas/projects'
 import { updateProject } from '../../../../../services/projects'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
-  const project = await requireProject(event, ctx)
-  const body = await parseBody(event, projectUpdateSchema)
-  return updateProject(ctx, project, body)
-})
+export default defineFirmRoute({ roles: CHIEFS, project: true, body: projectUpdateSchema }, ({ ctx, project, body }) =>
+  updateProject(ctx, project, body))

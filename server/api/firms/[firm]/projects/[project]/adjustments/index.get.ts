@@ -2,8 +2,4 @@
 import { STAFF } from '../../../../../../../shared/roles'
 import { listRuns } from '../../../../../../services/adjustments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  return listRuns(ctx, project)
-})
+export default defineFirmRoute({ roles: STAFF, project: true }, ({ ctx, project }) => listRuns(ctx, project))

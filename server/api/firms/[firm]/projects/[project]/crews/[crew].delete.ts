@@ -2,10 +2,7 @@
 import { CHIEFS } from '../../../../../../../shared/roles'
 import { unassignCrew } from '../../../../../../services/crews'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
-  const project = await requireProject(event, ctx)
+export default defineFirmRoute({ roles: CHIEFS, project: true, status: 204 }, async ({ event, ctx, project }) => {
   await unassignCrew(ctx, project, idParam(event, 'crew'))
-  setResponseStatus(event, 204)
   return null
 })

@@ -2,8 +2,4 @@
 import { STAFF } from '../../../../../../../shared/roles'
 import { listCrews } from '../../../../../../services/crews'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  return listCrews(ctx, project.id)
-})
+export default defineFirmRoute({ roles: STAFF, project: true }, ({ ctx, project }) => listCrews(ctx, project.id))

@@ -2,8 +2,4 @@
 import { STAFF } from '../../../../../../../shared/roles'
 import { listObservationSets } from '../../../../../../services/observations'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  return listObservationSets(ctx, project)
-})
+export default defineFirmRoute({ roles: STAFF, project: true }, ({ ctx, project }) => listObservationSets(ctx, project))

@@ -3,18 +3,13 @@
 import { STAFF } from '../../../../../../../shared/roles'
 import { MAX_UPLOAD_BYTES, tooLarge, uploadObservationSet } from '../../../../../../services/observations'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  await requireCrewAssignment(ctx, project)
+export default defineFirmRoute({ roles: STAFF, project: true, crewAssigned: true, multipart: 'only', status: 201 }, async ({ event, ctx, project }) => {
   const form = await readUploadForm(event, MAX_UPLOAD_BYTES, tooLarge)
-  if (!form.file) throw new ApiError(422, 'Attach the file in the multipart field `file`', [{ field: 'file', message: 'file: is missing' }])
-  const result = await uploadObservationSet(ctx, project, {
+  if (!form.file) throw invalid('Attach the file in the multipart field `file`', [{ field: 'file', message: 'file: is missing' }])
+  return uploadObservationSet(ctx, project, {
     name: form.file.name,
     bytes: form.file.data,
     crewId: formId(form.fields, 'crewId'),
     instrumentProfileId: formId(form.fields, 'instrumentProfileId'),
   })
-  setResponseStatus(event, 201)
-  return result
 })

@@ -1,13 +1,7 @@
 // PATCH /api/firms/:firm/projects/:project/observations/:observation — edit the value or exclude/include (audited; the file never changes)
-import { observationPatchSchema } from '../../../../../../../shared/schemas/fielddata'
 import { STAFF } from '../../../../../../../shared/roles'
+import { observationPatchSchema } from '../../../../../../../shared/schemas/fielddata'
 import { updateObservation } from '../../../../../../services/observations'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  await requireCrewAssignment(ctx, project)
-  const id = idParam(event, 'observation')
-  const body = await parseBody(event, observationPatchSchema)
-  return updateObservation(ctx, project, id, body)
-})
+export default defineFirmRoute({ roles: STAFF, project: true, crewAssigned: true, body: observationPatchSchema }, ({ event, ctx, project, body }) =>
+  updateObservation(ctx, project, idParam(event, 'observation'), body))

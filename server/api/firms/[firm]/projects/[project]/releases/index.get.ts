@@ -1,8 +1,4 @@
 // GET /api/firms/:firm/projects/:project/releases — releases with their files and SHA-256 (clients: shared projects only)
-import { listReleases } from '../../../../../../../server/services/releases'
+import { listReleases } from '../../../../../../services/releases'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event)
-  const project = await requireProject(event, ctx)
-  return listReleases(ctx, project)
-})
+export default defineFirmRoute({ project: true }, ({ ctx, project }) => listReleases(ctx, project))

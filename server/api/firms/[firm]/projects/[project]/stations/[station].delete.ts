@@ -2,10 +2,7 @@
 import { CHIEFS } from '../../../../../../../shared/roles'
 import { deleteStation } from '../../../../../../services/stations'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, CHIEFS)
-  const project = await requireProject(event, ctx)
+export default defineFirmRoute({ roles: CHIEFS, project: true, status: 204 }, async ({ event, ctx, project }) => {
   await deleteStation(ctx, project, idParam(event, 'station'))
-  setResponseStatus(event, 204)
   return null
 })

@@ -2,8 +2,4 @@
 import { STAFF } from '../../../../../../../shared/roles'
 import { listStations } from '../../../../../../services/stations'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  return listStations(ctx, project)
-})
+export default defineFirmRoute({ roles: STAFF, project: true }, ({ ctx, project }) => listStations(ctx, project))

@@ -2,8 +2,4 @@
 import { STAFF } from '../../../../../../../../shared/roles'
 import { getRun } from '../../../../../../../services/adjustments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  return getRun(ctx, project, idParam(event, 'number'))
-})
+export default defineFirmRoute({ roles: STAFF, project: true }, ({ event, ctx, project }) => getRun(ctx, project, idParam(event, 'number')))

@@ -2,8 +2,4 @@
 import { STAFF } from '../../../../../../../../shared/roles'
 import { getRunStatus } from '../../../../../../../services/adjustments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
-  return getRunStatus(ctx, project, idParam(event, 'number'))
-})
+export default defineFirmRoute({ roles: STAFF, project: true }, ({ event, ctx, project }) => getRunStatus(ctx, project, idParam(event, 'number')))

@@ -2,9 +2,7 @@
 import { STAFF } from '../../../../../../../../shared/roles'
 import { getObservationSetFile } from '../../../../../../../services/observations'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
+export default defineFirmRoute({ roles: STAFF, project: true }, async ({ event, ctx, project }) => {
   const file = await getObservationSetFile(ctx, project, idParam(event, 'set'))
   const ascii = file.fileName.replace(/[^\x20-\x7e]/g, '_').replace(/["\\]/g, '_')
   setResponseHeaders(event, {

@@ -2,9 +2,7 @@
 import { STAFF } from '../../../../../../../../../shared/roles'
 import { exportCsv } from '../../../../../../../../services/adjustments'
 
-export default defineApiHandler(async (event) => {
-  const ctx = await requireFirmMember(event, STAFF)
-  const project = await requireProject(event, ctx)
+export default defineFirmRoute({ roles: STAFF, project: true }, async ({ event, ctx, project }) => {
   const file = await exportCsv(ctx, project, idParam(event, 'number'), 'coordinates')
   setResponseHeader(event, 'content-type', 'text/csv; charset=utf-8')
   setResponseHeader(event, 'content-disposition', `attachment; filename="${file.fileName}"`)

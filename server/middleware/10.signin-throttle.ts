@@ -6,7 +6,7 @@ import { throttleState } from '../services/signin'
 export default defineEventHandler(async (event) => {
   const path = event.path.split('?')[0]
   if (event.method !== 'POST' || path !== '/api/auth/callback/credentials') return
-  const ip = getRequestIP(event, { xForwardedFor: false }) ?? 'unknown'
+  const ip = clientIp(event)
   event.node.req.headers['x-tiepoint-client-ip'] = ip
   const body = await readBody(event).catch(() => ({})) as { email?: string }
   const wait = await throttleState(String(body?.email ?? ''), ip)

@@ -1,0 +1,16 @@
+// Sign-off bodies and queries, shared by the API (validation) and the app (forms).
+import { z } from 'zod'
+
+export const signoffCreateSchema = z.object({
+  statement: z.string().trim().min(10, 'is required: at least 10 characters saying what you certify').max(5000),
+  password: z.string().min(1, 'is required: confirm with your password'),
+  stations: z.array(z.string().trim().min(1)).min(1, 'must name at least one station').max(5000).optional(),
+  /** required when the run failed its global test or still has flagged observations */
+  acknowledgeFailedTests: z.boolean().optional(),
+}).strict()
+export type SignoffCreate = z.infer<typeof signoffCreateSchema>
+
+export const signoffRequestSchema = z.object({ note: z.string().trim().max(2000).optional() }).strict()
+export type SignoffRequest = z.infer<typeof signoffRequestSchema>
+
+export const signoffPreviewQuerySchema = z.object({ run: z.coerce.number().int().positive() })
