@@ -16,6 +16,29 @@ const queue = process.env.TIEPOINT_QUEUE || ADJUST_QUEUE
 const log = (...a: unknown[]) => console.error('[tiepoint worker]', ...a)
 const sweepSeconds = Number(process.env.TIEPOINT_SWEEP_SECONDS ?? 30)
 
+/** A lost or refused database connection (server restarting, network), as opposed to a bug. */
+function isConnectionError(e: unknown): boolean {
+  const err = e as { code?: unknown; message?: unknown } | null
+  const code = typeof err?.code === 'string' ? err.code : ''
+  return ['ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', '57P01', '57P02', '57P03'].includes(code) || code.startsWith('08')
+    || /Connection terminated|connection timeout|Client has encountered a connection error/i.test(String(err?.message ?? ''))
+}
+
+// pg-boss 10.4 completes and fails a job without awaiting the promise
+// (manager.js, onFetch): while the database is away that promise rejects
+// with nobody to catch it, and Node ends the process. Such a lost
+// connection is logged and the worker carries on (the sweep puts the run
+// back in the queue once the database is back); anything else still ends the
+// process, and `npm start` starts a new one.
+process.on('unhandledRejection', (e) => {
+  if (isConnectionError(e)) {
+    log('database unavailable:', (e as Error).message)
+    return
+  }
+  log('unexpected error, stopping:', e)
+  process.exit(1)
+})
+
 async function sweep(boss: PgBoss) {
   const r = await sweepStuckRuns(async (name, id) => { await boss.fail(name, id, { reason: 'worker stopped' }) })
   if (r.requeued || r.failed) log(`swept stuck runs: ${r.requeued} queued again, ${r.failed} failed`)
