@@ -45,8 +45,10 @@ export async function requireUser(event: H3Event): Promise<SessionUser> {
   } else {
     // The secret is passed here because nuxt-auth learns it only when its
     // /api/auth handler is first loaded: after an app restart, every session
-    // answered 401 until someone happened to open a sign-in route.
-    const token = await getToken({ event, secret: useRuntimeConfig().authSecret || process.env.AUTH_SECRET }).catch(() => null)
+    // answered 401 until someone happened to open a sign-in route. The same
+    // variables as runtimeConfig.authSecret (NUXT_AUTH_SECRET) and the handler's fallback.
+    const secret = process.env.NUXT_AUTH_SECRET || process.env.AUTH_SECRET
+    const token = await getToken({ event, ...(secret ? { secret } : {}) }).catch(() => null)
     const uid = token && (token as { uid?: unknown }).uid
     if (typeof uid === 'number') userId = uid
   }
