@@ -6,6 +6,8 @@ export interface MeFirm { slug: string; name: string; role: Role }
 export interface Me {
   user: { id: number; email: string; name: string; licenceNumber: string | null; licenceJurisdiction: string | null }
   firms: MeFirm[]
+  /** the development mailbox is on (no SMTP server configured) */
+  devMailbox?: boolean
 }
 
 export const useSessionStore = defineStore('session', () => {

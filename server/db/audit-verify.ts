@@ -10,11 +10,11 @@ export async function main(): Promise<number> {
   const pool = makePool(ownerDatabaseUrl(), 2)
   try {
     const r = await verifyAuditChain(dbOn(pool))
-    for (const p of r.problems.slice(0, 200)) console.log(`firm ${p.firmId}, audit entry ${p.id}: ${p.message}`)
+    for (const p of r.problems.slice(0, 200)) console.log(`${p.firmId === null ? 'person-level events' : `firm ${p.firmId}`}, audit entry ${p.id}: ${p.message}`)
     if (r.problems.length > 200) console.log(`… and ${r.problems.length - 200} more`)
     console.log(r.problems.length
-      ? `audit chain BROKEN: ${r.problems.length} problem(s) in ${r.entries} entries of ${r.firms} firm(s)`
-      : `audit chain intact: ${r.entries} entries in ${r.firms} firm(s)`)
+      ? `audit chain BROKEN: ${r.problems.length} problem(s) in ${r.entries} entries of ${r.firms} chain(s)`
+      : `audit chain intact: ${r.entries} entries in ${r.firms} chain(s)`)
     return r.problems.length ? 1 : 0
   } finally {
     await pool.end()

@@ -16,6 +16,7 @@ import {
   text,
   timestamp,
   uniqueIndex,
+  varchar,
 } from 'drizzle-orm/pg-core'
 
 const bytea = customType<{ data: Buffer; driverData: Buffer }>({
@@ -61,6 +62,8 @@ export const users = pgTable('users', {
   passwordHash: text(),
   licenceNumber: text(),
   licenceJurisdiction: text(),
+  /** raised by a password change or reset: sessions signed with an older version end */
+  sessionVersion: integer().notNull().default(0),
   ...timestamps,
 })
 
@@ -386,9 +389,10 @@ export const downloads = pgTable('downloads', {
   at: timestamp({ withTimezone: true }).notNull().defaultNow(),
 }, (t) => [index('downloads_firm_release').on(t.firmId, t.releaseId)])
 
+/** firm_id null: a person-level event (sign-in, password, tokens, profile), shown on that person's profile. */
 export const auditLog = pgTable('audit_log', {
   id: bigint({ mode: 'number' }).primaryKey().generatedAlwaysAsIdentity(),
-  firmId: firmRef(),
+  firmId: integer().references(() => firms.id, { onDelete: 'cascade' }),
   userId: integer().references(() => users.id, { onDelete: 'set null' }),
   action: text().notNull(),
   entityType: text().notNull(),
@@ -403,17 +407,29 @@ export const auditLog = pgTable('audit_log', {
   prevHash: text(),
   /** SHA-256 of prevHash and this entry's content. */
   rowHash: text(),
-}, (t) => [index('audit_log_firm_at').on(t.firmId, t.at), index('audit_log_firm_id').on(t.firmId, t.id)])
+}, (t) => [index('audit_log_firm_at').on(t.firmId, t.at), index('audit_log_firm_id').on(t.firmId, t.id), index('audit_log_user_at').on(t.userId, t.at)])
 
 /** Development and test mailbox: what the in-process SMTP server received. */
 export const mailboxMessages = pgTable('mailbox_messages', {
   id: id(),
   to: text().notNull(),
+  /** the SMTP envelope's recipients, lower-cased: a person sees a message only when their address is one of these */
+  recipients: text().array().notNull().default(sql`'{}'::text[]`),
   from: text().notNull(),
   subject: text().notNull(),
   text: text().notNull(),
   html: text(),
   receivedAt: timestamp({ withTimezone: true }).notNull().default(sql`now()`),
+})
+
+/**
+ * Sign-in throttle counters, shared by every app process (rate-limiter-flexible's
+ * PostgreSQL store; the table layout is the one that library expects).
+ */
+export const rateLimits = pgTable('rate_limits', {
+  key: varchar({ length: 255 }).primaryKey(),
+  points: integer().notNull().default(0),
+  expire: bigint({ mode: 'number' }),
 })
 
 export type Role = (typeof roleEnum.enumValues)[number]

@@ -15,6 +15,7 @@ import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
 import { checkRelative, describeTolerance, semiMajorAt95, type ToleranceSpec } from './accuracy'
 import { audit } from './audit'
+import { safeCell } from './csv'
 import { notifyRunFailed } from './notifications'
 import { loadRunInputs, RunInputError } from './run-inputs'
 import { ADJUST_QUEUE, jobPolicy, readyQueue, sendAdjustJob, type AdjustJob } from './run-queue'
@@ -151,15 +152,15 @@ export async function getRunStatus(ctx: FirmContext, project: Project, number: n
 // ── export ──────────────────────────────────────────────────────────────────
 
 const csvCell = (v: unknown) => {
-  if (v === null || v === undefined) return ''
-  const s = String(v)
-  return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s
+  const s = safeCell(v)
+  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s
 }
 const csv = (rows: unknown[][]) => rows.map((r) => r.map(csvCell).join(',')).join('\n') + '\n'
 
 export async function exportCsv(ctx: FirmContext, project: Project, number: number, what: 'coordinates' | 'residuals'): Promise<{ fileName: string; text: string }> {
   const run = await findRun(ctx, project, number)
   if (run.status !== 'done' || !run.result) throw new DomainError('conflict', `Run ${number} has no results (${run.status})`)
+  await audit(useDb(), { firmId: ctx.firm.id, userId: ctx.user.id, action: 'adjustment.export', entityType: 'adjustment', entityId: run.id, projectId: project.id, after: { number, what } })
   const r = run.result as unknown as AdjustmentResult
   const u = project.units
   const k = METRES_PER[u]
@@ -262,7 +263,10 @@ async function finishFailed(run: Adjustment, message: string, summary?: Record<s
   const changed = await useDb().update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: message, ...(summary ? { summary } : {}) })
     .where(and(eq(adjustments.firmId, run.firmId), eq(adjustments.id, run.id), sql`${adjustments.status} in ('queued', 'running')`))
     .returning({ id: adjustments.id })
-  if (changed.length) await tellRunFailed(run.id)
+  if (changed.length) {
+    await audit(useDb(), { firmId: run.firmId, userId: null, action: 'adjustment.fail', entityType: 'adjustment', entityId: run.id, projectId: run.projectId, after: { number: run.number, reason: message } })
+    await tellRunFailed(run.id)
+  }
 }
 
 /** The e-mail is a courtesy: a mail server that is down must not change the run's outcome. */
@@ -381,9 +385,11 @@ export async function sweepStuckRuns(failJob: (queue: string, jobId: string) => 
         const where = and(eq(adjustments.firmId, s.firmId), eq(adjustments.id, s.id), eq(adjustments.status, 'running'))
         if (job && (job.state === 'retry' || job.state === 'created')) {
           await db.update(adjustments).set({ status: 'queued', errorText: 'The worker computing this run stopped; the run is queued again' }).where(where)
+          await audit(db, { firmId: s.firmId, userId: null, action: 'adjustment.sweep', entityType: 'adjustment', entityId: s.id, after: { outcome: 'requeued' } })
           requeued++
         } else {
           await db.update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: 'The worker computing this run stopped and no retry is left; start the run again' }).where(where)
+          await audit(db, { firmId: s.firmId, userId: null, action: 'adjustment.sweep', entityType: 'adjustment', entityId: s.id, after: { outcome: 'failed' } })
           failed++
           await tellRunFailed(s.id)
         }

@@ -1,13 +1,14 @@
 // Reading the firm's audit log (owners and licensed surveyors): every upload,
 // edit, exclusion, run, sign-off, release and download, filtered by action,
 // person and date, as JSON pages or one CSV file.
-import { and, desc, eq, gte, like, lt, sql } from 'drizzle-orm'
+import { and, desc, eq, gte, isNull, like, lt, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import Papa from 'papaparse'
+import { safeRows } from './csv'
 import type { AuditQuery } from '../../shared/schemas/audit'
 import { auditLog, projects, users } from '../db/schema'
 import { useDb } from '../db/client'
-import type { FirmContext } from '../utils/guard'
+import type { FirmContext, SessionUser } from '../utils/guard'
 
 
 export interface AuditEntryDto {
@@ -67,9 +68,29 @@ export async function auditCsv(ctx: FirmContext, q: AuditQuery): Promise<string>
     const next = await listAudit(ctx, { ...q, limit: 1000, offset })
     all.push(...next.entries)
   }
-  return Papa.unparse(all.map((e) => ({
+  return Papa.unparse(safeRows(all.map((e) => ({
     at: e.at, action: e.action, user: e.userEmail ?? '', entity_type: e.entityType, entity_id: e.entityId ?? '',
     project_id: e.projectId ?? '', project: e.projectName ?? '', before_sha256: e.beforeHash ?? '', after_sha256: e.afterHash ?? '',
     details: e.after === null || e.after === undefined ? '' : JSON.stringify(e.after),
-  })), { newline: '\r\n' }) + '\r\n'
+  }))), { newline: '\r\n' }) + '\r\n'
+}
+
+export interface PersonEventDto {
+  id: number
+  at: string
+  action: string
+  /** what the event recorded: client address, token name, changed profile fields … (never secrets) */
+  details: unknown
+}
+
+/**
+ * A person's own events that belong to no firm (sign-ins and failed attempts,
+ * password change and reset, API tokens, profile and licence edits, mailbox
+ * reads), newest first, for their profile page.
+ */
+export async function listPersonAudit(user: SessionUser, limit = 100): Promise<PersonEventDto[]> {
+  const rows = await useDb().select().from(auditLog)
+    .where(and(isNull(auditLog.firmId), eq(auditLog.userId, user.id)))
+    .orderBy(desc(auditLog.at), desc(auditLog.id)).limit(limit)
+  return rows.map((a) => ({ id: a.id, at: a.at.toISOString(), action: a.action, details: a.after }))
 }

@@ -1,19 +1,29 @@
 // The audit log: who did what, when, with hashes of the before and after state.
+// `audit()` is the one function that writes a row; everything else (firm
+// events, person-level events) goes through it.
 //
-// Every entry is a link of its firm's hash chain: rowHash = SHA-256 of the
+// Firm events carry the firm. Person-level events — sign-in (success and
+// failure), password change and reset, API tokens, profile and licence
+// edits, development-mailbox reads — belong to no firm: their firm_id is null
+// and they are shown to that person on their profile page, not in any firm's log.
+//
+// Every entry is a link of a hash chain, one per firm and one for the
+// person-level events (firm_id null): rowHash = SHA-256 of the
 // previous entry's rowHash and this entry's content (canonical JSON, object
 // keys sorted), so changing, removing or re-ordering an entry breaks every
-// later link (`npm run audit:verify`). Inserts of one firm are serialised by a
-// transaction-scoped advisory lock, held until the surrounding transaction
+// later link (`npm run audit:verify`). Inserts of one chain are serialised by
+// a transaction-scoped advisory lock, held until the surrounding transaction
 // ends, so two concurrent writers can never link to the same head.
-// This is the one function that writes audit rows.
 import { asc, and, desc, eq, gt, isNull, sql } from 'drizzle-orm'
+import type { SQL } from 'drizzle-orm'
 import { auditLog } from '../db/schema'
 import type { Db, Tx } from '../db/client'
+import { useDb } from '../db/client'
 import { sha256Hex } from './passwords'
 
 export interface AuditEntry {
-  firmId: number
+  /** null for a person-level event */
+  firmId: number | null
   userId: number | null
   action: string
   entityType: string
@@ -23,8 +33,11 @@ export interface AuditEntry {
   after?: unknown
 }
 
-/** Advisory-lock namespace of the audit chain: (NS, firm id). */
+/** Advisory-lock namespace of the audit chains: (NS, firm id), (NS, 0) for person-level events. */
 const AUDIT_LOCK_NS = 7032
+
+/** The rows of one chain: a firm's, or the person-level events'. */
+const chainOf = (firmId: number | null): SQL => (firmId === null ? isNull(auditLog.firmId) : eq(auditLog.firmId, firmId))
 
 
 /** The value as jsonb will give it back: dates as strings, undefined dropped. */
@@ -42,7 +55,7 @@ export function canonicalJson(v: unknown): string {
 const hashOf = (v: unknown) => (v === undefined || v === null ? null : sha256Hex(canonicalJson(v)))
 
 export interface ChainedContent {
-  firmId: number
+  firmId: number | null
   userId: number | null
   action: string
   entityType: string
@@ -61,16 +74,16 @@ export function auditRowHash(prevHash: string | null, r: ChainedContent): string
   ])}`)
 }
 
-async function head(tx: Db | Tx, firmId: number): Promise<string | null> {
+async function head(tx: Db | Tx, firmId: number | null): Promise<string | null> {
   const [last] = await tx.select({ rowHash: auditLog.rowHash }).from(auditLog)
-    .where(eq(auditLog.firmId, firmId)).orderBy(desc(auditLog.id)).limit(1)
+    .where(chainOf(firmId)).orderBy(desc(auditLog.id)).limit(1)
   return last?.rowHash ?? null
 }
 
 export async function audit(db: Db | Tx, e: AuditEntry): Promise<void> {
   // On a transaction this is a savepoint; the advisory lock lasts until the outer transaction ends.
   await db.transaction(async (tx) => {
-    await tx.execute(sql`select pg_advisory_xact_lock(${AUDIT_LOCK_NS}, ${e.firmId})`)
+    await tx.execute(sql`select pg_advisory_xact_lock(${AUDIT_LOCK_NS}, ${e.firmId ?? 0})`)
     const before = asStored(e.before)
     const after = asStored(e.after)
     const content: ChainedContent = {
@@ -91,7 +104,7 @@ export async function audit(db: Db | Tx, e: AuditEntry): Promise<void> {
   })
 }
 
-export interface ChainProblem { firmId: number; id: number; message: string }
+export interface ChainProblem { firmId: number | null; id: number; message: string }
 
 /**
  * Walks every firm's chain in id order and recomputes each link. Finds an
@@ -107,7 +120,7 @@ export async function verifyAuditChain(db: Db | Tx, opts: { batch?: number } = {
     let prev: string | null = null
     let lastId = 0
     for (;;) {
-      const rows = await db.select().from(auditLog).where(and(eq(auditLog.firmId, firmId), gt(auditLog.id, lastId))).orderBy(asc(auditLog.id)).limit(batch)
+      const rows = await db.select().from(auditLog).where(and(chainOf(firmId), gt(auditLog.id, lastId))).orderBy(asc(auditLog.id)).limit(batch)
       for (const r of rows) {
         entries++
         lastId = r.id
@@ -134,8 +147,8 @@ export async function backfillAuditChain(db: Db): Promise<number> {
   let n = 0
   for (const { firmId } of firms) {
     await db.transaction(async (tx) => {
-      await tx.execute(sql`select pg_advisory_xact_lock(${AUDIT_LOCK_NS}, ${firmId})`)
-      const rows = await tx.select().from(auditLog).where(eq(auditLog.firmId, firmId)).orderBy(asc(auditLog.id))
+      await tx.execute(sql`select pg_advisory_xact_lock(${AUDIT_LOCK_NS}, ${firmId ?? 0})`)
+      const rows = await tx.select().from(auditLog).where(chainOf(firmId)).orderBy(asc(auditLog.id))
       let prev: string | null = null
       for (const r of rows) {
         if (r.rowHash === null) {
@@ -150,4 +163,9 @@ export async function backfillAuditChain(db: Db): Promise<number> {
     })
   }
   return n
+}
+
+/** A person-level event (no firm), e.g. 'signin.success', 'password.change', 'token.create'. */
+export function auditPerson(userId: number | null, action: string, after?: unknown, opts: { db?: Db | Tx; before?: unknown } = {}): Promise<void> {
+  return audit(opts.db ?? useDb(), { firmId: null, userId, action, entityType: 'person', entityId: userId, before: opts.before, after })
 }

@@ -6,6 +6,7 @@
 import { existsSync, readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import Papa from 'papaparse'
+import { safeRows } from './csv'
 import proj4 from 'proj4'
 import PDFDocument from 'pdfkit'
 import { XMLBuilder } from 'fast-xml-parser'
@@ -92,7 +93,7 @@ export function buildCsv(input: DeliverableInput): string {
     `# Signed by ${input.signoff.signerName}, licence ${input.signoff.licenceNumber} (${input.signoff.licenceJurisdiction}), ${input.signoff.signedAt.toISOString()}; sign-off SHA-256 ${input.signoff.sha256}`,
     `# ${CAUTION}`,
   ]
-  return `${header.join('\r\n')}\r\n${Papa.unparse(rows, { newline: '\r\n' })}\r\n`
+  return `${header.join('\r\n')}\r\n${Papa.unparse(safeRows(rows), { newline: '\r\n' })}\r\n`
 }
 
 // ── GeoJSON ────────────────────────────────────────────────────────────────

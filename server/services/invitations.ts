@@ -50,7 +50,12 @@ export async function listInvitations(ctx: FirmContext): Promise<InvitationDto[]
   }))
 }
 
-export async function createInvitation(ctx: FirmContext, body: InvitationCreate): Promise<InvitationDto> {
+/**
+ * Creates the invitation and e-mails its link. The answer carries the link
+ * too, this once, so the inviter can pass it on when no mail server is set
+ * up; afterwards only its hash exists.
+ */
+export async function createInvitation(ctx: FirmContext, body: InvitationCreate): Promise<InvitationDto & { link: string }> {
   const db = useDb()
   const [already] = await db.select({ id: memberships.id }).from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
@@ -88,6 +93,7 @@ export async function createInvitation(ctx: FirmContext, body: InvitationCreate)
     return {
       id: inv!.id, email: inv!.email, role: inv!.role, invitedBy: ctx.user.name,
       expiresAt: expiresAt.toISOString(), expired: false, createdAt: inv!.createdAt.toISOString(),
+      link: publicUrl(`/invite/${token}`),
     }
   })
 }
@@ -129,7 +135,7 @@ export async function acceptInvitation(token: string, body: InvitationAccept, ip
   const existing = !!user?.passwordHash
   if (existing) {
     // Goes through the sign-in check so guessing a password here is throttled like sign-in.
-    const ok = await checkCredentials(inv.email, body.password, ip)
+    const ok = await checkCredentials(inv.email, body.password, ip, 'invitation.accept')
     if (!ok) throw new DomainError('invalid', 'That is not the password of your Tiepoint account', [{ field: 'password', message: 'password: does not match your Tiepoint password' }])
   } else if (!body.name) {
     throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'name', message: 'name: is required' }])

@@ -6,7 +6,27 @@ import type { Transporter } from 'nodemailer'
 
 let transport: Transporter | undefined
 
-export const devMailboxEnabled = () => !process.env.SMTP_URL
+const LOOPBACK = new Set(['127.0.0.1', '::1', 'localhost', '[::1]'])
+/** Where the app listens (as the start script and Nitro read it). */
+export const listenHost = () => process.env.NITRO_HOST || process.env.HOST || ''
+export const listensOnLoopback = () => LOOPBACK.has(listenHost().toLowerCase()) || /^127\./.test(listenHost())
+
+/**
+ * The development mailbox (an in-process SMTP server whose messages each
+ * person reads at /mailbox) runs only without SMTP_URL and only when the app
+ * listens on loopback, where nobody else can reach it, or when
+ * TIEPOINT_DEV_MAILBOX=1 asks for it explicitly (a shared demo).
+ */
+export const devMailboxEnabled = () =>
+  !process.env.SMTP_URL && (listensOnLoopback() || process.env.TIEPOINT_DEV_MAILBOX === '1')
+
+/** Why the app must not start as configured, or null. */
+export function mailConfigProblem(): string | null {
+  if (process.env.SMTP_URL || listensOnLoopback() || process.env.TIEPOINT_DEV_MAILBOX === '1') return null
+  return `Tiepoint listens on ${listenHost() || 'every interface'} but SMTP_URL is not set: invitation and password-reset e-mails `
+    + 'would have nowhere to go. Set SMTP_URL to your mail server, listen on 127.0.0.1, or set TIEPOINT_DEV_MAILBOX=1 '
+    + 'for a demo where each person reads their own mail in the development mailbox.'
+}
 export const devSmtpPort = () => Number(process.env.TIEPOINT_SMTP_PORT ?? 2525)
 
 function useTransport(): Transporter {

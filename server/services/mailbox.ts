@@ -1,12 +1,14 @@
 // The development mailbox: what the in-process SMTP server received
-// (server/plugins/dev-smtp.ts). Only when no real SMTP server is configured.
-// Messages carry no firm, so an owner sees only those addressed to people of
-// their own firm (members and invited addresses).
-import { and, desc, eq, sql } from 'drizzle-orm'
-import { invitations, mailboxMessages, memberships, users } from '../db/schema'
+// (server/plugins/dev-smtp.ts), only while no real SMTP server is configured.
+// Each signed-in person sees only the messages whose envelope recipients
+// include their own address, compared whole (no substring or pattern match):
+// a message to someone else — an invitation, a reset link — is never shown.
+import { desc, sql } from 'drizzle-orm'
+import { mailboxMessages } from '../db/schema'
 import { useDb } from '../db/client'
-import type { FirmContext } from '../utils/guard'
-import { notFound } from '../utils/errors'
+import { DomainError } from '../utils/errors'
+import type { SessionUser } from '../utils/guard'
+import { auditPerson } from './audit'
 import { devMailboxEnabled } from './mail'
 
 export interface MailboxMessageDto {
@@ -18,15 +20,12 @@ export interface MailboxMessageDto {
   receivedAt: string
 }
 
-export async function listMailbox(ctx: FirmContext, limit = 100): Promise<MailboxMessageDto[]> {
-  if (!devMailboxEnabled()) throw notFound('The development mailbox is off: e-mail goes to the configured SMTP server')
-  const db = useDb()
-  const memberAddress = db.select({ one: sql`1` }).from(memberships).innerJoin(users, eq(users.id, memberships.userId))
-    .where(and(eq(memberships.firmId, ctx.firm.id), sql`position(lower(${users.email}) in lower(${mailboxMessages.to})) > 0`))
-  const invitedAddress = db.select({ one: sql`1` }).from(invitations)
-    .where(and(eq(invitations.firmId, ctx.firm.id), sql`position(lower(${invitations.email}) in lower(${mailboxMessages.to})) > 0`))
-  const rows = await db.select().from(mailboxMessages)
-    .where(sql`exists (${memberAddress}) or exists (${invitedAddress})`)
+export async function listMailbox(user: SessionUser, limit = 100): Promise<MailboxMessageDto[]> {
+  if (!devMailboxEnabled()) throw new DomainError('unavailable', 'The development mailbox is off: e-mail goes to the configured SMTP server')
+  const address = user.email.trim().toLowerCase()
+  const rows = await useDb().select().from(mailboxMessages)
+    .where(sql`${address} = any(${mailboxMessages.recipients})`)
     .orderBy(desc(mailboxMessages.receivedAt), desc(mailboxMessages.id)).limit(limit)
+  await auditPerson(user.id, 'mailbox.read', { count: rows.length, ids: rows.slice(0, 20).map((m) => m.id) })
   return rows.map((m) => ({ id: m.id, to: m.to, from: m.from, subject: m.subject, text: m.text, receivedAt: m.receivedAt.toISOString() }))
 }

@@ -378,6 +378,7 @@ export async function getObservationSetFile(ctx: FirmContext, project: Project, 
     .from(observationSets)
     .where(and(eq(observationSets.firmId, ctx.firm.id), eq(observationSets.projectId, project.id), eq(observationSets.id, setId))).limit(1)
   if (!row) throw notFound('No such observation set')
+  await audit(useDb(), { firmId: ctx.firm.id, userId: ctx.user.id, action: 'observation_set.download', entityType: 'observation_set', entityId: setId, projectId: project.id, after: { sha256: row.sha256, role: ctx.role } })
   const contentType = row.format === 'landxml' ? 'application/xml' : 'text/csv; charset=utf-8'
   const ext = row.format === 'landxml' ? '.xml' : '.csv'
   const fileName = /\.[a-z0-9]{1,8}$/i.test(row.name) ? row.name : `${row.name}${ext}`

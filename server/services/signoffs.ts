@@ -18,7 +18,8 @@ import { checkAccuracy, defaultSignStations } from './accuracy-check'
 import type { AccuracyCheck } from './accuracy-check'
 import { audit } from './audit'
 import { notifySignoffCompleted, notifySignoffRequested } from './notifications'
-import { sha256Hex, verifyPassword } from './passwords'
+import { sha256Hex } from './passwords'
+import { checkCredentials } from './signin'
 import { RunInputError, loadRunInputs } from './run-inputs'
 import { getToleranceProfile } from './tolerance'
 
@@ -194,7 +195,8 @@ function signoffDto(s: Signoff, runNumber: number, state: { superseded: boolean;
 /** Advisory-lock namespace: (NS, run id) while a sign-off of that run is written. */
 const SIGNOFF_LOCK_NS = 7033
 
-export async function createSignoff(ctx: FirmContext, project: Project, runNumber: number, body: SignoffCreate): Promise<SignoffDto> {
+/** Signing: the signer confirms their password, checked (and throttled) like a sign-in. */
+export async function createSignoff(ctx: FirmContext, project: Project, runNumber: number, body: SignoffCreate, ip = 'unknown'): Promise<SignoffDto> {
   const db = useDb()
   const [signer] = await db.select().from(users).where(eq(users.id, ctx.user.id)).limit(1)
   if (!signer?.licenceNumber?.trim() || !signer.licenceJurisdiction?.trim()) {
@@ -203,7 +205,7 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
       ...(!signer?.licenceJurisdiction?.trim() ? [{ field: 'licenceJurisdiction', message: 'licenceJurisdiction: is required on your profile to sign off' }] : []),
     ])
   }
-  if (!(await verifyPassword(body.password, signer.passwordHash))) {
+  if (!(await checkCredentials(signer.email, body.password, ip, 'signoff'))) {
     throw new DomainError('invalid', 'The password is not correct; nothing was signed', [{ field: 'password', message: 'password: is not correct' }])
   }
   const run = await findRun(ctx.firm.id, project.id, runNumber)

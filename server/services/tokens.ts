@@ -6,6 +6,7 @@ import { apiTokens } from '../db/schema'
 import type { User } from '../db/schema'
 import { useDb } from '../db/client'
 import { DomainError, notFound } from '../utils/errors'
+import { auditPerson } from './audit'
 import { newToken } from './passwords'
 
 export const MAX_ACTIVE_TOKENS = 20
@@ -39,6 +40,7 @@ export async function createToken(userId: User['id'], name: string): Promise<Tok
     if (active.length >= MAX_ACTIVE_TOKENS) throw new DomainError('conflict', `You already have ${MAX_ACTIVE_TOKENS} active tokens; revoke one you no longer use first`)
     const { token, hash, shown } = newToken('tp')
     const [row] = await tx.insert(apiTokens).values({ userId, name, tokenHash: hash, prefix: shown }).returning()
+    await auditPerson(userId, 'token.create', { tokenId: row!.id, name, prefix: shown }, { db: tx })
     return { ...tokenDto(row!), token }
   })
 }
@@ -47,7 +49,10 @@ export async function revokeToken(userId: User['id'], tokenId: number): Promise<
   const db = useDb()
   const [row] = await db.update(apiTokens).set({ revokedAt: new Date() })
     .where(and(eq(apiTokens.userId, userId), eq(apiTokens.id, tokenId), isNull(apiTokens.revokedAt))).returning()
-  if (row) return tokenDto(row)
+  if (row) {
+    await auditPerson(userId, 'token.revoke', { tokenId: row.id, name: row.name, prefix: row.prefix })
+    return tokenDto(row)
+  }
   // Revoking twice is harmless; someone else's token is simply not found.
   const [existing] = await db.select().from(apiTokens).where(and(eq(apiTokens.userId, userId), eq(apiTokens.id, tokenId))).limit(1)
   if (!existing) throw notFound('No such token')

@@ -5,6 +5,7 @@
 // Multipart uploads are not read here: server/utils/upload.ts streams them
 // with their own, larger cap.
 import type { H3Event } from 'h3'
+import { getRequestHeader } from 'h3'
 import { DomainError, invalid, tooLarge } from './errors'
 
 export const JSON_BODY_LIMIT = 1024 * 1024
@@ -54,9 +55,12 @@ export async function readCappedBody(event: H3Event, limit = JSON_BODY_LIMIT): P
   return body
 }
 
-/** Stop reading an over-large body: throw the rest away and close the connection after the answer. */
+/**
+ * Stop keeping an over-large body: the rest is read and thrown away, so the
+ * client, still sending, receives the 413 instead of a broken connection.
+ * Nothing is stored; the server's request timeout bounds how long this lasts.
+ */
 function discard(event: H3Event) {
-  setResponseHeader(event, 'connection', 'close')
   event.node.req.resume()
 }
 

@@ -10,6 +10,9 @@ import { apiTokens, firms, memberships, projectAccess, projectCrews, crewMembers
 import type { Firm, Project } from '../db/schema'
 import { sha256Hex } from '../services/passwords'
 import { DomainError, forbidden, notFound, unauthorized } from './errors'
+import { idParam } from './api'
+import { sessionEnded } from './session'
+import type { SessionClaims } from './session'
 
 export interface SessionUser {
   id: number
@@ -26,12 +29,17 @@ export interface FirmContext {
   role: Role
 }
 
-/** The signed-in person (session cookie or personal API token), or 401. */
+/**
+ * The signed-in person (session cookie or personal API token), or 401. A
+ * session ends when the person's session version moved on (password changed
+ * or reset) or 12 hours after sign-in.
+ */
 export async function requireUser(event: H3Event): Promise<SessionUser> {
   const cached = event.context.tiepointUser as SessionUser | undefined
   if (cached) return cached
   const db = useDb()
   let userId: number | undefined
+  let claims: SessionClaims | undefined
   let via: SessionUser['via'] = 'session'
   const header = getRequestHeader(event, 'authorization')
   if (header?.toLowerCase().startsWith('bearer ')) {
@@ -49,12 +57,16 @@ export async function requireUser(event: H3Event): Promise<SessionUser> {
     // variables as runtimeConfig.authSecret (NUXT_AUTH_SECRET) and the handler's fallback.
     const secret = process.env.NUXT_AUTH_SECRET || process.env.AUTH_SECRET
     const token = await getToken({ event, ...(secret ? { secret } : {}) }).catch(() => null)
-    const uid = token && (token as { uid?: unknown }).uid
-    if (typeof uid === 'number') userId = uid
+    claims = (token ?? undefined) as SessionClaims | undefined
+    if (typeof claims?.uid === 'number') userId = claims.uid
   }
   if (!userId) throw unauthorized()
   const [u] = await db.select().from(users).where(eq(users.id, userId)).limit(1)
   if (!u) throw unauthorized()
+  if (claims) {
+    const ended = sessionEnded(claims, u.sessionVersion)
+    if (ended) throw unauthorized(ended)
+  }
   const user: SessionUser = { id: u.id, email: u.email, name: u.name, licenceNumber: u.licenceNumber, licenceJurisdiction: u.licenceJurisdiction, via }
   event.context.tiepointUser = user
   return user

@@ -2,7 +2,11 @@
 // state-changing request came from the app's own pages.
 import type { H3Event } from 'h3'
 import { isIP } from 'node:net'
+import { getRequestHeader } from 'h3'
 import { forbidden } from './errors'
+
+/** The app is served over https (its public URL says so): HSTS and Secure cookies. */
+export const servedOverHttps = () => /^https:/i.test(process.env.TIEPOINT_PUBLIC_URL || process.env.AUTH_ORIGIN || '')
 
 const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS'])
 export const isStateChange = (event: H3Event) => !SAFE_METHODS.has(event.method.toUpperCase())
@@ -27,10 +31,12 @@ function ownOrigins(event: H3Event): Set<string> {
  * origin: the Origin header when the browser sent one, else Sec-Fetch-Site.
  * With neither, a cookie-authenticated change is refused (every current
  * browser sends Origin on POST, PATCH and DELETE). Requests with a bearer
- * token carry no ambient credential and are not subject to this rule.
+ * token carry no ambient credential and are not subject to this rule. Routes
+ * without sign-in still refuse a browser request from another site.
  */
-export function requireSameOrigin(event: H3Event, viaCookie: boolean): void {
-  if (!isStateChange(event)) return
+export function requireSameOrigin(event: H3Event, via: 'session' | 'token' | 'public'): void {
+  if (!isStateChange(event) || via === 'token') return
+  const viaCookie = via === 'session'
   const origin = getRequestHeader(event, 'origin')
   const site = getRequestHeader(event, 'sec-fetch-site')
   if (origin && origin !== 'null') {

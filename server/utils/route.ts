@@ -118,7 +118,7 @@ export function defineFirmRoute<T, B extends Schema | undefined = undefined, Q e
       ctx = await requireFirmMember(event, opts.roles ?? [])
     }
     if (opts.session) requireBrowserSession(ctx.user, 'This')
-    requireSameOrigin(event, ctx.user.via === 'session')
+    requireSameOrigin(event, ctx.user.via)
     const { body, query } = await readInputs(event, opts)
     return handler({ event, ctx, user: ctx.user, project: project as Project, body, query })
   })
@@ -131,7 +131,7 @@ export function defineUserRoute<T, B extends Schema | undefined = undefined, Q e
   return wrap(opts.status, async (event) => {
     const user = await requireUser(event)
     if (opts.session) requireBrowserSession(user, 'This')
-    requireSameOrigin(event, user.via === 'session')
+    requireSameOrigin(event, user.via)
     const { body, query } = await readInputs(event, opts)
     return handler({ event, user, body, query })
   })
@@ -142,7 +142,7 @@ export function definePublicRoute<T, B extends Schema | undefined = undefined, Q
   handler: (input: PublicInput<B, Q>) => Promise<T> | T,
 ) {
   return wrap(opts.status, async (event) => {
-    requireSameOrigin(event, false)
+    requireSameOrigin(event, 'public')
     const { body, query } = await readInputs(event, opts)
     return handler({ event, body, query })
   })

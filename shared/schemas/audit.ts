@@ -10,6 +10,6 @@ export const auditQuerySchema = z.object({
   to: day.optional(),
   format: z.enum(['json', 'csv']).default('json'),
   limit: z.coerce.number().int().min(1).max(1000).default(200),
-  offset: z.coerce.number().int().min(0).default(0),
+  offset: z.coerce.number().int().min(0).max(10_000_000, 'is beyond the end of the log').default(0),
 })
 export type AuditQuery = z.infer<typeof auditQuerySchema>

@@ -3,8 +3,9 @@
 // Station coordinates travel in metres; the app converts to and from the
 // project's display units at its edge.
 import { z } from 'zod'
+import { nameText } from './text'
 
-const name = z.string().trim().min(1, 'is required').max(100, 'is longer than 100 characters')
+const name = nameText(100)
 const metres = z.number().finite().gt(-1e8, 'is too large for a coordinate').lt(1e8, 'is too large for a coordinate')
 const sd = z.number().finite().positive('must be positive (leave it empty to hold the value fixed)').max(1000, 'is implausibly large (metres)')
 
@@ -19,7 +20,7 @@ export const observationQuerySchema = z.object({
   excluded: z.enum(['true', 'false']).optional(),
   sort: z.enum(['line', 'kind', 'at', 'from', 'to', 'value', 'excluded', 'set']).default('line'),
   dir: z.enum(['asc', 'desc']).default('asc'),
-  page: z.coerce.number().int().min(1).default(1),
+  page: z.coerce.number().int().min(1).max(100_000, 'is beyond the last page').default(1),
   pageSize: z.coerce.number().int().min(1).max(500).default(50),
 })
 export type ObservationQuery = z.infer<typeof observationQuerySchema>
@@ -80,7 +81,7 @@ export type StationCreate = z.infer<typeof stationCreateSchema>
 export type StationUpdate = z.infer<typeof stationUpdateSchema>
 
 export const instrumentSchema = z.object({
-  name: z.string().trim().min(1, 'is required').max(120, 'is longer than 120 characters'),
+  name: nameText(120),
   distanceMm: z.number().finite().min(0).max(1000),
   distancePpm: z.number().finite().min(0).max(1000),
   directionArcsec: z.number().finite().min(0).max(3600),
@@ -94,7 +95,7 @@ export type InstrumentBody = z.infer<typeof instrumentSchema>
 export type InstrumentUpdate = z.infer<typeof instrumentUpdateSchema>
 
 export const crewSchema = z.object({
-  name: z.string().trim().min(1, 'is required').max(120, 'is longer than 120 characters'),
+  name: nameText(120),
   memberIds: z.array(z.number().int().positive()).max(200).optional(),
 }).strict()
 export const crewUpdateSchema = crewSchema.partial().strict()

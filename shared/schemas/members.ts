@@ -2,6 +2,7 @@
 // and the app (forms). Messages follow the field name ("email: is not ...").
 import { z } from 'zod'
 import { ROLES } from '../roles'
+import { hasNoControlChars } from './text'
 
 // Missing fields say "is required" rather than zod's type wording.
 const required = (otherwise: string) => ({
@@ -25,6 +26,7 @@ export const emailSchema = z.string(required('must be text')).trim().toLowerCase
 export const roleSchema = z.enum(ROLES, required(`must be one of ${ROLES.join(', ')}`))
 
 export const personNameSchema = z.string(required('must be text')).trim().min(1, 'is required').max(120, 'is longer than 120 characters')
+  .refine(hasNoControlChars, { message: 'must not contain control characters (tabs, line breaks …)' })
 
 export const memberUpdateSchema = z.object({ role: roleSchema }).strict()
 

@@ -1,5 +1,6 @@
 // Project bodies, shared by the API (validation) and the app (forms).
 import { z } from 'zod'
+import { nameText } from './text'
 import { findCrs } from '../crs'
 
 export const crsSchema = z.string().trim().refine((v) => v === 'local' || !!findCrs(v), {
@@ -7,7 +8,7 @@ export const crsSchema = z.string().trim().refine((v) => v === 'local' || !!find
 })
 
 export const projectCreateSchema = z.object({
-  name: z.string().trim().min(1, 'is required').max(120, 'is longer than 120 characters'),
+  name: nameText(120),
   crs: crsSchema,
   units: z.enum(['m', 'ft', 'usft']),
   description: z.string().max(2000, 'is longer than 2000 characters').optional(),

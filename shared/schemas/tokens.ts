@@ -1,8 +1,9 @@
 // Personal API token bodies.
 import { z } from 'zod'
+import { nameText } from './text'
 
 export const tokenCreateSchema = z.object({
-  name: z.string().trim().min(1, 'is required').max(80, 'is longer than 80 characters'),
+  name: nameText(80),
 }).strict()
 
 export type TokenCreate = z.infer<typeof tokenCreateSchema>

@@ -1,17 +1,18 @@
 // Tolerance profiles (accuracy standards as data), shared by the API and the app.
 import { z } from 'zod'
+import { nameText } from './text'
 
 export const toleranceCreateSchema = z.discriminatedUnion('kind', [
   z.object({
     kind: z.enum(['relative_ppm', 'custom']),
-    name: z.string().trim().min(1, 'is required').max(120),
+    name: nameText(120),
     mm: z.number().min(0, 'must be 0 or more').max(10_000),
     ppm: z.number().min(0, 'must be 0 or more').max(100_000),
     source: z.string().trim().min(1, 'is required: say where the rule comes from').max(500),
   }).strict(),
   z.object({
     kind: z.literal('fgdc_95'),
-    name: z.string().trim().min(1, 'is required').max(120),
+    name: nameText(120),
     thresholdMm: z.number().positive('must be more than 0').max(100_000),
     source: z.string().trim().min(1, 'is required: say where the threshold comes from').max(500),
   }).strict(),

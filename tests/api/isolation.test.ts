@@ -70,7 +70,6 @@ export const ROUTES: RouteRow[] = [
   { method: 'GET', path: '/api/firms/:firm/invitations' },
   { method: 'POST', path: '/api/firms/:firm/invitations', body: () => ({ email: `${MARK}-invite@tiepoint.test`, role: 'client' }) },
   { method: 'DELETE', path: '/api/firms/:firm/invitations/:invitation' },
-  { method: 'GET', path: '/api/firms/:firm/mailbox' },
   { method: 'GET', path: '/api/firms/:firm/members' },
   { method: 'PATCH', path: '/api/firms/:firm/members/:member', body: () => ({ role: 'client' }) },
   { method: 'DELETE', path: '/api/firms/:firm/members/:member' },

@@ -69,7 +69,6 @@ describe('roles that may not act get 403', () => {
       expect((await c.patch(`/api/firms/${DEMO.firm}/members/${crewMember.id}`, { role: 'owner' })).status).toBe(403)
       expect((await c.delete(`/api/firms/${DEMO.firm}/members/${crewMember.id}`)).status).toBe(403)
       expect((await c.post(`/api/firms/${DEMO.firm}/invitations`, { email: `x-${stamp()}@tiepoint.test`, role: 'owner' })).status).toBe(403)
-      expect((await c.get(`/api/firms/${DEMO.firm}/mailbox`)).status).toBe(403)
     }
     const [row] = await useDb().select().from(memberships).where(eq(memberships.id, crewMember.id))
     expect(row!.role).toBe('field_crew')
@@ -197,22 +196,24 @@ describe('changing and removing members', () => {
     const secondRow = members.find((m) => m.email === email)!
     // The second owner demotes themself (allowed: another owner remains), then cannot act as owner.
     expect((await second.patch(`/api/firms/${DEMO.firm}/members/${secondRow.id}`, { role: 'licensed_surveyor' })).status).toBe(200)
-    expect((await second.get(`/api/firms/${DEMO.firm}/mailbox`)).status).toBe(403)
+    expect((await second.get(`/api/firms/${DEMO.firm}/invitations`)).status).toBe(403)
     expect((await owner.delete(`/api/firms/${DEMO.firm}/members/${secondRow.id}`)).status).toBe(204)
   })
 })
 
 describe('development mailbox', () => {
-  it('shows the firm owner the mail sent to the firm’s people, and not another firm’s', async () => {
+  it('shows the invitee the invitation sent to them, and neither the inviting owner nor another firm', async () => {
     const email = `mailbox-${stamp()}@tiepoint.test`
     await invite(email, 'client')
-    const box = await owner.get(`/api/firms/${DEMO.firm}/mailbox`)
+    // the owner's own mailbox holds no mail addressed to someone else
+    const box = await owner.get('/api/me/mailbox')
     expect(box.status).toBe(200)
-    const msg = box.body.find((m: { to: string }) => m.to.includes(email))
-    expect(msg.subject).toMatch(/invited you to Larchmere Survey Co\./)
-    expect(msg.text).toMatch(/\/invite\//)
-    const other = await (await as(DEMO.other)).get(`/api/firms/${DEMO.otherFirm}/mailbox`)
+    expect(box.body.some((m: { to: string }) => m.to.includes(email))).toBe(false)
+    const other = await (await as(DEMO.other)).get('/api/me/mailbox')
     expect(other.status).toBe(200)
     expect(other.body.some((m: { to: string }) => m.to.includes(email))).toBe(false)
+  })
+  it('the old firm-wide mailbox route is gone', async () => {
+    expect((await owner.get(`/api/firms/${DEMO.firm}/mailbox`)).status).toBe(404)
   })
 })

@@ -184,7 +184,7 @@ describe('what a client may read', () => {
     expect((await who.client.get(`${P(unassigned.projectId)}/releases`)).status).toBe(404)
   })
   const closed = [
-    '/members', '/invitations', '/crews', '/instruments', '/tolerance-profiles', '/audit', '/mailbox',
+    '/members', '/invitations', '/crews', '/instruments', '/tolerance-profiles', '/audit',
     ':p/stations', ':p/observations', ':p/observation-sets', ':p/adjustments', ':p/adjustments/:n', ':p/adjustments/:n/status',
     ':p/adjustments/:n/export/coordinates.csv', ':p/adjustments/:n/export/residuals.csv', ':p/signoffs', ':p/signoffs/candidates',
     ':p/signoffs/preview?run=:n', ':p/crews', ':p/access', ':p/observation-sets/:set/file',

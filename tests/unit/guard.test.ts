@@ -9,8 +9,8 @@ import type { SQL } from 'drizzle-orm'
 import { PgDialect } from 'drizzle-orm/pg-core'
 import { sha256Hex } from '../../server/services/passwords'
 
-const session = { uid: undefined as number | undefined }
-vi.mock('#auth', () => ({ getToken: async () => (session.uid ? { uid: session.uid } : null) }))
+const session = { uid: undefined as number | undefined, sv: 0, sat: 0 }
+vi.mock('#auth', () => ({ getToken: async () => (session.uid ? { uid: session.uid, sv: session.sv, sat: session.sat } : null) }))
 
 /** A stand-in for Drizzle: every query awaits the next scripted result; WHERE clauses are kept as SQL text + params. */
 function scriptedDb(results: unknown[][]) {
@@ -36,7 +36,7 @@ const fakeEvent = (params: Record<string, string> = { firm: 'larchmere' }, heade
   ({ context: {}, headers, params })
 
 const firm = { id: 7, slug: 'larchmere', name: 'Larchmere Survey Co.' }
-const userRow = { id: 42, email: 'p@tiepoint.test', name: 'P', licenceNumber: null, licenceJurisdiction: null, passwordHash: 'x' }
+const userRow = { id: 42, email: 'p@tiepoint.test', name: 'P', licenceNumber: null, licenceJurisdiction: null, passwordHash: 'x', sessionVersion: 0 }
 
 async function loadGuard(results: unknown[][]) {
   const { db, seen, wheres } = scriptedDb(results)
@@ -56,7 +56,7 @@ async function statusOf(p: Promise<unknown>): Promise<number> {
   }
 }
 
-beforeEach(() => { session.uid = undefined })
+beforeEach(() => { session.uid = undefined; session.sv = 0; session.sat = Math.floor(Date.now() / 1000) - 60 })
 afterEach(() => { vi.unstubAllGlobals() })
 
 describe('requireUser', () => {
@@ -70,6 +70,22 @@ describe('requireUser', () => {
     const { guard } = await loadGuard([[userRow]])
     const u = await guard.requireUser(fakeEvent() as never)
     expect(u).toMatchObject({ id: 42, via: 'session' })
+  })
+
+  it('ends a session signed with an older session version (password changed or reset)', async () => {
+    session.uid = 42
+    const { guard } = await loadGuard([[{ ...userRow, sessionVersion: 1 }]])
+    expect(await statusOf(guard.requireUser(fakeEvent() as never))).toBe(401)
+  })
+
+  it('ends a session 12 hours after sign-in, not before', async () => {
+    session.uid = 42
+    session.sat = Math.floor(Date.now() / 1000) - 12 * 3600 - 30
+    const late = await loadGuard([[userRow]])
+    expect(await statusOf(late.guard.requireUser(fakeEvent() as never))).toBe(401)
+    session.sat = Math.floor(Date.now() / 1000) - 12 * 3600 + 30
+    const inTime = await loadGuard([[userRow]])
+    expect(await statusOf(inTime.guard.requireUser(fakeEvent() as never))).toBe(200)
   })
 
   it('accepts a bearer token by its SHA-256 and records its use', async () => {

@@ -136,6 +136,8 @@ function read(input: string): ReadResult {
     parseAttributeValue: false,
     trimValues: true,
     captureMetaData: true,
+    // No entity expansion: a DOCTYPE cannot define entities that blow up memory ("billion laughs") or pull in text.
+    processEntities: false,
   })
   // The parser's tree is dropped as soon as it is converted, to keep peak
   // memory of a large upload down.
