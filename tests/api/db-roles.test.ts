@@ -4,11 +4,11 @@
 // (server/db/audit-verify.ts) names an entry changed behind the app's back.
 import { spawn } from 'node:child_process'
 import { afterAll, describe, expect, it } from 'vitest'
-import { eq } from 'drizzle-orm'
+import { eq, isNull } from 'drizzle-orm'
 import pg from 'pg'
 import { closeDb, dbOn, makePool, useDb, usePool } from '../../server/db/client'
 import { auditLog, firms } from '../../server/db/schema'
-import { audit, verifyAuditChain } from '../../server/services/audit'
+import { audit, auditPerson, verifyAuditChain } from '../../server/services/audit'
 import { DEMO } from '../support/http'
 
 const ownerUrl = process.env.DATABASE_OWNER_URL!
@@ -100,6 +100,14 @@ describe('the audit hash chain', () => {
     const v = await verifyAuditChain(useDb())
     expect(v.problems).toEqual([])
     expect(v.entries).toBeGreaterThanOrEqual(20)
+  })
+
+  it('person-level events (no firm) form a chain of their own', async () => {
+    await Promise.all(Array.from({ length: 8 }, (_, i) => auditPerson(null, 'test.person', { i })))
+    const rows = await useDb().select().from(auditLog).where(isNull(auditLog.firmId)).orderBy(auditLog.id)
+    expect(rows.length).toBeGreaterThanOrEqual(8)
+    for (let i = 1; i < rows.length; i++) expect(rows[i]!.prevHash).toBe(rows[i - 1]!.rowHash)
+    expect((await verifyAuditChain(useDb())).problems).toEqual([])
   })
 
   it('finds an entry whose content was changed, and one that was removed', async () => {
