@@ -59,13 +59,17 @@ async function main() {
       const csv = `kind,at,from,to,value,unit,sigma,hi,ht,set,length,note\nhorizontal_distance,CP1,,LB${uploadNo % 97},${(100 + uploadNo / 1000).toFixed(4)},m,2,,,,,load ${process.pid}-${uploadNo}\n`
       return `--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="load-${uploadNo}.csv"\r\nContent-Type: text/csv\r\n\r\n${csv}\r\n--${boundary}--\r\n`
     }
-    const reportReq = { method: 'GET' as const, path: `${runs}/${q.body.number}` }
+    const byKind: Record<string, Record<number, number>> = { report: {}, page: {}, upload: {} }
+    const count = (kind: string) => (status: number) => { byKind[kind]![status] = (byKind[kind]![status] ?? 0) + 1 }
+    // every request goes through setupRequest: autocannon 8 keeps the connection's
+    // cookie (setupClient → setHeaders) only on requests built that way
+    const reportReq = { method: 'GET' as const, path: `${runs}/${q.body.number}`, onResponse: count('report'), setupRequest: (req: autocannon.Request) => ({ ...req }) }
     const pageReq = {
-      method: 'GET' as const, path: '/',
+      method: 'GET' as const, path: '/', onResponse: count('page'),
       setupRequest: (req: autocannon.Request) => ({ ...req, path: `/api/firms/${DEMO.firm}/projects/${report.projectId}/observations?page=${1 + Math.floor(Math.random() * pages)}&pageSize=50` }),
     }
     const uploadReq = {
-      method: 'POST' as const, path: `/api/firms/${DEMO.firm}/projects/${uploads.projectId}/observation-sets`,
+      method: 'POST' as const, onResponse: count('upload'), path: `/api/firms/${DEMO.firm}/projects/${uploads.projectId}/observation-sets`,
       setupRequest: (req: autocannon.Request) => ({ ...req, headers: { ...req.headers, 'content-type': `multipart/form-data; boundary=${boundary}` }, body: uploadBody() }),
     }
 
@@ -88,6 +92,7 @@ async function main() {
     const codes = Object.entries(r.statusCodeStats ?? {}).map(([k, v]) => `${k}: ${(v as { count: number }).count}`).join(', ')
     console.log(`  requests: ${r.requests.total} (${r.requests.average.toFixed(1)} per s), uploads stored: ${uploadNo}`)
     console.log(`  errors: ${r.errors}, timeouts: ${r.timeouts}, non-2xx answers: ${r.non2xx} (0 expected); status codes: ${codes}`)
+    console.log(`  status codes by kind: ${Object.entries(byKind).map(([k, v]) => `${k} ${JSON.stringify(v)}`).join(', ')}`)
     console.log(`  latency: p50 ${quantile(latencies, 0.5).toFixed(0)} ms, p95 ${quantile(latencies, 0.95).toFixed(0)} ms, p99 ${quantile(latencies, 0.99).toFixed(0)} ms, max ${latencies.at(-1)?.toFixed(0)} ms`)
     console.log(`  machine load average (1 min) before ${loadBefore[0]!.toFixed(2)}, after ${loadAfter[0]!.toFixed(2)} (shared machine)`)
   } finally {
