@@ -9,6 +9,10 @@ export interface ProjectView {
   angleFormat: 'dms' | 'gon'
   status: 'collecting' | 'adjusted' | 'signed' | 'released'
   toleranceProfileId: number | null
+  geoidSeparationM: number
+  refractionK: number
+  refractionSigmaK: number
+  projectHeightM: number | null
   createdAt: string
   updatedAt: string
 }

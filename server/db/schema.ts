@@ -3,6 +3,7 @@
 // (drizzle `casing: 'snake_case'`). Every firm-owned table carries firm_id and
 // its indexes start with it: every query filters by the firm.
 import { sql } from 'drizzle-orm'
+import { OBSERVATION_KINDS } from '../engine/models/registry'
 import {
   bigint,
   boolean,
@@ -36,9 +37,8 @@ export const angleFormatEnum = pgEnum('angle_format', ['dms', 'gon'])
 export const projectStatusEnum = pgEnum('project_status', ['collecting', 'adjusted', 'signed', 'released'])
 export const stationKindEnum = pgEnum('station_kind', ['control', 'new'])
 export const fileFormatEnum = pgEnum('file_format', ['csv', 'landxml', 'manual'])
-export const observationKindEnum = pgEnum('observation_kind', [
-  'direction', 'angle', 'zenith', 'slope_distance', 'horizontal_distance', 'azimuth', 'height_difference',
-])
+// the observation kinds come from the engine's model registry (one model file per kind)
+export const observationKindEnum = pgEnum('observation_kind', OBSERVATION_KINDS)
 export const runStatusEnum = pgEnum('run_status', ['queued', 'running', 'done', 'failed'])
 export const toleranceKindEnum = pgEnum('tolerance_kind', ['relative_ppm', 'fgdc_95', 'custom'])
 export const deliverableEnum = pgEnum('deliverable', ['csv', 'geojson', 'landxml', 'pdf'])
@@ -169,6 +169,13 @@ export const projects = pgTable('projects', {
   angleFormat: angleFormatEnum().notNull().default('dms'),
   status: projectStatusEnum().notNull().default('collecting'),
   toleranceProfileId: integer().references(() => toleranceProfiles.id, { onDelete: 'set null' }),
+  /** geoid separation N (m) for the whole network: ellipsoidal height = height + N (projected CRS) */
+  geoidSeparationM: doublePrecision().notNull().default(0),
+  /** coefficient of refraction k for zenith angles and its σ (common practice 0.13 ± 0.05) */
+  refractionK: doublePrecision().notNull().default(0.13),
+  refractionSigmaK: doublePrecision().notNull().default(0.05),
+  /** local plane only: the height ground distances are reduced to (null = as measured) */
+  projectHeightM: doublePrecision(),
   createdBy: integer().references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
 }, (t) => [index('projects_firm').on(t.firmId, t.id)])

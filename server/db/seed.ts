@@ -6,6 +6,7 @@ import { fileURLToPath } from 'node:url'
 import { and, eq } from 'drizzle-orm'
 import type { Role } from '../../shared/roles'
 import { hashPassword } from '../services/passwords'
+import { DEMO_PROJECT_HEIGHT_M } from './demo/generate'
 import { seedFieldData } from './seed-fielddata'
 import { closeDb, useDb } from './client'
 import type { Db } from './client'
@@ -41,10 +42,10 @@ async function upsertUser(db: Db, u: (typeof DEMO_USERS)[number], passwordHash: 
   return row!
 }
 
-async function upsertProject(db: Db, firmId: number, name: string, description: string, createdBy: number) {
+async function upsertProject(db: Db, firmId: number, name: string, description: string, createdBy: number, projectHeightM: number | null = null) {
   const [existing] = await db.select().from(projects).where(and(eq(projects.firmId, firmId), eq(projects.name, name)))
   if (existing) return existing
-  const [p] = await db.insert(projects).values({ firmId, name, description, crs: 'local', units: 'm', createdBy }).returning()
+  const [p] = await db.insert(projects).values({ firmId, name, description, crs: 'local', units: 'm', projectHeightM, createdBy }).returning()
   return p!
 }
 
@@ -82,7 +83,7 @@ export async function seedFoundation(db: Db) {
   ]).onConflictDoNothing()
 
   const project = await upsertProject(db, demo.id, 'Harrow Creek bridge control',
-    'Invented demo: control network for a new footbridge over Harrow Creek. Two held pillars (CP1, CP2), a benchmark (BM1), direction sets, distances and a levelling loop.', people['chief@tiepoint.test']!)
+    'Invented demo: control network for a new footbridge over Harrow Creek. Two held pillars (CP1, CP2), a benchmark (BM1), direction sets, distances and a levelling loop.', people['chief@tiepoint.test']!, DEMO_PROJECT_HEIGHT_M)
   if (alta && project.toleranceProfileId === null) {
     await db.update(projects).set({ toleranceProfileId: alta.id }).where(eq(projects.id, project.id))
   }

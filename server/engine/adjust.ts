@@ -1,32 +1,34 @@
-// adjustNetwork: builds the plane (E, N + one orientation per direction set) and
-// the 1D height network from the observations, computes approximate values,
-// solves each by Gauss–Newton with pivoted Householder QR (./lsq, ./qr), and
-// derives the statistics: σ̂0² = vᵀPv / r, two-sided χ² global test, redundancy
-// numbers r_i = qvv_i·p_i, Baarda's w-test, Pope's τ-test, minimal detectable
-// bias and its effect on the coordinates, absolute and relative error ellipses.
+// adjustNetwork: checks the input (./input), reduces every measured row to the
+// plane or the height network on the project's surface (./reduce, ./geodesy),
+// computes approximate values (./approx), solves the height network and then
+// the plane network (./height, ./plane) by Gauss–Newton with pivoted Householder
+// QR (./lsq, ./qr), and derives the statistics: σ̂0² = vᵀPv / r, the two-sided
+// χ² global test (not applicable when r = 0), reliability (./reliability) and
+// precision (./precision). Heights come first because the plane reductions need
+// the marks' heights (elevation, target height); a projected network whose
+// adjusted positions moved far from the approximations is reduced and solved
+// again from there.
 //
 // Sources: Baarda, W. (1968) A testing procedure for use in geodetic networks,
-// Netherlands Geodetic Commission 2(5) (w-test, MDB = σ·δ0/√r_i, external
-// reliability); Pope, A.J. (1976) The statistics of residuals and the detection
-// of outliers, NOAA TR NOS 65 NGS 1; Ghilani, C.D. (2017) Adjustment Computations,
-// 6th ed., Wiley (observation equations for directions, angles, distances,
-// azimuths and height differences; error ellipses — from memory).
-// Trigonometric heights use the combined curvature and refraction term
-// (1 − k)·D²/(2R) with k = 0.13, R = 6 371 km (common practice).
+// Netherlands Geodetic Commission 2(5); Teunissen, P.J.G. (2000) Adjustment
+// Theory, Delft University Press (Gauss–Newton, global test — from memory). The
+// models and their sources are in ./models and ./geodesy.
 
-import { BLOCK as COFACTOR_BLOCK } from './cofactor'
 import { approximateHeights, approximatePlane, type XY } from './approx'
-import { elevationFactor, GridProjection } from './grid'
-import { azimuth, ellipseFromCovariance, RAD_TO_DEG, RHO_ARCSEC, wrapPi } from './geometry'
-import { solveNonlinear, type LinearRow, type NonlinearProblem } from './lsq'
-import {
-  angleSigma,
-  DEFAULT_PROFILE,
-  directionSigma,
-  distanceSigma,
-  levellingSigma,
-  zenithSigma,
-} from './sigma'
+import { fail, Stop } from './failure'
+import { LOCAL_RADIUS, LocalSurface, ProjectedSurface, type Surface } from './geodesy'
+import { GridProjection } from './grid'
+import { buildHeightProblem, type HeightRow } from './height'
+import { mergeControls, planeDatumCheck, stationLegCheck, validateObservations, validateProfile, validateSettings, type PlaneKindTag } from './input'
+import { aprioriSigma, isAngularKind } from './models/registry'
+import type { SigmaContext } from './models/types'
+import { solveNonlinear, type NonlinearProblem } from './lsq'
+import { buildPlaneProblem, type PlaneDef, type PlaneRow } from './plane'
+import { planeStationPrecision, relativePrecision } from './precision'
+import { reducePlane, reduceZenith, type HeightItem, type Partner, type PlaneItem, type ReductionStats } from './reduce'
+import { testObservations } from './reliability'
+import { RAD_TO_DEG } from './geometry'
+import { DEFAULT_PROFILE } from './sigma'
 import { chiSquareBounds, delta0 as delta0Of, ellipseScale, tauCritical, wCritical } from './stats'
 import type {
   AdjustInput,
@@ -34,8 +36,8 @@ import type {
   AdjustSettings,
   AdjustmentResult,
   ControlRecord,
+  GlobalTest,
   GridReductionSummary,
-  InstrumentProfile,
   NetworkSummary,
   ObservationRecord,
   ObservationResult,
@@ -54,26 +56,15 @@ export const DEFAULT_SETTINGS: AdjustSettings = {
   weakRedundancy: 0.2,
 }
 
-/** Convergence: 0.01 mm on coordinates, and the angle that subtends 0.01 mm at 1 km. */
-const TOL_LENGTH = 1e-5
-const TOL_ANGLE = 1e-8
-const EARTH_RADIUS = 6_371_000
-const REFRACTION_K = 0.13
-/** below this redundancy number an observation counts as uncontrolled (no w, no MDB) */
-const UNCONTROLLED = 1e-6
+/** Coefficient of refraction and its σ when the caller gives none (common practice). */
+export const DEFAULT_REFRACTION = { k: 0.13, sigmaK: 0.05 }
+/** a projected network is reduced again when its adjusted positions moved more than this from the approximations (m) */
+const REREDUCE_SHIFT = 0.5
 
 export interface PhaseTimings {
   approximationMs: number
   factorizationMs: number
   statisticsMs: number
-}
-
-type Failure = Extract<AdjustOutcome, { ok: false }>
-class Stop {
-  constructor(readonly failure: Failure) {}
-}
-const fail = (code: Failure['code'], reason: string, stations?: string[]): never => {
-  throw new Stop(stations ? { ok: false, code, reason, stations } : { ok: false, code, reason })
 }
 
 export function adjustNetwork(input: AdjustInput, settings: Partial<AdjustSettings> = {}): AdjustOutcome {
@@ -96,68 +87,51 @@ export function adjustNetworkTimed(
   }
 }
 
-function validateSettings(s: AdjustSettings): AdjustSettings {
-  const prob = (v: number, name: string) => {
-    if (!(v > 0 && v < 1)) fail('input', `setting ${name} must lie between 0 and 1, got ${v}`)
+/** The χ² test of one network, or of all: not applicable (passed null) without redundancy. */
+export function globalTestOf(vpv: number, r: number, alpha: number): GlobalTest {
+  const bounds = chiSquareBounds(alpha, r)
+  return { statistic: vpv, lower: bounds.lower, upper: bounds.upper, passed: r > 0 ? vpv >= bounds.lower && vpv <= bounds.upper : null }
+}
+
+function surfaceOf(input: AdjustInput): { surface: Surface; proj: GridProjection | null; geoid: number; method: 'simpson' | 'midpoint' | null } {
+  const spec = input.projection
+  const h0 = input.projectHeightM ?? null
+  if (h0 !== null && !(Number.isFinite(h0) && Math.abs(h0) <= 9000)) fail('input', 'projectHeightM: must be a number of metres between −9000 and 9000')
+  if (!spec) return { surface: new LocalSurface(LOCAL_RADIUS, h0), proj: null, geoid: 0, method: null }
+  if (typeof spec.proj4 !== 'string' || !spec.proj4.trim()) fail('input', 'projection, field proj4: the CRS definition is empty')
+  const method = spec.scaleFactorMethod ?? 'simpson'
+  if (method !== 'simpson' && method !== 'midpoint') fail('input', `projection, field scaleFactorMethod: must be 'simpson' or 'midpoint'`)
+  const geoid = spec.geoidSeparationM ?? 0
+  if (!Number.isFinite(geoid) || Math.abs(geoid) > 200) fail('input', 'projection, field geoidSeparationM: must be a number of metres between −200 and 200')
+  let proj: GridProjection
+  try {
+    proj = new GridProjection(spec.proj4)
+  } catch (e) {
+    return fail('input', `projection, field proj4: ${e instanceof Error ? e.message : String(e)}`)
   }
-  prob(s.confidence, 'confidence')
-  prob(s.alpha, 'alpha')
-  prob(s.alpha0, 'alpha0')
-  prob(s.beta0, 'beta0')
-  if (!(Number.isInteger(s.maxIterations) && s.maxIterations >= 1)) fail('input', 'setting maxIterations must be a positive integer')
-  if (s.datum !== 'as-given' && s.datum !== 'free') fail('input', `setting datum must be 'as-given' or 'free'`)
-  if (s.scaling !== 'a-posteriori' && s.scaling !== 'a-priori') fail('input', `setting scaling must be 'a-posteriori' or 'a-priori'`)
-  return s
+  return { surface: new ProjectedSurface(proj, method), proj, geoid, method }
 }
 
-// ---- internal model --------------------------------------------------------------
-
-type PlaneDef =
-  | { type: 'direction'; out: number; at: number; to: number; set: number; value: number }
-  | { type: 'angle'; out: number; at: number; from: number; to: number; value: number }
-  | { type: 'distance'; out: number; at: number; to: number; value: number }
-  | { type: 'azimuth'; out: number; at: number; to: number; value: number }
-  | { type: 'coord'; out: number; st: number; comp: 0 | 1; value: number }
-
-interface PlaneRowDef {
-  def: PlaneDef
-  sigma: number
-  /** model residual (m or rad) → output residual (m or arcsec) */
-  outScale: number
-}
-
-interface HeightRowDef {
-  out: number
-  at: number
-  to: number
-  /** observed height difference (or height for coord rows: at = to = station) */
-  value: number
-  coord: boolean
-  sigma: number
-  outScale: number
+function refractionOf(input: AdjustInput) {
+  const r = { ...DEFAULT_REFRACTION, ...(input.refraction ?? {}) }
+  if (!(Number.isFinite(r.k) && r.k >= -1 && r.k <= 1)) fail('input', 'refraction, field k: the coefficient of refraction must lie between −1 and 1')
+  if (!(Number.isFinite(r.sigmaK) && r.sigmaK >= 0 && r.sigmaK <= 1)) fail('input', 'refraction, field sigmaK: must lie between 0 and 1')
+  return r
 }
 
 function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings): AdjustmentResult {
   const profile = input.profile ?? DEFAULT_PROFILE
   validateProfile(profile)
   const free = settings.datum === 'free'
-  const outputs: ObservationResult[] = []
+  const controlByName = mergeControls(input.controls)
   const obsList = input.observations
-  const controlByName = new Map<string, ControlRecord>()
-  for (const c of input.controls) {
-    if (!c.station) fail('input', `line ${c.line}, column at: control row names no station`)
-    if (controlByName.has(c.station)) fail('input', `line ${c.line}, column at: station ${c.station} is given as control twice`)
-    for (const [k, v] of Object.entries({ east: c.east, north: c.north, height: c.height, sdEast: c.sdEast, sdNorth: c.sdNorth, sdHeight: c.sdHeight })) {
-      if (v !== null && !Number.isFinite(v)) fail('input', `line ${c.line}, column ${k}: not a finite number`)
-      if (k.startsWith('sd') && v !== null && v <= 0) fail('input', `line ${c.line}, column sigma: standard deviation must be positive`)
-    }
-    if ((c.east === null) !== (c.north === null)) fail('input', `line ${c.line}, column value: give both east and north, or neither`)
-    controlByName.set(c.station, c)
-  }
-  for (const o of obsList) validateObservation(o)
+  validateObservations(obsList)
+  const refraction = refractionOf(input)
+  const { surface, proj, geoid, method } = surfaceOf(input)
 
-  for (const o of obsList) {
-    outputs.push({
+  const outputs: ObservationResult[] = obsList.map((o) => {
+    const angular = isAngularKind(o.kind)
+    return {
       id: o.id ?? null,
       line: o.line,
       kind: o.kind,
@@ -165,36 +139,35 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
       at: o.at,
       from: o.from,
       to: o.to,
-      observed: isAngular(o.kind) ? o.value * RAD_TO_DEG : o.value,
+      observed: angular ? o.value * RAD_TO_DEG : o.value,
       adjusted: null,
-      valueUnit: isAngular(o.kind) ? 'deg' : 'm',
+      valueUnit: angular ? 'deg' : 'm',
       sigma: null,
-      residualUnit: isAngular(o.kind) ? 'arcsec' : 'm',
+      residualUnit: angular ? 'arcsec' : 'm',
       ...notYetTested(),
       excluded: o.excluded === true,
       remark: o.excluded === true ? 'excluded by the user' : null,
-    })
-  }
+    }
+  })
   const used = obsList.map((o, i) => ({ o, i })).filter((x) => !x.o.excluded)
 
-  // ---- reductions: slope distances with zenith angles --------------------------
-  const zeniths = new Map<string, { o: ObservationRecord; i: number }[]>()
-  const slopes = new Map<string, { o: ObservationRecord; i: number }[]>()
-  for (const x of used) {
-    const key = `${x.o.at}\u0000${x.o.to}`
-    if (x.o.kind === 'zenith') zeniths.set(key, [...(zeniths.get(key) ?? []), x])
-    if (x.o.kind === 'slope_distance') slopes.set(key, [...(slopes.get(key) ?? []), x])
+  // ---- partners: a slope distance and the zenith of the same line ---------------
+  const pairKey = (o: ObservationRecord) => `${o.at}\u0000${o.to}\u0000${o.set ?? ''}`
+  const zeniths = new Map<string, ObservationRecord[]>()
+  const slopes = new Map<string, ObservationRecord[]>()
+  for (const { o } of used) {
+    if (o.kind === 'zenith') zeniths.set(pairKey(o), [...(zeniths.get(pairKey(o)) ?? []), o])
+    if (o.kind === 'slope_distance') slopes.set(pairKey(o), [...(slopes.get(pairKey(o)) ?? []), o])
   }
 
-  // ---- station indexing -----------------------------------------------------------
-  const { names: planeNames, index: planeIdx, add: pIdx } = stationIndex()
-  const { names: heightNames, index: heightIdx, add: hIdx } = stationIndex()
-
-  const planeDefs: { def: PlaneDef; rec: ObservationRecord; zenith?: number; slope?: number; cf?: number }[] = []
-  const heightDefs: { out: number; at: number; to: number; value: number; rec: ObservationRecord; slope?: number; zenith?: number }[] = []
+  // ---- station indexing and raw rows ----------------------------------------------
+  const plane = stationIndex()
+  const height = stationIndex()
   const setKeys = new Map<string, number>()
   const setStationName: string[] = []
   const setLabel: string[] = []
+  const planeRaw: { out: number; rec: ObservationRecord; def: Exclude<PlaneDef, { type: 'coord' }>; zeniths?: ObservationRecord[] }[] = []
+  const heightRaw: { out: number; rec: ObservationRecord; at: number; to: number; slopes?: ObservationRecord[] }[] = []
   for (const { o, i } of used) {
     switch (o.kind) {
       case 'direction': {
@@ -206,53 +179,49 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
           setStationName.push(o.at)
           setLabel.push(o.set ?? '')
         }
-        planeDefs.push({ def: { type: 'direction', out: i, at: pIdx(o.at), to: pIdx(o.to), set, value: o.value }, rec: o })
+        planeRaw.push({ out: i, rec: o, def: { type: 'direction', at: plane.add(o.at), to: plane.add(o.to), set } })
         break
       }
       case 'angle':
-        planeDefs.push({ def: { type: 'angle', out: i, at: pIdx(o.at), from: pIdx(o.from!), to: pIdx(o.to), value: o.value }, rec: o })
+        planeRaw.push({ out: i, rec: o, def: { type: 'angle', at: plane.add(o.at), from: plane.add(o.from!), to: plane.add(o.to) } })
         break
       case 'horizontal_distance':
-        planeDefs.push({ def: { type: 'distance', out: i, at: pIdx(o.at), to: pIdx(o.to), value: o.value }, rec: o })
+        planeRaw.push({ out: i, rec: o, def: { type: 'distance', at: plane.add(o.at), to: plane.add(o.to) } })
         break
       case 'azimuth':
-        planeDefs.push({ def: { type: 'azimuth', out: i, at: pIdx(o.at), to: pIdx(o.to), value: o.value }, rec: o })
+        planeRaw.push({ out: i, rec: o, def: { type: 'azimuth', at: plane.add(o.at), to: plane.add(o.to) } })
         break
       case 'slope_distance': {
-        const zs = zeniths.get(`${o.at}\u0000${o.to}`)
-        if (!zs) {
-          outputs[i].remark = 'not used: no zenith angle from the same station to the same target to reduce it'
+        const zs = zeniths.get(pairKey(o))
+        const c1 = controlByName.get(o.at)
+        const c2 = controlByName.get(o.to)
+        const heightsKnown = (c1?.height ?? null) !== null && (c2?.height ?? null) !== null
+        if (!zs && !heightsKnown) {
+          outputs[i].remark = 'not used: no zenith angle of the same line and no known heights of both ends to reduce it'
           break
         }
-        const z = circularMean(zs.map((x) => x.o.value))
-        planeDefs.push({
-          def: { type: 'distance', out: i, at: pIdx(o.at), to: pIdx(o.to), value: o.value * Math.sin(z) },
-          rec: o,
-          zenith: z,
-          slope: o.value,
-        })
+        planeRaw.push({ out: i, rec: o, def: { type: 'distance', at: plane.add(o.at), to: plane.add(o.to) }, ...(zs ? { zeniths: zs } : {}) })
         break
       }
       case 'zenith': {
-        const ss = slopes.get(`${o.at}\u0000${o.to}`)
+        const ss = slopes.get(pairKey(o))
         if (!ss) {
-          outputs[i].remark = 'not used: no slope distance from the same station to the same target'
+          outputs[i].remark = 'not used: no slope distance of the same line'
           break
         }
-        const sd = ss.reduce((a, x) => a + x.o.value, 0) / ss.length
-        const hd = sd * Math.sin(o.value)
-        const dh = sd * Math.cos(o.value) + (o.hi ?? 0) - (o.ht ?? 0) + ((1 - REFRACTION_K) * hd * hd) / (2 * EARTH_RADIUS)
-        heightDefs.push({ out: i, at: hIdx(o.at), to: hIdx(o.to), value: dh, rec: o, slope: sd, zenith: o.value })
+        heightRaw.push({ out: i, rec: o, at: height.add(o.at), to: height.add(o.to), slopes: ss })
         break
       }
       case 'height_difference':
-        heightDefs.push({ out: i, at: hIdx(o.at), to: hIdx(o.to), value: o.value, rec: o })
+        heightRaw.push({ out: i, rec: o, at: height.add(o.at), to: height.add(o.to) })
         break
     }
   }
+  const planeNames = plane.names
+  const heightNames = height.names
 
   const ta = performance.now()
-  // ---- plane network ----------------------------------------------------------------
+  // ---- approximate plane positions (from the rows as measured) ------------------
   const nP = planeNames.length
   const pControl = planeNames.map((s) => {
     const c = controlByName.get(s)
@@ -262,8 +231,9 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   let planeCoords: XY[] = []
   let orientation: Float64Array = new Float64Array(0)
   if (nP > 0) {
-    if (!free) planeDatumCheck(planeNames, pControl, planeDefs.map((p) => p.def))
-    stationLegCheck(planeNames, pControl, planeDefs.map((p) => p.def), free)
+    const kinds = new Set<PlaneKindTag>(planeRaw.map((p) => p.def.type))
+    if (!free) planeDatumCheck(planeNames, pControl, kinds)
+    stationLegCheck(planeNames, pControl, planeRaw.map((p) => ({ kind: p.def.type, at: p.def.at, to: p.def.to, ...(p.def.type === 'angle' ? { from: p.def.from } : {}) })), free)
     const known = new Map<string, XY>()
     planeNames.forEach((s, k) => {
       const c = pControl[k]
@@ -273,14 +243,25 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
         if (a && a.east !== undefined && a.north !== undefined) known.set(s, { e: a.east, n: a.north })
       }
     })
+    let roughConvergence = 0
+    if (proj && known.size) {
+      try {
+        roughConvergence = (surface as ProjectedSurface).convergence(...anyPlaced(known))
+      } catch {
+        roughConvergence = 0
+      }
+    }
+    const roughHorizontal = (p: (typeof planeRaw)[number]) => (p.zeniths ? p.rec.value * Math.sin(circularMean(p.zeniths.map((z) => z.value))) : p.rec.value)
+    const name = (k: number) => planeNames[k]
     const ap = approximatePlane({
       stations: planeNames,
       known,
       setCount: setKeys.size,
-      directions: planeDefs.flatMap((p) => (p.def.type === 'direction' ? [{ at: planeNames[p.def.at], to: planeNames[p.def.to], set: p.def.set, value: p.def.value }] : [])),
-      angles: planeDefs.flatMap((p) => (p.def.type === 'angle' ? [{ at: planeNames[p.def.at], from: planeNames[p.def.from], to: planeNames[p.def.to], value: p.def.value }] : [])),
-      distances: planeDefs.flatMap((p) => (p.def.type === 'distance' ? [{ at: planeNames[p.def.at], to: planeNames[p.def.to], value: p.def.value }] : [])),
-      azimuths: planeDefs.flatMap((p) => (p.def.type === 'azimuth' ? [{ at: planeNames[p.def.at], to: planeNames[p.def.to], value: p.def.value }] : [])),
+      directions: planeRaw.flatMap((p) => (p.def.type === 'direction' ? [{ at: name(p.def.at), to: name(p.def.to), set: p.def.set, value: p.rec.value }] : [])),
+      angles: planeRaw.flatMap((p) => (p.def.type === 'angle' ? [{ at: name(p.def.at), from: name(p.def.from), to: name(p.def.to), value: p.rec.value }] : [])),
+      distances: planeRaw.flatMap((p) => (p.def.type === 'distance' ? [{ at: name(p.def.at), to: name(p.def.to), value: roughHorizontal(p) }] : [])),
+      // approximations only: an observed (ellipsoidal) azimuth turned by the convergence at a placed station
+      azimuths: planeRaw.flatMap((p) => (p.def.type === 'azimuth' ? [{ at: name(p.def.at), to: name(p.def.to), value: p.rec.value + roughConvergence }] : [])),
       seedIfEmpty: free,
     })
     if (ap.unplaced.length) {
@@ -293,14 +274,39 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
     planeCoords = planeNames.map((s) => ap.coords.get(s)!)
     orientation = ap.orientation
   }
+  const planePos = (s: string): XY | null => {
+    const k = plane.index.get(s)
+    return k === undefined ? null : planeCoords[k]
+  }
+  const sigmaCtx: SigmaContext = {
+    profile,
+    length(a, b) {
+      const p = planePos(a)
+      const q = planePos(b)
+      return p && q ? Math.hypot(q.e - p.e, q.n - p.n) : null
+    },
+  }
+  const meanOf = (list: ObservationRecord[]): Partner => {
+    const sig = list.map((r) => rowSigma(r, sigmaCtx))
+    const value = list[0].kind === 'zenith' ? circularMean(list.map((r) => r.value)) : list.reduce((a, r) => a + r.value, 0) / list.length
+    return { value, sigma: Math.sqrt(sig.reduce((a, s) => a + s * s, 0)) / list.length }
+  }
 
-  // ---- height network -------------------------------------------------------------
+  // ---- approximate heights ------------------------------------------------------
   const nH = heightNames.length
   const hControl = heightNames.map((s) => {
     const c = controlByName.get(s)
     return c && c.height !== null ? c : null
   })
   let heights: number[] = []
+  const heightItems: HeightItem[] = heightRaw.map((h) => ({
+    out: h.out,
+    rec: h.rec,
+    at: h.at,
+    to: h.to,
+    sigma: 0,
+    ...(h.slopes ? { slope: meanOf(h.slopes) } : {}),
+  }))
   if (nH > 0) {
     if (!free && !hControl.some((c) => c)) {
       fail('singular', 'no height datum: hold at least one benchmark height fixed or weighted, or choose a free network')
@@ -311,139 +317,61 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
       if (c) known.set(s, c.height!)
       else if (approxBy.get(s)?.height !== undefined) known.set(s, approxBy.get(s)!.height!)
     })
-    const ah = approximateHeights(
-      heightNames,
-      known,
-      heightDefs.map((d) => ({ at: heightNames[d.at], to: heightNames[d.to], dh: d.value })),
-      free,
-    )
+    const rough = (h: HeightItem) => {
+      if (!h.slope) return h.rec.value
+      const S = h.slope.value
+      return S * Math.cos(h.rec.value) + (h.rec.hi ?? 0) - (h.rec.ht ?? 0) + ((1 - refraction.k) * (S * Math.sin(h.rec.value)) ** 2) / (2 * LOCAL_RADIUS)
+    }
+    const ah = approximateHeights(heightNames, known, heightItems.map((d) => ({ at: heightNames[d.at], to: heightNames[d.to], dh: rough(d) })), free)
     if (ah.unplaced.length) {
-      fail(
-        'singular',
-        `${ah.unplaced.join(', ')} ${ah.unplaced.length > 1 ? 'are' : 'is'} not connected by height differences to a benchmark`,
-        ah.unplaced,
-      )
+      fail('singular', `${ah.unplaced.join(', ')} ${ah.unplaced.length > 1 ? 'are' : 'is'} not connected by height differences to a benchmark`, ah.unplaced)
     }
     heights = heightNames.map((s) => ah.heights.get(s)!)
   }
   timings.approximationMs = performance.now() - ta
 
-  // ---- ground → grid (projected CRS only) ---------------------------------------
-  const gridReduction = reduceToGrid(input, planeNames, planeCoords, planeDefs, outputs, (s) => {
-    const k = heightIdx.get(s)
-    if (k !== undefined) return heights[k]
+  // ---- result shells ----------------------------------------------------------------
+  const stationOut = new Map<string, StationResult>()
+  const allNames: string[] = []
+  const addName = (s: string) => {
+    if (stationOut.has(s)) return
+    allNames.push(s)
     const c = controlByName.get(s)
-    if (c && c.height !== null) return c.height
-    return approxBy.get(s)?.height ?? null
-  })
-
-  // ---- a-priori σ (from the approximate geometry) --------------------------------
-  const dist = (a: number, b: number) => Math.hypot(planeCoords[b].e - planeCoords[a].e, planeCoords[b].n - planeCoords[a].n)
-  const planeRows: PlaneRowDef[] = planeDefs.map(({ def, rec, zenith, slope, cf = 1 }) => {
-    switch (def.type) {
-      case 'direction':
-      case 'azimuth':
-        return { def, sigma: rec.sigma ?? directionSigma(profile, dist(def.at, def.to)), outScale: RHO_ARCSEC }
-      case 'angle':
-        return {
-          def,
-          sigma: rec.sigma ?? angleSigma(profile, dist(def.at, def.from), dist(def.at, def.to), dist(def.from, def.to)),
-          outScale: RHO_ARCSEC,
-        }
-      case 'distance': {
-        // a grid distance is the ground one times cf: its σ scales by cf, and its
-        // residual goes back to ground metres by 1/cf
-        if (zenith === undefined) return { def, sigma: (rec.sigma ?? distanceSigma(profile, rec.value)) * cf, outScale: 1 / cf }
-        const sS = rec.sigma ?? distanceSigma(profile, slope!)
-        const sz = zenithSigma(profile)
-        const sHd = Math.hypot(Math.sin(zenith) * sS, slope! * Math.cos(zenith) * sz)
-        return { def, sigma: sHd * cf, outScale: 1 / (Math.sin(zenith) * cf) }
-      }
-      case 'coord':
-        return { def, sigma: 1, outScale: 1 }
-    }
-  })
-  const heightRows: HeightRowDef[] = heightDefs.map((d) => {
-    const rec = d.rec
-    if (d.slope !== undefined) {
-      const sz = rec.sigma ?? zenithSigma(profile)
-      const sS = distanceSigma(profile, d.slope)
-      const sinZ = Math.sin(d.zenith!)
-      const sigma = Math.hypot(Math.cos(d.zenith!) * sS, d.slope * sinZ * sz)
-      return { out: d.out, at: d.at, to: d.to, value: d.value, coord: false, sigma, outScale: (-1 / (d.slope * sinZ)) * RHO_ARCSEC }
-    }
-    let sigma = rec.sigma
-    if (sigma === null) {
-      let len = rec.lengthKm
-      if (len === null) {
-        const a = planeIdx.get(heightNames[d.at])
-        const b = planeIdx.get(heightNames[d.to])
-        if (a !== undefined && b !== undefined) len = dist(a, b) / 1000
-      }
-      if (len === null || !(len > 0)) {
-        fail('input', `line ${rec.line}, column length: a height difference without sigma needs the levelling length in km`)
-      }
-      sigma = levellingSigma(profile, len!)
-    }
-    return { out: d.out, at: d.at, to: d.to, value: d.value, coord: false, sigma, outScale: 1 }
-  })
-
-  // weighted control becomes coordinate observations (not in a free network)
-  if (!free) {
-    const addCoordOut = (c: ControlRecord, comp: 'east' | 'north' | 'height', value: number, sd: number) => {
-      outputs.push({
-        id: null,
-        line: c.line,
-        kind: 'control',
-        component: comp,
-        at: c.station,
-        from: null,
-        to: c.station,
-        observed: value,
-        adjusted: null,
-        valueUnit: 'm',
-        sigma: sd,
-        residualUnit: 'm',
-        ...notYetTested(),
-        excluded: false,
-        remark: null,
-      })
-      return outputs.length - 1
-    }
-    planeNames.forEach((s, k) => {
-      const c = pControl[k]
-      if (!c) return
-      if (c.sdEast !== null) planeRows.push({ def: { type: 'coord', out: addCoordOut(c, 'east', c.east!, c.sdEast), st: k, comp: 0, value: c.east! }, sigma: c.sdEast, outScale: 1 })
-      if (c.sdNorth !== null) planeRows.push({ def: { type: 'coord', out: addCoordOut(c, 'north', c.north!, c.sdNorth), st: k, comp: 1, value: c.north! }, sigma: c.sdNorth, outScale: 1 })
-    })
-    heightNames.forEach((s, k) => {
-      const c = hControl[k]
-      if (c && c.sdHeight !== null) {
-        heightRows.push({ out: addCoordOut(c, 'height', c.height!, c.sdHeight), at: k, to: k, value: c.height!, coord: true, sigma: c.sdHeight, outScale: 1 })
-      }
+    stationOut.set(s, {
+      name: s,
+      east: c?.east ?? null,
+      north: c?.north ?? null,
+      height: c?.height ?? null,
+      sdEast: c && c.east !== null && !free ? c.sdEast ?? 0 : null,
+      sdNorth: c && c.north !== null && !free ? c.sdNorth ?? 0 : null,
+      sdHeight: c && c.height !== null && !free ? c.sdHeight ?? 0 : null,
+      ellipse: null,
+      ellipse95: null,
+      fixed: !!c && !free && c.sdEast === null && c.sdNorth === null && c.sdHeight === null,
+      kind: c ? 'control' : 'new',
+      controlled: { east: !!c && c.east !== null && !free, north: !!c && c.north !== null && !free, height: !!c && c.height !== null && !free },
     })
   }
+  for (const c of input.controls) addName(c.station)
+  for (const o of obsList) {
+    if (o.from) addName(o.from)
+    addName(o.at)
+    addName(o.to)
+  }
+  const addCoordOut = (c: ControlRecord, comp: 'east' | 'north' | 'height', value: number, sd: number) => {
+    outputs.push({
+      id: null, line: c.line, kind: 'control', component: comp, at: c.station, from: null, to: c.station,
+      observed: value, adjusted: null, valueUnit: 'm', sigma: sd, residualUnit: 'm', ...notYetTested(), excluded: false, remark: null,
+    })
+    return outputs.length - 1
+  }
 
-  // ---- solve ------------------------------------------------------------------------
-  const stationOut = new Map<string, StationResult>()
-  const relative: RelativeResult[] = []
   const d0 = delta0Of(settings.alpha0, settings.beta0)
   const wCrit = wCritical(settings.alpha0)
-  let totalVpv = 0
-  let totalR = 0
-  let totalN = 0
-  let totalU = 0
-  let iterations = 0
+  const totals = { vpv: 0, r: 0, n: 0, u: 0, iterations: 0 }
   let health = { conditionEstimate: 0, dominant: null as string | null }
 
-  const finish = (
-    kind: 'plane' | 'height',
-    problem: NonlinearProblem,
-    rowOut: number[],
-    rowScale: number[],
-    stationCols: Int32Array[],
-    names: string[],
-  ) => {
+  const solve = (kind: 'plane' | 'height', problem: NonlinearProblem) => {
     const outcome = solveNonlinear(problem, settings.maxIterations)
     if (!outcome.ok) {
       if (outcome.code === 'not_converged') {
@@ -451,10 +379,20 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
       }
       const dep = outcome.dependent.map((j) => problem.labels[j])
       const st = [...new Set(outcome.dependent.map((j) => stationOfLabel(problem.labels[j])).filter((x): x is string => x !== null))]
-      fail('singular', `the ${kind} network is singular: ${dep.slice(0, 6).join(', ')}${dep.length > 6 ? ` and ${dep.length - 6} more` : ''} cannot be determined from the observations; check how ${st.length ? st.join(', ') : 'these'} ${st.length > 1 ? 'are' : 'is'} tied to the rest of the network`, st)
+      return fail('singular', `the ${kind} network is singular: ${dep.slice(0, 6).join(', ')}${dep.length > 6 ? ` and ${dep.length - 6} more` : ''} cannot be determined from the observations; check how ${st.length ? st.join(', ') : 'these'} ${st.length > 1 ? 'are' : 'is'} tied to the rest of the network`, st)
     }
-    if (!outcome.ok) return
     timings.factorizationMs += outcome.timings.factorizationMs
+    return outcome
+  }
+
+  const summarize = (
+    kind: 'plane' | 'height',
+    problem: NonlinearProblem,
+    outcome: Extract<ReturnType<typeof solveNonlinear>, { ok: true }>,
+    built: { rowOut: number[]; rowScale: number[]; stationCols: Int32Array[] },
+    names: string[],
+    planeRows: PlaneRow[] | null,
+  ): { summary: NetworkSummary; relative: RelativeResult[] } => {
     const t0 = performance.now()
     const { x, qxx, rows } = outcome
     const u = problem.u
@@ -465,369 +403,226 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
     const sigma0Sq = r > 0 ? vpv / r : null
     const estimated = settings.scaling === 'a-posteriori' && sigma0Sq !== null
     const varFactor = estimated ? sigma0Sq! : 1
-    const bounds = chiSquareBounds(settings.alpha, r)
     const tCrit = tauCritical(settings.alpha0, r)
     const sigma0 = sigma0Sq === null ? null : Math.sqrt(sigma0Sq)
-    const isCoordCol = new Uint8Array(u)
-    for (const c of stationCols) for (const j of c) if (j >= 0) isCoordCol[j] = 1
-
-    const pending: { out: ObservationResult; cols: number[]; ac: number[]; k: number }[] = []
-    rows.forEach((row, i) => {
-      const out = outputs[rowOut[i]]
-      const sc = rowScale[i]
-      const ac = row.coef.map((c) => c / row.sigma)
-      let qa = 0
-      for (let p = 0; p < ac.length; p++) for (let q = 0; q < ac.length; q++) qa += ac[p] * qxx.get(row.cols[p], row.cols[q]) * ac[q]
-      const ri = Math.min(Math.max(1 - qa, 0), 1)
-      const v = -row.misclosure
-      out.residual = v * sc
-      out.sigma = row.sigma * Math.abs(sc)
-      out.redundancy = ri
-      out.weak = ri < settings.weakRedundancy
-      if (out.kind === 'control') out.adjusted = out.observed + v
-      else if (out.valueUnit === 'deg') out.adjusted = out.observed + (v * sc) / 3600
-      else out.adjusted = out.observed + v * sc
-      if (ri > UNCONTROLLED) {
-        // w takes the sign of the residual as reported: rows converted with a
-        // negative scale (a zenith carried by its trigonometric height) flip both.
-        const w = (v / (row.sigma * Math.sqrt(ri))) * Math.sign(sc)
-        out.w = w
-        out.flagged = Math.abs(w) > wCrit
-        if (sigma0 !== null && sigma0 > 0 && tCrit !== null) {
-          out.tau = w / sigma0
-          out.tauFlagged = Math.abs(out.tau) > tCrit
-        }
-        const mdb = (row.sigma * d0) / Math.sqrt(ri)
-        out.mdb = mdb * Math.abs(sc)
-        pending.push({ out, cols: row.cols, ac, k: mdb / row.sigma })
-      }
-    })
-
-    // Δx = Qxx·ãᵀ·(MDB/σ): the coordinate shift an undetected error of MDB size
-    // causes. It needs whole columns of Qxx; observations are taken in the order
-    // of their last unknown in R, so only a band of columns is held at a time.
-    if (pending.length) {
-      const ready = pending.map((p) => Math.max(...p.cols.map((c) => qxx.position(c))))
-      const order = Array.from(pending.keys()).sort((a, b) => ready[a] - ready[b] || a - b)
-      const lastIdx = new Int32Array(u).fill(-1)
-      order.forEach((pi, t) => {
-        for (const c of pending[pi].cols) lastIdx[c] = t
-      })
-      // columns in order of first need; a missing one is solved for together with
-      // the next few (one pass over R serves the whole block)
-      const need: number[] = []
-      const seenCol = new Uint8Array(u)
-      for (const pi of order) for (const c of pending[pi].cols) if (!seenCol[c]) {
-        seenCol[c] = 1
-        need.push(c)
-      }
-      let next = 0
-      const cache = new Map<number, Float64Array>()
-      // coordinate unknowns of each station that has any, flat (stride = columns per station)
-      const stride = stationCols.length ? stationCols[0].length : 1
-      const coordCols = Int32Array.from(stationCols.filter((sc) => sc.some((j) => j >= 0)).flatMap((sc) => [...sc]))
-      order.forEach((pi, t) => {
-        const { out, cols, ac, k } = pending[pi]
-        for (const c of cols) {
-          if (cache.has(c)) continue
-          while (need[next] !== c) next++
-          const block = need.slice(next, next + COFACTOR_BLOCK)
-          qxx.columns(block).forEach((q, b) => cache.set(block[b], q))
-          next += block.length
-        }
-        const colQ = cols.map((c) => cache.get(c)!)
-        let worst = 0
-        for (let st = 0; st < coordCols.length; st += stride) {
-          let s2 = 0
-          for (let c = st; c < st + stride; c++) {
-            const j = coordCols[c]
-            if (j < 0) continue
-            let dxj = 0
-            for (let p = 0; p < ac.length; p++) dxj += colQ[p][j] * ac[p]
-            s2 += (dxj * k) ** 2
-          }
-          if (s2 > worst) worst = s2
-        }
-        out.mdbEffect = Math.sqrt(worst)
-        for (const c of cols) if (lastIdx[c] === t) cache.delete(c)
-      })
-    }
-
+    testObservations(rows, outputs, built.rowOut, built.rowScale, qxx, built.stationCols, settings, { wCrit, tCrit, delta0: d0, sigma0 })
     const scale95 = ellipseScale(settings.confidence, estimated, r)
     names.forEach((name, k) => {
-      const cols = stationCols[k]
+      const cols = built.stationCols[k]
       const st = stationOut.get(name)!
-      const q = (a: number, b: number) => (a >= 0 && b >= 0 ? qxx.get(a, b) * varFactor : 0)
       if (kind === 'plane') {
         const [ce, cn] = cols
         st.east = ce >= 0 ? x[ce] : pControl[k]!.east
         st.north = cn >= 0 ? x[cn] : pControl[k]!.north
-        st.sdEast = Math.sqrt(Math.max(q(ce, ce), 0))
-        st.sdNorth = Math.sqrt(Math.max(q(cn, cn), 0))
-        if (ce >= 0 || cn >= 0) {
-          st.ellipse = round(ellipseFromCovariance(q(ce, ce), q(cn, cn), q(ce, cn)))
-          st.ellipse95 = round(ellipseFromCovariance(q(ce, ce), q(cn, cn), q(ce, cn), scale95))
-        }
+        planeStationPrecision(st, cols, qxx, varFactor, scale95)
         st.controlled.east = ce < 0 || isControlled(pControl[k], 'sdEast', free)
         st.controlled.north = cn < 0 || isControlled(pControl[k], 'sdNorth', free)
       } else {
         const [ch] = cols
         st.height = ch >= 0 ? x[ch] : hControl[k]!.height
-        st.sdHeight = Math.sqrt(Math.max(q(ch, ch), 0))
+        st.sdHeight = ch >= 0 ? Math.sqrt(Math.max(qxx.get(ch, ch) * varFactor, 0)) : st.sdHeight
         st.controlled.height = ch < 0 || isControlled(hControl[k], 'sdHeight', free)
       }
     })
-
-    if (kind === 'plane') {
-      const seen = new Set<string>()
-      for (const { def } of planeRows) {
-        const pairs: [number, number][] =
-          def.type === 'coord' ? [] : def.type === 'angle' ? [[def.at, def.from], [def.at, def.to]] : [[def.at, def.to]]
-        for (const [a, b] of pairs) {
-          const key = a < b ? `${a}:${b}` : `${b}:${a}`
-          if (seen.has(key) || a === b) continue
-          seen.add(key)
-          const [ae, an] = stationCols[a]
-          const [be, bn] = stationCols[b]
-          if (ae < 0 && an < 0 && be < 0 && bn < 0) continue
-          const q = (i: number, j: number) => (i >= 0 && j >= 0 ? qxx.get(i, j) : 0)
-          const qee = q(be, be) + q(ae, ae) - 2 * q(ae, be)
-          const qnn = q(bn, bn) + q(an, an) - 2 * q(an, bn)
-          const qen = q(be, bn) + q(ae, an) - q(ae, bn) - q(be, an)
-          const A = stationOut.get(names[a])!
-          const B = stationOut.get(names[b])!
-          const de = B.east! - A.east!
-          const dn = B.north! - A.north!
-          const d = Math.hypot(de, dn)
-          const ge = de / d
-          const gn = dn / d
-          const e1 = ellipseFromCovariance(qee * varFactor, qnn * varFactor, qen * varFactor)
-          relative.push({
-            from: names[a],
-            to: names[b],
-            distance: d,
-            semiMajor: e1.semiMajor,
-            semiMinor: e1.semiMinor,
-            azimuthDeg: round(e1).azimuthDeg,
-            semiMajor95: e1.semiMajor * scale95,
-            sdDistance: Math.sqrt(Math.max((ge * ge * qee + gn * gn * qnn + 2 * ge * gn * qen) * varFactor, 0)),
-          })
-        }
-      }
-    }
-
+    const relative = planeRows ? relativePrecision(planeRows, names, built.stationCols, stationOut, qxx, varFactor, scale95) : []
     const summary: NetworkSummary = {
       dof: r,
       sigma0,
-      globalTest: { statistic: vpv, lower: bounds.lower, upper: bounds.upper, passed: r === 0 || (vpv >= bounds.lower && vpv <= bounds.upper) },
+      globalTest: globalTestOf(vpv, r, settings.alpha),
       counts: { n, u, r },
       iterations: outcome.iterations,
       tauCritical: tCrit,
       conditionEstimate: outcome.conditionEstimate,
       dominant: outcome.dominant === null ? null : problem.labels[outcome.dominant],
     }
-    totalVpv += vpv
-    totalR += r
-    totalN += n
-    totalU += u
-    iterations = Math.max(iterations, outcome.iterations)
-    if (summary.conditionEstimate > health.conditionEstimate) {
-      health = { conditionEstimate: summary.conditionEstimate, dominant: summary.dominant }
-    }
+    totals.vpv += vpv
+    totals.r += r
+    totals.n += n
+    totals.u += u
+    totals.iterations = Math.max(totals.iterations, outcome.iterations)
+    if (summary.conditionEstimate > health.conditionEstimate) health = { conditionEstimate: summary.conditionEstimate, dominant: summary.dominant }
     timings.statisticsMs += performance.now() - t0 + outcome.timings.cofactorMs
-    return summary
+    return { summary, relative }
   }
 
-  // station result shells, in order of first appearance
-  const allNames: string[] = []
-  const addName = (s: string) => {
-    if (!stationOut.has(s)) {
-      allNames.push(s)
-      const c = controlByName.get(s)
-      stationOut.set(s, {
-        name: s,
-        east: c?.east ?? null,
-        north: c?.north ?? null,
-        height: c?.height ?? null,
-        sdEast: c && c.east !== null && !free ? c.sdEast ?? 0 : null,
-        sdNorth: c && c.north !== null && !free ? c.sdNorth ?? 0 : null,
-        sdHeight: c && c.height !== null && !free ? c.sdHeight ?? 0 : null,
-        ellipse: null,
-        ellipse95: null,
-        fixed: !!c && !free && c.sdEast === null && c.sdNorth === null && c.sdHeight === null,
-        kind: c ? 'control' : 'new',
-        controlled: { east: !!c && c.east !== null && !free, north: !!c && c.north !== null && !free, height: !!c && c.height !== null && !free },
+  // ---- height network ---------------------------------------------------------------
+  let heightSummary: NetworkSummary | undefined
+  const adjustedHeight = new Map<string, number>()
+  const ellipsoidal = (H: number) => H + (proj ? geoid : 0)
+  if (nH > 0) {
+    const rows: HeightRow[] = []
+    for (const h of heightItems) {
+      const rec = h.rec
+      if (h.slope) {
+        const a = planePos(rec.at)
+        const b = planePos(rec.to)
+        const R = a && b ? surface.radiusAlong(a.e, a.n, b.e, b.n) : proj ? proj.gaussianRadius(0.7) : LOCAL_RADIUS
+        const zSigma = rowSigma(rec, sigmaCtx)
+        const red = reduceZenith(rec, zSigma, h.slope, ellipsoidal(heights[h.at]), R, refraction)
+        rows.push({ out: h.out, at: h.at, to: h.to, value: red.value, coord: false, sigma: red.sigma, outScale: red.outScale })
+      } else {
+        const sigma = aprioriSigma(rec, sigmaCtx)
+        if (sigma === null) fail('input', `line ${rec.line}, column length: a height difference without sigma needs the levelling length in km`)
+        rows.push({ out: h.out, at: h.at, to: h.to, value: rec.value, coord: false, sigma: sigma!, outScale: 1 })
+      }
+    }
+    if (!free) {
+      heightNames.forEach((s, k) => {
+        const c = hControl[k]
+        if (c && c.sdHeight !== null) rows.push({ out: addCoordOut(c, 'height', c.height!, c.sdHeight), at: k, to: k, value: c.height!, coord: true, sigma: c.sdHeight, outScale: 1 })
       })
     }
-  }
-  for (const c of input.controls) addName(c.station)
-  for (const o of obsList) {
-    if (o.from) addName(o.from)
-    addName(o.at)
-    addName(o.to)
+    const built = buildHeightProblem(heightNames, hControl, heights, rows, free)
+    const outcome = solve('height', built.problem)
+    heightSummary = summarize('height', built.problem, outcome, built, heightNames, null).summary
+    heightNames.forEach((s, k) => adjustedHeight.set(s, stationOut.get(s)!.height!))
   }
 
+  // ---- plane network ----------------------------------------------------------------
   let planeSummary: NetworkSummary | undefined
-  let heightSummary: NetworkSummary | undefined
+  let relative: RelativeResult[] = []
+  let reduction: ReductionStats | null = null
+  const assumed = new Set<string>()
   if (nP > 0) {
-    const built = buildPlaneProblem(planeNames, pControl, planeCoords, orientation, planeRows, setStationName, setLabel, free)
-    planeSummary = finish('plane', built.problem, built.rowOut, built.rowScale, built.stationCols, planeNames)
-  }
-  if (nH > 0) {
-    const built = buildHeightProblem(heightNames, hControl, heights, heightRows, free)
-    heightSummary = finish('height', built.problem, built.rowOut, built.rowScale, built.stationCols, heightNames)
+    const knownH = planeNames.map((s) => {
+      if (adjustedHeight.has(s)) return adjustedHeight.get(s)!
+      const c = controlByName.get(s)
+      if (c && c.height !== null) return c.height
+      return approxBy.get(s)?.height ?? null
+    })
+    const given = knownH.filter((h): h is number => h !== null)
+    const fallback = given.length ? given.reduce((a, b) => a + b, 0) / given.length : 0
+    const heightAt = (k: number) => {
+      if (knownH[k] !== null) return knownH[k]!
+      assumed.add(planeNames[k])
+      return fallback
+    }
+    const items: PlaneItem[] = planeRaw.map((p) => ({
+      out: p.out,
+      rec: p.rec,
+      def: p.def,
+      sigma: rowSigma(p.rec, sigmaCtx),
+      ...(p.zeniths ? { zenith: meanOf(p.zeniths) } : {}),
+    }))
+    const planeRowsAt = (coords: XY[]) => {
+      let red: ReturnType<typeof reducePlane>
+      try {
+        red = reducePlane(items, { surface, coords, height: heightAt, geoidSeparation: geoid, refraction }, outputs)
+      } catch (e) {
+        return fail('input', `projection: ${e instanceof Error ? e.message : String(e)}; check that the control coordinates are in this CRS`)
+      }
+      const rows = red.rows
+      if (!free) {
+        planeNames.forEach((s, k) => {
+          const c = pControl[k]
+          if (!c) return
+          if (c.sdEast !== null) rows.push({ def: { type: 'coord', st: k, comp: 0 }, out: addCoordOut(c, 'east', c.east!, c.sdEast), value: c.east!, sigma: c.sdEast, outScale: 1 })
+          if (c.sdNorth !== null) rows.push({ def: { type: 'coord', st: k, comp: 1 }, out: addCoordOut(c, 'north', c.north!, c.sdNorth), value: c.north!, sigma: c.sdNorth, outScale: 1 })
+        })
+      }
+      return { rows, stats: red.stats }
+    }
+    const outputsBefore = outputs.length
+    let pass = planeRowsAt(planeCoords)
+    let built = buildPlaneProblem(planeNames, pControl, planeCoords, orientation, pass.rows, setStationName, setLabel, free)
+    let outcome = solve('plane', built.problem)
+    if (proj) {
+      // the reductions depend (weakly) on where the lines are: redo them once from the adjusted positions when they moved far
+      const moved = planeCoords.map((c, k) => {
+        const [ce, cn] = built.stationCols[k]
+        return { e: ce >= 0 ? outcome.x[ce] : c.e, n: cn >= 0 ? outcome.x[cn] : c.n }
+      })
+      const shift = Math.max(0, ...moved.map((m, k) => Math.hypot(m.e - planeCoords[k].e, m.n - planeCoords[k].n)))
+      if (shift > REREDUCE_SHIFT) {
+        outputs.length = outputsBefore
+        const orient = Float64Array.from(orientation)
+        // carry the adjusted orientations over as the new start
+        const x0 = outcome.x
+        pass = planeRowsAt(moved)
+        built = buildPlaneProblem(planeNames, pControl, moved, orient, pass.rows, setStationName, setLabel, free)
+        for (let j = 0; j < built.problem.u; j++) built.problem.x0[j] = x0[j]
+        outcome = solve('plane', built.problem)
+      }
+    }
+    reduction = pass.stats
+    const s = summarize('plane', built.problem, outcome, built, planeNames, pass.rows)
+    planeSummary = s.summary
+    relative = s.relative
   }
 
-  const bounds = chiSquareBounds(settings.alpha, totalR)
-  const sigma0 = totalR > 0 ? Math.sqrt(totalVpv / totalR) : null
+  const gridReduction = summarizeReduction(reduction, proj, geoid, method, input.projectHeightM ?? null, [...assumed].sort())
+  const sigma0 = totals.r > 0 ? Math.sqrt(totals.vpv / totals.r) : null
   const result: AdjustmentResult = {
     converged: true,
-    iterations,
-    dof: totalR,
+    iterations: totals.iterations,
+    dof: totals.r,
     sigma0,
-    globalTest: {
-      statistic: totalVpv,
-      lower: bounds.lower,
-      upper: bounds.upper,
-      passed: totalR === 0 || (totalVpv >= bounds.lower && totalVpv <= bounds.upper),
-    },
+    globalTest: globalTestOf(totals.vpv, totals.r, settings.alpha),
     stations: allNames.map((s) => stationOut.get(s)!),
     observations: outputs,
     relative,
     health,
-    counts: { n: totalN, u: totalU, r: totalR },
+    counts: { n: totals.n, u: totals.u, r: totals.r },
     critical: { w: wCrit, tau: planeSummary?.tauCritical ?? heightSummary?.tauCritical ?? null, delta0: d0 },
     settings,
     gridReduction,
+    refraction: { k: refraction.k, sigmaK: refraction.sigmaK, zeniths: heightItems.filter((h) => h.slope).length },
   }
   if (planeSummary) result.plane = planeSummary
   if (heightSummary) result.height = heightSummary
   return result
 }
 
-/**
- * Reduces the plane distances from ground to grid in place (def.value ← value·cf)
- * when the input names a projected CRS; see ./grid for the factors. Lines are
- * placed by the approximate coordinates (a scale error of 1e-4 moves k by far
- * less than 1e-9), heights are the stations' known or approximate heights.
- */
-function reduceToGrid(
-  input: AdjustInput,
-  names: string[],
-  coords: XY[],
-  defs: { def: PlaneDef; rec: ObservationRecord; cf?: number }[],
-  outputs: ObservationResult[],
-  heightOf: (station: string) => number | null,
+/** A placed station's position for the rough convergence of approximate azimuths. */
+function anyPlaced(known: Map<string, XY>): [number, number] {
+  const first = known.values().next().value as XY | undefined
+  return first ? [first.e, first.n] : [500000, 0]
+}
+
+function summarizeReduction(
+  stats: ReductionStats | null,
+  proj: GridProjection | null,
+  geoid: number,
+  method: 'simpson' | 'midpoint' | null,
+  projectHeight: number | null,
+  heightsAssumed: string[],
 ): GridReductionSummary {
-  const none: GridReductionSummary = {
-    applied: false, method: null, radiusM: null, geoidSeparationM: null, distances: 0,
-    meanCombinedFactor: null, minCombinedFactor: null, maxCombinedFactor: null, meanScaleFactor: null, meanElevationFactor: null,
-    heightsAssumed: [],
-  }
-  const spec = input.projection
-  if (!spec) return none
-  if (typeof spec.proj4 !== 'string' || !spec.proj4.trim()) fail('input', 'projection, field proj4: the CRS definition is empty')
-  const method = spec.scaleFactorMethod ?? 'simpson'
-  if (method !== 'simpson' && method !== 'midpoint') fail('input', `projection, field scaleFactorMethod: must be 'simpson' or 'midpoint'`)
-  const geoid = spec.geoidSeparationM ?? 0
-  if (!Number.isFinite(geoid) || Math.abs(geoid) > 200) fail('input', 'projection, field geoidSeparationM: must be a number of metres between −200 and 200')
-  if (spec.meanRadiusM !== undefined && !(Number.isFinite(spec.meanRadiusM) && spec.meanRadiusM > 6.3e6 && spec.meanRadiusM < 6.4e6)) {
-    fail('input', 'projection, field meanRadiusM: must lie between 6 300 000 and 6 400 000 m')
-  }
-  let proj: GridProjection
-  try {
-    proj = new GridProjection(spec.proj4)
-  } catch (e) {
-    return fail('input', `projection, field proj4: ${e instanceof Error ? e.message : String(e)}`)
-  }
-  const distances = defs.filter((d) => d.def.type === 'distance')
-  if (!distances.length || !coords.length) return { ...none, applied: true, method, geoidSeparationM: geoid }
-  let radius = spec.meanRadiusM
-  try {
-    if (radius === undefined) {
-      let e = 0
-      let n = 0
-      for (const c of coords) {
-        e += c.e / coords.length
-        n += c.n / coords.length
-      }
-      radius = proj.gaussianRadius(proj.toGeographic(e, n).lat)
-    }
-  } catch (e) {
-    return fail('input', `projection: the network's centre ${e instanceof Error ? e.message : String(e)}; check that the control coordinates are in this CRS`)
-  }
-  const known = names.map(heightOf)
-  const given = known.filter((h): h is number => h !== null)
-  const fallback = given.length ? given.reduce((a, b) => a + b, 0) / given.length : 0
-  const assumed = new Set<string>()
-  const hAt = (k: number) => {
-    if (known[k] !== null) return known[k]!
-    assumed.add(names[k])
-    return fallback
-  }
-  let sum = 0
-  let sumK = 0
-  let sumE = 0
-  let min = Infinity
-  let max = -Infinity
-  for (const d of distances) {
-    if (d.def.type !== 'distance') continue
-    const a = coords[d.def.at]
-    const b = coords[d.def.to]
-    let k: number
-    try {
-      k = proj.lineScale(a.e, a.n, b.e, b.n, method)
-    } catch (e) {
-      return fail('input', `line ${d.rec.line}: ${e instanceof Error ? e.message : String(e)}; check that the control coordinates are in this CRS`)
-    }
-    const h = (hAt(d.def.at) + hAt(d.def.to)) / 2 + geoid
-    const ef = elevationFactor(radius, h)
-    const cf = ef * k
-    d.def.value *= cf
-    d.cf = cf
-    const out = outputs[d.def.out]
-    out.combinedFactor = cf
-    out.elevationFactor = ef
-    out.scaleFactor = k
-    sum += cf
-    sumK += k
-    sumE += ef
-    if (cf < min) min = cf
-    if (cf > max) max = cf
-  }
-  const cnt = distances.length
+  const f = stats?.factors ?? []
+  const mean = (xs: number[]) => (xs.length ? xs.reduce((a, b) => a + b, 0) / xs.length : null)
+  const applied = proj !== null || projectHeight !== null
   return {
-    applied: true,
-    method,
-    radiusM: radius,
-    geoidSeparationM: geoid,
-    distances: cnt,
-    meanCombinedFactor: sum / cnt,
-    minCombinedFactor: min,
-    maxCombinedFactor: max,
-    meanScaleFactor: sumK / cnt,
-    meanElevationFactor: sumE / cnt,
-    heightsAssumed: [...assumed].sort(),
+    applied,
+    method: proj ? method : null,
+    radiusM: proj ? null : LOCAL_RADIUS,
+    geoidSeparationM: proj ? geoid : null,
+    projectHeightM: proj ? null : projectHeight,
+    distances: applied ? f.length : 0,
+    directions: stats?.directions ?? 0,
+    maxArcToChordArcsec: proj && stats ? stats.maxArcToChord * ((180 * 3600) / Math.PI) : null,
+    meanCombinedFactor: applied ? mean(f.map((x) => x.cf)) : null,
+    minCombinedFactor: applied && f.length ? Math.min(...f.map((x) => x.cf)) : null,
+    maxCombinedFactor: applied && f.length ? Math.max(...f.map((x) => x.cf)) : null,
+    meanScaleFactor: applied ? mean(f.map((x) => x.k)) : null,
+    meanElevationFactor: applied ? mean(f.map((x) => x.ef)) : null,
+    heightsAssumed: applied ? heightsAssumed : [],
   }
+}
+
+/** The σ the adjustment uses for one row: its own, or the profile's (geometry from the approximations). */
+function rowSigma(o: ObservationRecord, ctx: SigmaContext): number {
+  const s = aprioriSigma(o, ctx)
+  if (s === null) return fail('input', `line ${o.line}, column sigma: no σ given and the profile's σ needs a length that is not known`)
+  if (!(Number.isFinite(s) && s > 0)) return fail('input', `line ${o.line}, column sigma: the σ from the instrument profile is ${s}; it must be finite and positive (check the profile)`)
+  return s
 }
 
 function isControlled(c: ControlRecord | null, key: 'sdEast' | 'sdNorth' | 'sdHeight', free: boolean): boolean {
   return !!c && !free && c[key] !== null
 }
 
-function round(e: { semiMajor: number; semiMinor: number; azimuthDeg: number }) {
-  // azimuths that round to 180.0 are the same axis as 0.0
-  const az = e.azimuthDeg >= 180 - 1e-9 ? 0 : e.azimuthDeg
-  return { semiMajor: e.semiMajor, semiMinor: e.semiMinor, azimuthDeg: az }
-}
-
 function stationOfLabel(label: string): string | null {
   const m = /^station (.+) \((east|north|height)\)$/.exec(label) ?? /at station (.+)$/.exec(label)
   return m ? m[1] : null
-}
-
-function isAngular(kind: string): boolean {
-  return kind === 'direction' || kind === 'angle' || kind === 'zenith' || kind === 'azimuth'
 }
 
 function circularMean(a: number[]): number {
@@ -838,348 +633,6 @@ function circularMean(a: number[]): number {
     c += Math.cos(x)
   }
   return Math.atan2(s, c)
-}
-
-function validateProfile(p: InstrumentProfile): void {
-  for (const [k, v] of Object.entries(p)) {
-    if (typeof v !== 'number' || !Number.isFinite(v) || v < 0) fail('input', `instrument profile field ${k} must be a non-negative number`)
-  }
-}
-
-const KINDS = new Set(['direction', 'angle', 'zenith', 'slope_distance', 'horizontal_distance', 'azimuth', 'height_difference'])
-
-function validateObservation(o: ObservationRecord): void {
-  const where = (col: string) => `line ${o.line}, column ${col}`
-  if (!KINDS.has(o.kind)) fail('input', `${where('kind')}: unknown observation kind '${o.kind}'`)
-  if (!o.at) fail('input', `${where('at')}: the station is missing`)
-  if (!o.to) fail('input', `${where('to')}: the target is missing`)
-  if (o.at === o.to) fail('input', `${where('to')}: target and station are both ${o.at}`)
-  if (o.kind === 'angle') {
-    if (!o.from) fail('input', `${where('from')}: an angle needs a backsight`)
-    if (o.from === o.at || o.from === o.to) fail('input', `${where('from')}: backsight must differ from station and foresight`)
-  }
-  if (!Number.isFinite(o.value)) fail('input', `${where('value')}: not a finite number`)
-  if ((o.kind === 'slope_distance' || o.kind === 'horizontal_distance') && !(o.value > 0)) {
-    fail('input', `${where('value')}: a distance must be positive`)
-  }
-  if (o.kind === 'zenith' && !(o.value > 0 && o.value < Math.PI)) fail('input', `${where('value')}: a zenith angle must lie between 0 and 180°`)
-  if (o.sigma !== null && !(Number.isFinite(o.sigma) && o.sigma > 0)) fail('input', `${where('sigma')}: must be a positive number`)
-  for (const k of ['hi', 'ht'] as const) {
-    const v = o[k]
-    if (v !== null && !Number.isFinite(v)) fail('input', `${where(k)}: not a finite number`)
-  }
-  if (o.lengthKm !== null && !(Number.isFinite(o.lengthKm) && o.lengthKm > 0)) fail('input', `${where('length')}: must be a positive number of km`)
-}
-
-/** Structural datum check of the plane network held as given. */
-function planeDatumCheck(names: string[], control: (ControlRecord | null)[], defs: PlaneDef[]): void {
-  const held = control.filter((c) => c).length
-  const hasAzimuth = defs.some((d) => d.type === 'azimuth')
-  const hasDistance = defs.some((d) => d.type === 'distance')
-  if (held === 0) fail('singular', 'no control: hold at least one point fixed or weighted, or choose a free network')
-  if (held === 1 && !hasAzimuth) {
-    fail('singular', `no fixed orientation: hold an azimuth or a second point (only ${names[control.findIndex((c) => c)]} is control)`)
-  }
-  if (held === 1 && !hasDistance) fail('singular', 'no scale: measure a distance or hold a second point')
-}
-
-/** A new station needs at least two independent observation lines. */
-function stationLegCheck(names: string[], control: (ControlRecord | null)[], defs: PlaneDef[], free: boolean): void {
-  const legs: { kind: string; other: number }[][] = names.map(() => [])
-  for (const d of defs) {
-    switch (d.type) {
-      case 'direction':
-      case 'azimuth':
-        legs[d.at].push({ kind: d.type, other: d.to })
-        legs[d.to].push({ kind: d.type, other: d.at })
-        break
-      case 'distance':
-        legs[d.at].push({ kind: 'distance', other: d.to })
-        legs[d.to].push({ kind: 'distance', other: d.at })
-        break
-      case 'angle':
-        legs[d.at].push({ kind: 'angle', other: d.to }, { kind: 'angle', other: d.from })
-        legs[d.to].push({ kind: 'angle', other: d.at })
-        legs[d.from].push({ kind: 'angle', other: d.at })
-        break
-    }
-  }
-  for (let k = 0; k < names.length; k++) {
-    if (control[k] && !free) continue
-    const kinds = new Set(legs[k].map((l) => l.kind))
-    const others = new Set(legs[k].map((l) => l.other))
-    if (kinds.size === 1 && others.size === 1) {
-      const kind = [...kinds][0].replace('_', ' ')
-      const count = legs[k].length
-      fail(
-        'singular',
-        `station ${names[k]} is connected by ${count === 1 ? `one ${kind} only` : `${kind}s to ${names[[...others][0]]} only`}`,
-        [names[k]],
-      )
-    }
-  }
-}
-
-// ---- problem builders ------------------------------------------------------------
-
-function buildPlaneProblem(
-  names: string[],
-  control: (ControlRecord | null)[],
-  coords: XY[],
-  orientation: Float64Array,
-  rows: PlaneRowDef[],
-  setStation: string[],
-  setLabel: string[],
-  free: boolean,
-) {
-  const nS = names.length
-  const nSets = orientation.length
-  // orientation unknowns first, then stations in Cuthill–McKee order: keeps fill low
-  const order = cuthillMcKee(nS, rows.flatMap(({ def }) => (def.type === 'coord' ? [] : def.type === 'angle' ? [[def.at, def.to], [def.at, def.from]] : [[def.at, def.to]])))
-  const stationCols = names.map(() => Int32Array.from([-1, -1]))
-  const labels: string[] = []
-  // each set's orientation sits just before its station's coordinates: keeps R banded
-  const setCol = new Int32Array(nSets)
-  const setsAt = names.map(() => [] as number[])
-  const nameIdx = new Map(names.map((s, k) => [s, k]))
-  for (let s = 0; s < nSets; s++) setsAt[nameIdx.get(setStation[s])!].push(s)
-  let u = 0
-  for (const k of order) {
-    for (const s of setsAt[k]) {
-      setCol[s] = u++
-      labels.push(`orientation of direction set ${setLabel[s] ? `'${setLabel[s]}' ` : ''}at station ${setStation[s]}`)
-    }
-    const c = control[k]
-    if (free || !c || c.sdEast !== null) {
-      stationCols[k][0] = u++
-      labels.push(`station ${names[k]} (east)`)
-    }
-    if (free || !c || c.sdNorth !== null) {
-      stationCols[k][1] = u++
-      labels.push(`station ${names[k]} (north)`)
-    }
-  }
-  const x0 = new Float64Array(u)
-  const tolerance = new Float64Array(u)
-  for (let s = 0; s < nSets; s++) {
-    x0[setCol[s]] = orientation[s]
-    tolerance[setCol[s]] = TOL_ANGLE
-  }
-  for (let k = 0; k < nS; k++) {
-    const [ce, cn] = stationCols[k]
-    if (ce >= 0) {
-      x0[ce] = coords[k].e
-      tolerance[ce] = TOL_LENGTH
-    }
-    if (cn >= 0) {
-      x0[cn] = coords[k].n
-      tolerance[cn] = TOL_LENGTH
-    }
-  }
-  const fixedE = coords.map((c) => c.e)
-  const fixedN = coords.map((c) => c.n)
-  const E = (x: Float64Array, k: number) => (stationCols[k][0] >= 0 ? x[stationCols[k][0]] : fixedE[k])
-  const N = (x: Float64Array, k: number) => (stationCols[k][1] >= 0 ? x[stationCols[k][1]] : fixedN[k])
-
-  const linearize = (x: Float64Array): LinearRow[] =>
-    rows.map(({ def, sigma }) => {
-      const cols: number[] = []
-      const coef: number[] = []
-      const add = (c: number, v: number) => {
-        if (c >= 0) {
-          cols.push(c)
-          coef.push(v)
-        }
-      }
-      const dirTerms = (i: number, j: number, sign: number) => {
-        const de = E(x, j) - E(x, i)
-        const dn = N(x, j) - N(x, i)
-        const d2 = de * de + dn * dn
-        add(stationCols[i][0], (sign * -dn) / d2)
-        add(stationCols[i][1], (sign * de) / d2)
-        add(stationCols[j][0], (sign * dn) / d2)
-        add(stationCols[j][1], (sign * -de) / d2)
-        return azimuth(E(x, i), N(x, i), E(x, j), N(x, j))
-      }
-      let computed: number
-      let misclosure: number
-      switch (def.type) {
-        case 'direction': {
-          const az = dirTerms(def.at, def.to, 1)
-          add(setCol[def.set], -1)
-          computed = az - x[setCol[def.set]]
-          misclosure = wrapPi(def.value - computed)
-          break
-        }
-        case 'azimuth': {
-          computed = dirTerms(def.at, def.to, 1)
-          misclosure = wrapPi(def.value - computed)
-          break
-        }
-        case 'angle': {
-          const af = dirTerms(def.at, def.to, 1)
-          const ab = dirTerms(def.at, def.from, -1)
-          computed = af - ab
-          misclosure = wrapPi(def.value - computed)
-          break
-        }
-        case 'distance': {
-          const i = def.at
-          const j = def.to
-          const de = E(x, j) - E(x, i)
-          const dn = N(x, j) - N(x, i)
-          const d = Math.hypot(de, dn)
-          add(stationCols[i][0], -de / d)
-          add(stationCols[i][1], -dn / d)
-          add(stationCols[j][0], de / d)
-          add(stationCols[j][1], dn / d)
-          computed = d
-          misclosure = def.value - d
-          break
-        }
-        case 'coord': {
-          const c = stationCols[def.st][def.comp]
-          add(c, 1)
-          computed = def.comp === 0 ? E(x, def.st) : N(x, def.st)
-          misclosure = def.value - computed
-          break
-        }
-      }
-      return { cols, coef, misclosure, sigma, computed }
-    })
-
-  const nullSpace = free
-    ? (x: Float64Array) => {
-        let ce = 0
-        let cn = 0
-        for (let k = 0; k < nS; k++) {
-          ce += E(x, k) / nS
-          cn += N(x, k) / nS
-        }
-        const g = [new Float64Array(u), new Float64Array(u), new Float64Array(u), new Float64Array(u)]
-        const weights = new Float64Array(u)
-        for (let k = 0; k < nS; k++) {
-          const [ie, in_] = stationCols[k]
-          const e = E(x, k) - ce
-          const n = N(x, k) - cn
-          g[0][ie] = 1
-          g[1][in_] = 1
-          // rotation by a small angle: azimuths and all orientations grow by it
-          g[2][ie] = n
-          g[2][in_] = -e
-          g[3][ie] = e
-          g[3][in_] = n
-          weights[ie] = weights[in_] = 1
-        }
-        for (let s = 0; s < nSets; s++) g[2][setCol[s]] = 1
-        return { g, weights }
-      }
-    : undefined
-
-  // the statistics read each station's block and the blocks between connected stations
-  const cofactorGroups = () => {
-    const own = (k: number) => [...stationCols[k]].filter((c) => c >= 0)
-    const groups = names.map((_, k) => own(k))
-    for (const { def } of rows) {
-      if (def.type === 'coord') continue
-      groups.push([...own(def.at), ...own(def.to)])
-      if (def.type === 'angle') groups.push([...own(def.at), ...own(def.from)])
-    }
-    return groups
-  }
-
-  return {
-    problem: { u, labels, tolerance, x0, linearize, nullSpace, cofactorGroups } satisfies NonlinearProblem,
-    rowOut: rows.map((r) => r.def.out),
-    rowScale: rows.map((r) => r.outScale),
-    stationCols,
-  }
-}
-
-function buildHeightProblem(
-  names: string[],
-  control: (ControlRecord | null)[],
-  heights: number[],
-  rows: HeightRowDef[],
-  free: boolean,
-) {
-  const nS = names.length
-  const order = cuthillMcKee(nS, rows.filter((r) => !r.coord).map((r) => [r.at, r.to]))
-  const stationCols = names.map(() => Int32Array.from([-1]))
-  const labels: string[] = []
-  let u = 0
-  for (const k of order) {
-    const c = control[k]
-    if (free || !c || c.sdHeight !== null) {
-      stationCols[k][0] = u++
-      labels.push(`station ${names[k]} (height)`)
-    }
-  }
-  const x0 = new Float64Array(u)
-  const tolerance = new Float64Array(u).fill(TOL_LENGTH)
-  for (let k = 0; k < nS; k++) if (stationCols[k][0] >= 0) x0[stationCols[k][0]] = heights[k]
-  const H = (x: Float64Array, k: number) => (stationCols[k][0] >= 0 ? x[stationCols[k][0]] : heights[k])
-  const linearize = (x: Float64Array): LinearRow[] =>
-    rows.map((r) => {
-      const cols: number[] = []
-      const coef: number[] = []
-      const add = (c: number, v: number) => {
-        if (c >= 0) {
-          cols.push(c)
-          coef.push(v)
-        }
-      }
-      let computed: number
-      if (r.coord) {
-        add(stationCols[r.at][0], 1)
-        computed = H(x, r.at)
-      } else {
-        add(stationCols[r.at][0], -1)
-        add(stationCols[r.to][0], 1)
-        computed = H(x, r.to) - H(x, r.at)
-      }
-      return { cols, coef, misclosure: r.value - computed, sigma: r.sigma, computed }
-    })
-  const nullSpace = free
-    ? () => {
-        const g = new Float64Array(u).fill(1)
-        return { g: [g], weights: new Float64Array(u).fill(1) }
-      }
-    : undefined
-  return {
-    problem: { u, labels, tolerance, x0, linearize, nullSpace } satisfies NonlinearProblem,
-    rowOut: rows.map((r) => r.out),
-    rowScale: rows.map((r) => r.outScale),
-    stationCols,
-  }
-}
-
-/** Cuthill–McKee ordering of the station graph (bandwidth reduction, less fill in QR). */
-function cuthillMcKee(n: number, edges: number[][]): number[] {
-  const adj: Set<number>[] = Array.from({ length: n }, () => new Set())
-  for (const [a, b] of edges) {
-    if (a === b) continue
-    adj[a].add(b)
-    adj[b].add(a)
-  }
-  const seen = new Uint8Array(n)
-  const order: number[] = []
-  const byDegree = Array.from({ length: n }, (_, i) => i).sort((a, b) => adj[a].size - adj[b].size || a - b)
-  for (const start of byDegree) {
-    if (seen[start]) continue
-    seen[start] = 1
-    const queue = [start]
-    for (let h = 0; h < queue.length; h++) {
-      const v = queue[h]
-      order.push(v)
-      const next = [...adj[v]].filter((w) => !seen[w]).sort((a, b) => adj[a].size - adj[b].size || a - b)
-      for (const w of next) {
-        seen[w] = 1
-        queue.push(w)
-      }
-    }
-  }
-  return order
 }
 
 /** Station names numbered in order of first use: the unknowns' station index of one network. */

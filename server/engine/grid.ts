@@ -1,6 +1,7 @@
-// Grid and ground: reduction of measured horizontal (ground) distances to the
-// grid of a projected coordinate reference system before they enter the plane
-// adjustment.
+// Projection access for the reductions of ./geodesy: grid ↔ geographic, radii
+// of curvature and the point scale factor of a projected CRS. (The reductions
+// themselves — slope and horizontal distances to the grid, directions and
+// azimuths to grid chords — are in ./geodesy and ./reduce.)
 //
 //   D_grid = D_ground · R/(R + h) · k
 //
@@ -28,8 +29,6 @@ import proj4 from 'proj4'
 export interface ProjectionSpec {
   /** proj4 definition of the projected CRS the control coordinates are in */
   proj4: string
-  /** radius for the elevation factor; default the Gaussian mean radius at the network */
-  meanRadiusM?: number
   /** geoid separation N (ellipsoidal = orthometric + N), one value for the network; default 0 */
   geoidSeparationM?: number
   /** point scale factor along the line: Simpson's rule (default) or at the mid-point */

@@ -83,15 +83,37 @@ export function solveNonlinear(problem: NonlinearProblem, maxIterations: number)
       return { cols: row.cols, values, rhs: row.misclosure * w }
     })
     for (let j = 0; j < u; j++) columnNorms[j] = Math.sqrt(columnNorms[j])
+    let datum: Datum | null = null
+    if (problem.nullSpace) datum = buildDatum(problem.nullSpace(x), rows, u)
+    const defect = datum ? datum.g.length : 0
+    // A free network's datum defect is removed exactly: the inner constraints
+    // Bᵀ·dx = 0 join the rows (scaled like the design's columns), so the
+    // factorization is of full rank and no roundoff-sized pivot is divided by;
+    // the S-transformation below then gives the same solution and cofactors
+    // as the minimum-norm ones (S·(AᵀA + BBᵀ)⁻¹·Sᵀ = Q_S, (AᵀA + BBᵀ)⁻¹ being a
+    // g-inverse of AᵀA when BᵀG is regular — Koch, K.-R. (1999) Parameter
+    // Estimation and Hypothesis Testing in Linear Models, 2nd ed., Springer, §3.5, from memory).
+    if (datum) {
+      let mean = 0
+      for (let j = 0; j < u; j++) mean += columnNorms[j] / u
+      for (const b of datum.b) {
+        const cols: number[] = []
+        const values: number[] = []
+        let norm = 0
+        for (let j = 0; j < u; j++) if (b[j] !== 0) norm += b[j] * b[j]
+        norm = Math.sqrt(norm)
+        for (let j = 0; j < u; j++) if (b[j] !== 0) {
+          cols.push(j)
+          values.push((b[j] / norm) * (mean || 1))
+        }
+        whitened.push({ cols, values, rhs: 0 })
+      }
+    }
     // tall sparse system → square R₀ by row reflections, then pivoted Householder QR on R₀
     const compressed = compressRows(whitened, u)
     const f = factorize(compressed.r0, u, u, compressed.qtb)
     timings.factorizationMs += performance.now() - t0
-
-    let datum: Datum | null = null
-    if (problem.nullSpace) datum = buildDatum(problem.nullSpace(x), rows, u)
-    const defect = datum ? datum.g.length : 0
-    if (f.rank < u - defect) {
+    if (f.rank < u) {
       return { ok: false, code: 'singular', dependent: Array.from(f.perm.subarray(f.rank)) }
     }
     let dx = solve(f)

@@ -17,7 +17,7 @@ export function formatReport(result: AdjustmentResult): string {
   out.push('Tiepoint network adjustment')
   out.push('='.repeat(27))
   out.push(
-    result.dof > 0
+    g.passed !== null
       ? `${g.passed ? 'The network fits its a-priori precision' : 'The network does NOT fit its a-priori precision'}: ` +
           `σ̂0 = ${f(result.sigma0, 3)}, global test ${g.passed ? 'passed' : 'failed'} at ${result.settings.alpha * 100} %.`
       : 'No redundancy: the network is solved but nothing is checked (degrees of freedom 0).',
@@ -29,20 +29,35 @@ export function formatReport(result: AdjustmentResult): string {
   out.push(`Settings: datum ${result.settings.datum}, scaling ${result.settings.scaling}, α = ${result.settings.alpha}, α0 = ${result.settings.alpha0}, β0 = ${result.settings.beta0}`)
   out.push(`Iterations ${result.iterations}; observations n = ${result.counts.n}, unknowns u = ${result.counts.u}, redundancy r = ${result.counts.r}`)
   const gr = result.gridReduction
-  if (gr?.applied) {
+  if (gr?.applied && gr.projectHeightM === null) {
     out.push(
       `Grid and ground: ${gr.distances} distance${gr.distances === 1 ? '' : 's'} reduced to the grid; combined factor mean ${f(gr.meanCombinedFactor, 8)} ` +
         `(${f(gr.minCombinedFactor, 8)} … ${f(gr.maxCombinedFactor, 8)}) = scale factor ${f(gr.meanScaleFactor, 8)} × elevation factor ${f(gr.meanElevationFactor, 8)}; ` +
-        `R ${f(gr.radiusM, 0)} m, geoid separation ${f(gr.geoidSeparationM, 2)} m, k by ${gr.method === 'midpoint' ? 'mid-point' : "Simpson's rule"}` +
+        `geoid separation ${f(gr.geoidSeparationM, 2)} m, k by ${gr.method === 'midpoint' ? 'mid-point' : "Simpson's rule"}` +
         (gr.heightsAssumed.length ? `; no height known for ${gr.heightsAssumed.join(', ')} (mean known height used)` : ''),
     )
+    out.push(
+      `  ${gr.directions} direction${gr.directions === 1 ? '' : 's'}, angle${gr.directions === 1 ? '' : 's'} and azimuth${gr.directions === 1 ? '' : 's'} reduced to grid chords ` +
+        `(arc-to-chord up to ${f(gr.maxArcToChordArcsec, 2)}″, target height; azimuths also by the grid convergence).`,
+    )
+  } else if (gr?.applied) {
+    out.push(
+      `Project height: local plane at ${f(gr.projectHeightM, 3)} m; ${gr.distances} ground distance${gr.distances === 1 ? '' : 's'} reduced to that height ` +
+        `(factor mean ${f(gr.meanCombinedFactor, 8)}, sphere R ${f(gr.radiusM, 0)} m).`,
+    )
   } else if (gr) {
-    out.push('Grid and ground: local plane, distances used as measured.')
+    out.push('Grid and ground: local plane, horizontal distances used as measured; slope distances at the mean height of their marks.')
+  }
+  if (result.refraction && result.refraction.zeniths > 0) {
+    out.push(
+      `Refraction: coefficient k = ${result.refraction.k.toFixed(3)} ± ${result.refraction.sigmaK.toFixed(3)} on ${result.refraction.zeniths} zenith angle${result.refraction.zeniths === 1 ? '' : 's'} ` +
+        `(refraction angle k·S/2R; σk enters each trigonometric height as σk·D²/2R).`,
+    )
   }
   out.push('')
   out.push('Global test (two-sided χ² on vᵀPv)')
   const netLine = (name: string, s: NetworkSummary) =>
-    `  ${name.padEnd(7)} vᵀPv ${f(s.globalTest.statistic, 3, 10)}  interval [${f(s.globalTest.lower, 3)}, ${f(s.globalTest.upper, 3)}]  r ${String(s.dof).padStart(5)}  σ̂0 ${f(s.sigma0, 3)}  ${s.globalTest.passed ? 'passed' : 'FAILED'}`
+    `  ${name.padEnd(7)} vᵀPv ${f(s.globalTest.statistic, 3, 10)}  interval [${f(s.globalTest.lower, 3)}, ${f(s.globalTest.upper, 3)}]  r ${String(s.dof).padStart(5)}  σ̂0 ${f(s.sigma0, 3)}  ${s.globalTest.passed === null ? 'not applicable (r = 0)' : s.globalTest.passed ? 'passed' : 'FAILED'}`
   out.push(netLine('all', { dof: result.dof, sigma0: result.sigma0, globalTest: g } as NetworkSummary))
   if (result.plane) out.push(netLine('plane', result.plane))
   if (result.height) out.push(netLine('height', result.height))

@@ -2,14 +2,9 @@
 // worker, CLI). Units inside the engine are SI: metres and radians. Conversion
 // to feet, gon, arcseconds etc. happens only at the edges (readers, reports).
 
-export type ObservationKind =
-  | 'direction'
-  | 'angle'
-  | 'zenith'
-  | 'slope_distance'
-  | 'horizontal_distance'
-  | 'azimuth'
-  | 'height_difference'
+// The kinds come from the model registry (one file per kind in ./models).
+import type { ObservationKind } from './models/registry'
+export type { ObservationKind }
 
 /** A problem found in an input file: where (line, column) and why. */
 export interface ReadIssue {
@@ -46,7 +41,7 @@ export interface ObservationRecord {
   value: number
   /** a-priori standard deviation in metres or radians; null = from the instrument profile */
   sigma: number | null
-  /** instrument and target heights in metres */
+  /** instrument and target heights above the marks, metres (one unit rule: see io/README.md) */
   hi: number | null
   ht: number | null
   /** direction-set name; null = one set per station */
@@ -110,8 +105,6 @@ export interface ApproximateCoordinate {
 export interface ProjectionInput {
   /** proj4 definition, e.g. '+proj=utm +zone=33 +ellps=GRS80 +units=m' */
   proj4: string
-  /** radius for the elevation factor R/(R + h); default the Gaussian mean radius at the network */
-  meanRadiusM?: number
   /** geoid separation N for the whole network (ellipsoidal height = height + N); default 0 */
   geoidSeparationM?: number
   /** point scale factor of a line by Simpson's rule over ends and mid-point (default) or at the mid-point */
@@ -124,17 +117,31 @@ export interface AdjustInput {
   profile?: InstrumentProfile
   approximate?: ApproximateCoordinate[]
   projection?: ProjectionInput
+  /** coefficient of refraction k and its σ for zenith angles; default 0.13 ± 0.05 (common practice) */
+  refraction?: { k: number; sigmaK: number }
+  /** local plane only: the height (m) the plane lies at; ground distances are reduced to it */
+  projectHeightM?: number | null
 }
 
-/** How distances were reduced from ground to grid (applied: false on a local plane). */
+/**
+ * How observations were reduced to the plane: to the grid of a projected CRS,
+ * or on a local plane to the project height (applied: false on a local plane
+ * without one — distances used as measured, slope distances at their marks' mean height).
+ */
 export interface GridReductionSummary {
   applied: boolean
   method: 'simpson' | 'midpoint' | null
-  /** radius used in the elevation factor, metres */
+  /** sphere radius of a local plane, metres (projected: the ellipsoid's normal-section radius per line) */
   radiusM: number | null
   geoidSeparationM: number | null
+  /** local plane: the project height distances were reduced to */
+  projectHeightM: number | null
   /** number of distances reduced */
   distances: number
+  /** directions, angles and azimuths reduced to grid chords (projected CRS) */
+  directions: number
+  /** largest arc-to-chord correction of a direction, arcseconds (projected CRS) */
+  maxArcToChordArcsec: number | null
   meanCombinedFactor: number | null
   minCombinedFactor: number | null
   maxCombinedFactor: number | null
@@ -222,7 +229,8 @@ export interface GlobalTest {
   statistic: number
   lower: number
   upper: number
-  passed: boolean
+  /** null: not applicable (no redundancy, nothing is checked) */
+  passed: boolean | null
 }
 
 export interface NetworkSummary {
@@ -253,6 +261,8 @@ export interface AdjustmentResult {
   settings: AdjustSettings
   /** ground-to-grid reduction of distances (always set by adjustNetwork) */
   gridReduction?: GridReductionSummary
+  /** the coefficient of refraction used for zenith angles, its σ, and how many zeniths used it */
+  refraction?: { k: number; sigmaK: number; zeniths: number }
 }
 
 export type AdjustFailureCode = 'singular' | 'not_converged' | 'unplaceable' | 'input'

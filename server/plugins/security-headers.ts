@@ -2,18 +2,17 @@
 // Permissions-Policy, frame-ancestors, a locked-down CSP for everything that
 // is not a page, HSTS over https) are set when the request arrives, before any
 // handler, so static files get them too. Pages replace the CSP with their own:
-// Nuxt writes one
-// inline script (window.__NUXT__ with the runtime config), which is allowed by
-// a nonce made fresh for each response; no other inline script runs. A firm's
-// map-tile host is allowed only when one of the signed-in person's firms set one.
+// Nuxt writes one inline script (window.__NUXT__ with the runtime config),
+// which is allowed by a nonce made fresh for each response; no other inline
+// script runs. A firm's map-tile host is allowed only when one of the
+// signed-in person's firms set one.
 import { randomBytes } from 'node:crypto'
 import type { H3Event } from 'h3'
 import { eq } from 'drizzle-orm'
 import { getToken } from '#auth'
 import { firms, memberships } from '../db/schema'
 import { useDb } from '../db/client'
-import { servedOverHttps } from '../utils/request'
-
+import { fixedHeaders, pageCsp, tileOrigin } from '../utils/security-headers'
 
 /** Origins of the tile servers the signed-in person's firms configured (none when signed out). */
 async function tileOrigins(event: H3Event): Promise<string[]> {
@@ -25,47 +24,12 @@ async function tileOrigins(event: H3Event): Promise<string[]> {
       .innerJoin(firms, eq(firms.id, memberships.firmId)).where(eq(memberships.userId, uid))
     const out = new Set<string>()
     for (const r of rows) {
-      const url = r.settings?.tileUrl
-      if (!url) continue
-      // {s}.tile.example → every subdomain of the host
-      const m = /^(https:\/\/)([^/?#]+)/i.exec(url)
-      if (m) out.add(m[1]!.toLowerCase() + m[2]!.replace(/\{s\}/g, '*').toLowerCase())
+      const origin = tileOrigin(r.settings?.tileUrl)
+      if (origin) out.add(origin)
     }
     return [...out]
   } catch {
     return []
-  }
-}
-
-export function pageCsp(nonce: string, tiles: string[]): string {
-  return [
-    "default-src 'self'",
-    `script-src 'self' 'nonce-${nonce}'`,
-    // Vue and Leaflet set style attributes; styles cannot run code.
-    "style-src 'self' 'unsafe-inline'",
-    `img-src 'self' data: blob:${tiles.length ? ' ' + tiles.join(' ') : ''}`,
-    "font-src 'self' data:",
-    "connect-src 'self'",
-    "object-src 'none'",
-    "base-uri 'self'",
-    "form-action 'self'",
-    "frame-ancestors 'none'",
-    ...(servedOverHttps() ? ['upgrade-insecure-requests'] : []),
-  ].join('; ')
-}
-
-/** Not a page: API answers and files. Nothing may run, frame it or be fetched by it. */
-const FILE_CSP = "default-src 'none'; img-src 'self'; style-src 'self'; font-src 'self'; frame-ancestors 'none'; base-uri 'none'; form-action 'none'"
-
-export function fixedHeaders(): Record<string, string> {
-  return {
-    'content-security-policy': FILE_CSP,
-    'x-frame-options': 'DENY',
-    'x-content-type-options': 'nosniff',
-    'referrer-policy': 'strict-origin-when-cross-origin',
-    'permissions-policy': 'camera=(), microphone=(), geolocation=(), payment=(), usb=()',
-    'cross-origin-opener-policy': 'same-origin',
-    ...(servedOverHttps() ? { 'strict-transport-security': 'max-age=31536000; includeSubDomains' } : {}),
   }
 }
 

@@ -347,6 +347,8 @@ function buildSummary(r: AdjustmentResult, tolerance: ToleranceSpec | null, pass
   return {
     converged: r.converged, iterations: r.iterations, dof: r.dof, sigma0: r.sigma0, globalTest: r.globalTest, counts: r.counts,
     health: r.health, critical: r.critical, plane: r.plane ?? null, height: r.height ?? null,
+    // the geodetic settings the run used (project settings at queue time), shown with the run
+    gridReduction: r.gridReduction ?? null, refraction: r.refraction ?? null,
     flagged: used.filter((o) => o.flagged).length,
     weak: used.filter((o) => o.weak).length,
     excluded: r.observations.filter((o) => o.excluded).length,

@@ -280,7 +280,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   if (r.sigma0 !== null) line('A-posteriori standard deviation of unit weight', r.sigma0.toFixed(3))
   if (r.globalTest) {
     const g = r.globalTest
-    line('Global test (chi-square)', `${g.passed ? 'passed' : 'failed'}: statistic ${g.statistic.toFixed(2)}, acceptance interval ${g.lower.toFixed(2)} to ${g.upper.toFixed(2)}`)
+    line('Global test (chi-square)', `${g.passed === null ? 'not applicable (no redundancy)' : g.passed ? 'passed' : 'failed'}: statistic ${g.statistic.toFixed(2)}, acceptance interval ${g.lower.toFixed(2)} to ${g.upper.toFixed(2)}`)
   }
   line('Input hash', r.inputHash)
 

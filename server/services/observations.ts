@@ -7,7 +7,7 @@ import { createHash } from 'node:crypto'
 import { Readable } from 'node:stream'
 import { pipeline } from 'node:stream/promises'
 import { from as copyFrom } from 'pg-copy-streams'
-import { and, asc, desc, eq, ilike, or, sql } from 'drizzle-orm'
+import { and, asc, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import Papa from 'papaparse'
 import { CHIEFS } from '../../shared/roles'
@@ -15,11 +15,11 @@ import type { ManualObservations, ObservationPatch, ObservationQuery } from '../
 import { readObservationCsv } from '../engine/io/csv'
 import { readLandXml } from '../engine/io/landxml'
 import { RAD_PER_ARCSEC, formatDms, formatGon, formatLength, parseAngle, parseLength } from '../engine/io/units'
-import { distanceSigma, levellingSigma, zenithSigma } from '../engine/sigma'
+import { aprioriSigma } from '../engine/models/registry'
 import type { InstrumentProfile, ObservationRecord, ReadIssue, ReadResult } from '../engine/types'
 import { txClient, useDb } from '../db/client'
 import type { Tx } from '../db/client'
-import { crewMembers, crews, instrumentProfiles, observationSets, observations, projectCrews, users } from '../db/schema'
+import { crewMembers, crews, instrumentProfiles, observationSets, observations, projectCrews, stations, users } from '../db/schema'
 import type { ObservationRow, ObservationSetRow, Project } from '../db/schema'
 import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
@@ -253,7 +253,7 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
   const profileRow = await loadProfile(ctx, input.instrumentProfileId)
   const crewId = await resolveCrew(ctx, project, input.crewId)
   const format: FileFormat = input.format ?? detectFormat(input.name, text)
-  const read = format === 'landxml' ? readLandXml(text) : readObservationCsv(text, profileRow ? { profile: profileOf(profileRow) } : {})
+  const read = format === 'landxml' ? readLandXml(text) : readObservationCsv(text, { heightUnit: project.units, ...(profileRow ? { profile: profileOf(profileRow) } : {}) })
   text = undefined
   if (!read.ok) refuse(read)
   const unstorable = nulCharacters(read)
@@ -333,7 +333,7 @@ export async function addManualObservations(ctx: FirmContext, project: Project, 
   // The trailing comment makes every typed-in set unique (two people may type the same rows).
   const text = `${csv}\n# typed in by ${ctx.user.email} at ${new Date().toISOString()}\n`
   const profileRow = await loadProfile(ctx, body.instrumentProfileId)
-  const read = readObservationCsv(text, profileRow ? { profile: profileOf(profileRow) } : {})
+  const read = readObservationCsv(text, { heightUnit: project.units, ...(profileRow ? { profile: profileOf(profileRow) } : {}) })
   if (!read.ok) {
     throw new DomainError('invalid', `${new Set(read.errors.map((e) => e.line)).size} typed-in row(s) are not valid; nothing was saved`,
       read.errors.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.${e.column}`, message: `row ${e.line - 1}, ${e.column}: ${e.message}` })))
@@ -402,7 +402,7 @@ export interface ObservationDto {
   /** value in the project's units / angle format, number only */
   display: string
   displayUnit: string
-  /** σ that the adjustment will use before centering (m or rad), and where it comes from */
+  /** σ the adjustment will use (m or rad; the engine's own σ function, centering included), and where it comes from; null when a length it needs is unknown */
   sigmaUsed: number | null
   sigmaDisplay: string
   sigmaSource: 'file' | 'profile' | 'none'
@@ -423,19 +423,19 @@ export function formatValue(kind: string, value: number, project: Pick<Project, 
   return { text: formatLength(value, project.units, 4), unit }
 }
 
-function sigmaFor(o: ObservationRow, profile: InstrumentProfile | null): { value: number | null; source: ObservationDto['sigmaSource'] } {
+/** Horizontal length between two stations from their stored control or approximate positions, or null. */
+type LengthOf = (a: string, b: string) => number | null
+
+/**
+ * The σ the adjustment will use for the row — the engine's own function
+ * (aprioriSigma), with the lengths known from the stored station positions —
+ * or null when a length it needs is not known yet.
+ */
+function sigmaFor(o: ObservationRow, profile: InstrumentProfile | null, lengthOf: LengthOf): { value: number | null; source: ObservationDto['sigmaSource'] } {
   if (o.sigma !== null) return { value: o.sigma, source: 'file' }
   if (!profile) return { value: null, source: 'none' }
-  switch (o.kind) {
-    case 'direction':
-    case 'azimuth': return { value: profile.directionArcsec * RAD_PER_ARCSEC, source: 'profile' }
-    // An angle is the difference of two directions (common practice: σ√2).
-    case 'angle': return { value: Math.SQRT2 * profile.directionArcsec * RAD_PER_ARCSEC, source: 'profile' }
-    case 'zenith': return { value: zenithSigma(profile), source: 'profile' }
-    case 'slope_distance':
-    case 'horizontal_distance': return { value: distanceSigma(profile, o.value), source: 'profile' }
-    case 'height_difference': return o.lengthKm ? { value: levellingSigma(profile, o.lengthKm), source: 'profile' } : { value: null, source: 'none' }
-  }
+  const value = aprioriSigma({ ...o, set: o.setName, sigma: null }, { profile, length: lengthOf })
+  return value === null ? { value: null, source: 'none' } : { value, source: 'profile' }
 }
 
 function sigmaText(kind: string, sigma: number | null): string {
@@ -443,9 +443,9 @@ function sigmaText(kind: string, sigma: number | null): string {
   return ANGLE_KINDS.has(kind) ? `${(sigma / RAD_PER_ARCSEC).toFixed(1)}″` : `${(sigma * 1000).toFixed(1)} mm`
 }
 
-function observationDto(o: ObservationRow, project: Project, profile: InstrumentProfile | null): ObservationDto {
+function observationDto(o: ObservationRow, project: Project, profile: InstrumentProfile | null, lengthOf: LengthOf = () => null): ObservationDto {
   const f = formatValue(o.kind, o.value, project)
-  const s = sigmaFor(o, profile)
+  const s = sigmaFor(o, profile, lengthOf)
   return {
     id: o.id, setId: o.setId, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to,
     value: o.value, originalValue: o.originalValue, edited: o.originalValue !== null && o.originalValue !== o.value,
@@ -494,8 +494,28 @@ export async function listObservations(ctx: FirmContext, project: Project, q: Ob
     pageSize: q.pageSize,
     units: project.units,
     angleFormat: project.angleFormat,
-    rows: rows.map((o) => observationDto(o, project, profiles.get(o.setId) ?? null)),
+    rows: await withLengths(ctx, project, rows, (lengthOf) => rows.map((o) => observationDto(o, project, profiles.get(o.setId) ?? null, lengthOf))),
   }
+}
+
+/** Lengths between the stations of a page of rows, from their stored control or approximate positions. */
+async function withLengths<T>(ctx: FirmContext, project: Project, rows: ObservationRow[], f: (lengthOf: LengthOf) => T): Promise<T> {
+  const names = [...new Set(rows.flatMap((o) => [o.at, o.to, ...(o.from ? [o.from] : [])]))]
+  const pos = new Map<string, [number, number]>()
+  if (names.length) {
+    const found = await useDb().select({ name: stations.name, ce: stations.controlEast, cn: stations.controlNorth, ae: stations.approxEast, an: stations.approxNorth })
+      .from(stations).where(and(eq(stations.firmId, ctx.firm.id), eq(stations.projectId, project.id), inArray(stations.name, names)))
+    for (const s of found) {
+      const e = s.ce ?? s.ae
+      const n = s.cn ?? s.an
+      if (e !== null && n !== null) pos.set(s.name, [e, n])
+    }
+  }
+  return f((a, b) => {
+    const p = pos.get(a)
+    const q = pos.get(b)
+    return p && q ? Math.hypot(q[0] - p[0], q[1] - p[1]) : null
+  })
 }
 
 /** Parses a value typed in the project's units / angle format into metres or radians. */
@@ -538,7 +558,7 @@ export async function updateObservation(ctx: FirmContext, project: Project, id: 
       before: snap(before), after: { ...snap(after!), ...(body.reason ? { reason: body.reason } : {}) },
     })
     const profiles = await profilesBySet(ctx, project)
-    return observationDto(after!, project, profiles.get(after!.setId) ?? null)
+    return withLengths(ctx, project, [after!], (lengthOf) => observationDto(after!, project, profiles.get(after!.setId) ?? null, lengthOf))
   })
 }
 

@@ -20,6 +20,10 @@ export interface ProjectDto {
   angleFormat: Project['angleFormat']
   status: Project['status']
   toleranceProfileId: number | null
+  geoidSeparationM: number
+  refractionK: number
+  refractionSigmaK: number
+  projectHeightM: number | null
   createdAt: string
   updatedAt: string
   counts?: { stations: number; observations: number; runs: number }
@@ -36,6 +40,10 @@ export function projectDto(p: Project): ProjectDto {
     angleFormat: p.angleFormat,
     status: p.status,
     toleranceProfileId: p.toleranceProfileId,
+    geoidSeparationM: p.geoidSeparationM,
+    refractionK: p.refractionK,
+    refractionSigmaK: p.refractionSigmaK,
+    projectHeightM: p.projectHeightM,
     createdAt: p.createdAt.toISOString(),
     updatedAt: p.updatedAt.toISOString(),
   }

@@ -8,7 +8,7 @@ import type { RunSettings } from '../../shared/schemas/adjustments'
 import { useDb } from '../db/client'
 import type { Db, Tx } from '../db/client'
 import { instrumentProfiles, observationSets, observations, projects, stations, toleranceProfiles } from '../db/schema'
-import { angleSigma, directionSigma, distanceSigma, levellingSigma, zenithSigma } from '../engine/sigma'
+import { aprioriSigma } from '../engine/models/registry'
 import type { AdjustInput, AdjustSettings, ApproximateCoordinate, ControlRecord, InstrumentProfile, ObservationRecord } from '../engine/types'
 import type { ToleranceSpec } from './accuracy'
 
@@ -143,17 +143,8 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
     let sigma = o.sigma
     const pid = setProfile.get(o.setId) ?? null
     if (sigma === null && pid !== mainProfileId && pid !== null) {
-      const p = profiles.get(pid)!
-      const dTo = lengthOf(o.at, o.to)
-      if (o.kind === 'slope_distance' || o.kind === 'horizontal_distance') sigma = distanceSigma(p, o.value)
-      else if (o.kind === 'zenith') sigma = zenithSigma(p)
-      else if (o.kind === 'height_difference' && o.lengthKm !== null) sigma = levellingSigma(p, o.lengthKm)
-      else if ((o.kind === 'direction' || o.kind === 'azimuth') && dTo !== null) sigma = directionSigma(p, dTo)
-      else if (o.kind === 'angle' && o.from) {
-        const dB = lengthOf(o.at, o.from)
-        const dBF = lengthOf(o.from, o.to)
-        if (dB !== null && dTo !== null && dBF !== null) sigma = angleSigma(p, dB, dTo, dBF)
-      }
+      // the engine's own σ function, with this set's profile and the lengths known before the run
+      sigma = aprioriSigma({ ...o, set: o.setName, sigma: null }, { profile: profiles.get(pid)!, length: lengthOf })
       if (sigma === null) warnings.push(`line ${o.line} of set ${o.setId}: σ taken from the run's main instrument profile (no length known to apply its own)`)
     }
     return {
@@ -163,10 +154,15 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
   })
 
   // a projected CRS: the engine reduces ground distances to the grid (local plane: nothing to reduce)
-  const projection = project.crs !== 'local' && project.crsDefinition ? { proj4: project.crsDefinition } : undefined
+  const projection = project.crs !== 'local' && project.crsDefinition ? { proj4: project.crsDefinition, geoidSeparationM: project.geoidSeparationM } : undefined
+  // the project's geodetic settings go to the engine and into the hash, so a run records what it used
+  const refraction = { k: project.refractionK, sigmaK: project.refractionSigmaK }
+  const projectHeightM = project.crs === 'local' ? project.projectHeightM : null
   const resolved = { ...settings, observationSetIds: setIds, toleranceProfileId }
   const hashed = {
     projection,
+    refraction,
+    projectHeightM,
     settings: resolved,
     sets: usedSets.map((s) => ({ id: s.id, sha256: s.sha256, instrumentProfileId: s.instrumentProfileId })),
     profiles: [...profiles].sort((a, b) => a[0] - b[0]),
@@ -183,7 +179,7 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
   const hash = createHash('sha256').update(canonicalJson(hashed)).digest('hex')
   const mainProfile = mainProfileId === null ? undefined : profiles.get(mainProfileId)
   return {
-    input: { controls, observations: records, ...(mainProfile ? { profile: mainProfile } : {}), approximate, ...(projection ? { projection } : {}) },
+    input: { controls, observations: records, ...(mainProfile ? { profile: mainProfile } : {}), approximate, ...(projection ? { projection } : {}), refraction, projectHeightM },
     engineSettings: { datum: settings.datum === 'free' ? 'free' : 'as-given', scaling: settings.scaling, confidence: settings.confidence },
     settings: resolved,
     tolerance,

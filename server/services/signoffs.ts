@@ -271,7 +271,16 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
 /** What a signer must knowingly accept: a failed global test, flagged observations still in use. */
 export function failedTests(result: AdjustmentResult): string[] {
   const out: string[] = []
-  if (!result.globalTest.passed) out.push('failed its global test')
+  // the plane and the height network are gated separately: one may pass while the
+  // other fails or has no redundancy at all (its global test is then not applicable)
+  if (result.globalTest.passed === false) out.push('failed its global test')
+  const nets = [['plane', result.plane], ['height', result.height]] as const
+  for (const [name, net] of nets) {
+    if (!net) continue
+    if (net.globalTest.passed === false && result.globalTest.passed !== false) out.push(`the ${name} network failed its global test`)
+    if (net.globalTest.passed === null) out.push(`the ${name} network has no redundancy: its global test is not applicable and nothing in it is checked`)
+  }
+  if (result.globalTest.passed === null && !result.plane && !result.height) out.push('has no redundancy: the global test is not applicable')
   const flagged = result.observations.filter((o) => !o.excluded && (o.flagged || o.tauFlagged)).length
   if (flagged) out.push(`still uses ${flagged} flagged observation${flagged === 1 ? '' : 's'}`)
   return out

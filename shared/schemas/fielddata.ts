@@ -3,15 +3,14 @@
 // Station coordinates travel in metres; the app converts to and from the
 // project's display units at its edge.
 import { z } from 'zod'
+import { OBSERVATION_KINDS } from '../observation-kinds'
 import { nameText } from './text'
 
 const name = nameText(100)
 const metres = z.number().finite().gt(-1e8, 'is too large for a coordinate').lt(1e8, 'is too large for a coordinate')
 const sd = z.number().finite().positive('must be positive (leave it empty to hold the value fixed)').max(1000, 'is implausibly large (metres)')
 
-export const OBSERVATION_KINDS = [
-  'direction', 'angle', 'zenith', 'slope_distance', 'horizontal_distance', 'azimuth', 'height_difference',
-] as const
+export { OBSERVATION_KINDS }
 
 export const observationQuerySchema = z.object({
   setId: z.coerce.number().int().positive().optional(),

@@ -15,9 +15,21 @@ export const projectCreateSchema = z.object({
   angleFormat: z.enum(['dms', 'gon']).optional(),
 }).strict()
 
+/** Geodetic settings of a project, passed to every run and recorded with it. */
+export const projectGeodesySchema = z.object({
+  /** geoid separation N in metres (ellipsoidal height = height + N), one value for the network */
+  geoidSeparationM: z.number().finite().min(-200, 'must be at least −200 m').max(200, 'must be at most 200 m'),
+  /** coefficient of refraction k (common practice 0.13) */
+  refractionK: z.number().finite().min(-1, 'must be at least −1').max(1, 'must be at most 1'),
+  /** its standard deviation (common practice 0.05) */
+  refractionSigmaK: z.number().finite().min(0, 'must not be negative').max(1, 'must be at most 1'),
+  /** local plane only: the height ground distances are reduced to; null = as measured */
+  projectHeightM: z.number().finite().min(-1000, 'must be at least −1000 m').max(9000, 'must be at most 9000 m').nullable(),
+})
+
 export const projectUpdateSchema = projectCreateSchema.partial().extend({
   toleranceProfileId: z.number().int().positive().nullable().optional(),
-}).strict()
+}).merge(projectGeodesySchema.partial()).strict()
 
 export type ProjectCreate = z.infer<typeof projectCreateSchema>
 export type ProjectUpdate = z.infer<typeof projectUpdateSchema>

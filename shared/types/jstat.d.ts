@@ -6,6 +6,7 @@ declare module 'jstat' {
     studentt: Dist1
     centralF: { inv(p: number, df1: number, df2: number): number; cdf(x: number, df1: number, df2: number): number }
     normal: { inv(p: number, mean: number, sd: number): number; cdf(x: number, mean: number, sd: number): number }
+    beta: { cdf(x: number, a: number, b: number): number }
   }
   const jStat: JStat
   export default jStat

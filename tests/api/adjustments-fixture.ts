@@ -6,6 +6,7 @@ import { readFileSync } from 'node:fs'
 import { and, eq } from 'drizzle-orm'
 import { useDb } from '../../server/db/client'
 import { firms, memberships, observationSets, observations, projects, stations, users } from '../../server/db/schema'
+import { DEMO_PROJECT_HEIGHT_M } from '../../server/db/demo/generate'
 import { readObservationCsv } from '../../server/engine/io/csv'
 import type { FirmContext } from '../../server/utils/guard'
 
@@ -22,7 +23,7 @@ export function readCsv(text: string) {
 export async function projectWithNetwork(firmSlug: string, name: string, csv: string) {
   const db = useDb()
   const [firm] = await db.select().from(firms).where(eq(firms.slug, firmSlug))
-  const [p] = await db.insert(projects).values({ firmId: firm!.id, name: `${name} ${Date.now()}-${Math.random().toString(36).slice(2, 7)}`, crs: 'local', units: 'm' }).returning()
+  const [p] = await db.insert(projects).values({ firmId: firm!.id, name: `${name} ${Date.now()}-${Math.random().toString(36).slice(2, 7)}`, crs: 'local', units: 'm', projectHeightM: csv === DEMO_CSV ? DEMO_PROJECT_HEIGHT_M : null }).returning()
   const read = readCsv(csv)
   const bytes = Buffer.from(csv)
   const [set] = await db.insert(observationSets).values({

@@ -1,6 +1,7 @@
 // Adjustment runs through the API, the queue and the worker, on the invented
 // demo network (server/db/demo): queueing, results, exports, roles, firm
 // isolation, exclusion with a new run, and that finished runs never change.
+import { DEMO_PROJECT_HEIGHT_M } from '../../server/db/demo/generate'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
@@ -42,7 +43,8 @@ describe('a run on the demo network', () => {
 
   it('stores the coordinates the engine computes from the same file (1e-6 m)', async () => {
     const read = readCsv(DEMO_CSV)
-    const engine = adjustNetwork({ controls: read.controls, observations: read.observations })
+    // the run passes the project's settings: the demo project lies at its project height
+    const engine = adjustNetwork({ controls: read.controls, observations: read.observations, projectHeightM: DEMO_PROJECT_HEIGHT_M })
     expect(engine.ok).toBe(true)
     if (!engine.ok) return
     const [first] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, fx.projectId), eq(adjustments.number, 1)))

@@ -347,3 +347,24 @@ describe('what is stored for each observation', () => {
     expect(await counts(p)).toEqual({ observations: 1, sets: 1, stations: 2 })
   })
 })
+
+describe('σ used (the engine\'s own σ function)', () => {
+  it('a profile-weighted angle shows the σ with centering at its lengths from the stored positions, not √2·σ_dir (regression)', async () => {
+    const firm = `/api/firms/${DEMO.firm}`
+    // invented profile: 2″ pointing, 1 mm centering of instrument and target
+    const prof = await chief.post(`${firm}/instruments`, { name: `σ used ${Date.now()}`, distanceMm: 2, distancePpm: 2, directionArcsec: 2, zenithArcsec: 3, centeringInstrumentMm: 1, centeringTargetMm: 1, levellingMmPerSqrtKm: 1 })
+    expect(prof.status).toBe(201)
+    const p = await freshProject(chief, 'Sigma used')
+    const text = `${HEADER}\ncontrol,A,,,1000 1000,m,,,,,,\ncontrol,B,,,1000 1100,m,,,,,,\ncontrol,C,,,1200 1000,m,,,,,,\nangle,A,B,C,90,deg,,,,,,\nangle,A,B,Z,45,deg,,,,,,\n`
+    const up = await chief.post(`${base(p)}/observation-sets`, fileForm('angles.csv', text, { instrumentProfileId: String(prof.body.id) }))
+    expect(up.status).toBe(201)
+    const rows = (await chief.get(`${base(p)}/observations?kind=angle&sort=line`)).body.rows
+    // σ² = 2σ_dir² + σ_ct²(1/d_b² + 1/d_f²) + σ_ci²·d_bf²/(d_b²d_f²) with d_b = 100, d_f = 200, d_bf = √(200² + 100²) (Ghilani 2017, ch. 6, from memory)
+    const rad = Math.PI / (180 * 3600)
+    const expected = Math.sqrt(2 * (2 * rad) ** 2 + 0.001 ** 2 * (1 / 100 ** 2 + 1 / 200 ** 2) + (0.001 ** 2 * (200 ** 2 + 100 ** 2)) / (100 ** 2 * 200 ** 2))
+    expect(rows[0].sigmaUsed).toBeCloseTo(expected, 12)
+    expect(rows[0].sigmaUsed / (Math.SQRT2 * 2 * rad)).toBeGreaterThan(1.1)
+    // Z has no stored position yet: no length, so no σ is claimed
+    expect(rows[1]).toMatchObject({ sigmaUsed: null, sigmaSource: 'none' })
+  })
+})

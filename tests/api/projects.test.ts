@@ -42,6 +42,25 @@ describe('projects', () => {
     expect(rows.map((r) => r.action)).toEqual(['project.create', 'project.update'])
   })
 
+  it('geodetic settings: defaults k = 0.13 ± 0.05 (common practice), N = 0, no project height; a chief sets them, bad values answer 422 naming the field', async () => {
+    const chief = await as(DEMO.chief)
+    const created = await chief.post(base, { name: `Geodesy ${Date.now()}`, crs: 'EPSG:32633', units: 'm' })
+    expect(created.body).toMatchObject({ refractionK: 0.13, refractionSigmaK: 0.05, geoidSeparationM: 0, projectHeightM: null })
+    const patched = await chief.patch(`${base}/${created.body.id}`, { geoidSeparationM: 47.3, refractionK: 0.1, refractionSigmaK: 0.02 })
+    expect(patched.status).toBe(200)
+    expect(patched.body).toMatchObject({ geoidSeparationM: 47.3, refractionK: 0.1, refractionSigmaK: 0.02 })
+    const local = await chief.post(base, { name: `Local height ${Date.now()}`, crs: 'local', units: 'm' })
+    expect((await chief.patch(`${base}/${local.body.id}`, { projectHeightM: 412.5 })).body.projectHeightM).toBe(412.5)
+    expect((await chief.patch(`${base}/${local.body.id}`, { projectHeightM: null })).body.projectHeightM).toBeNull()
+    for (const [field, value] of [['refractionK', 2], ['refractionSigmaK', -0.1], ['geoidSeparationM', 500], ['projectHeightM', 'high']] as const) {
+      const bad = await chief.patch(`${base}/${created.body.id}`, { [field]: value })
+      expect(bad.status, field).toBe(422)
+      expect(bad.body.errors.map((e: { field: string }) => e.field)).toContain(field)
+    }
+    const [row] = await useDb().select().from(projects).where(eq(projects.id, created.body.id))
+    expect(row!.refractionK).toBe(0.1)
+  })
+
   it('lists projects with counts; a client sees only the projects shared with it', async () => {
     const owner = await as(DEMO.owner)
     const all = await owner.get(base)

@@ -62,6 +62,13 @@ describe('pages under the Content-Security-Policy', () => {
     expect(violations).toEqual([])
   })
 
+  it('the profile page lists the person\'s own sign-ins under Your activity', async () => {
+    await page.goto('/profile')
+    const table = page.getByTestId('activity-table')
+    await table.waitFor()
+    expect(await table.innerText()).toContain('Signed in')
+  })
+
   it('the browser itself refuses an injected inline script', async () => {
     const ran = await page.evaluate(() => new Promise<boolean>((resolve) => {
       const w = window as unknown as { __injected?: boolean }

@@ -73,3 +73,30 @@ describe('LandXML without entity expansion', () => {
     expect(JSON.stringify(r)).not.toContain('EXPANDEDTEXT')
   })
 })
+
+describe('security headers', () => {
+  afterEach(() => { delete process.env.TIEPOINT_PUBLIC_URL })
+  it('over http: no HSTS; the page CSP allows scripts only from the app and the nonce', async () => {
+    const { fixedHeaders, pageCsp } = await import('../../server/utils/security-headers')
+    process.env.TIEPOINT_PUBLIC_URL = 'http://127.0.0.1:3000'
+    expect(fixedHeaders()['strict-transport-security']).toBeUndefined()
+    const csp = pageCsp('abc123', [])
+    expect(csp).toContain("script-src 'self' 'nonce-abc123';")
+    expect(csp.match(/script-src[^;]*/)![0]).not.toContain('unsafe')
+  })
+  it('over https: HSTS and upgrade-insecure-requests', async () => {
+    const { fixedHeaders, pageCsp } = await import('../../server/utils/security-headers')
+    process.env.TIEPOINT_PUBLIC_URL = 'https://survey.example.test'
+    expect(fixedHeaders()['strict-transport-security']).toMatch(/max-age=\d+/)
+    expect(pageCsp('n', [])).toContain('upgrade-insecure-requests')
+  })
+  it('a tile URL becomes a CSP source only when it is a plain https host', async () => {
+    const { tileOrigin } = await import('../../server/utils/security-headers')
+    expect(tileOrigin('https://{s}.tiles.example.test/{z}/{x}/{y}.png')).toBe('https://*.tiles.example.test')
+    expect(tileOrigin('https://tiles.example.test:8443/{z}/{x}/{y}.png')).toBe('https://tiles.example.test:8443')
+    expect(tileOrigin('http://tiles.example.test/{z}/{x}/{y}.png')).toBeNull()
+    // a value that would smuggle more policy into the header
+    expect(tileOrigin("https://evil.test; script-src 'unsafe-inline'")).toBeNull()
+    expect(tileOrigin(null)).toBeNull()
+  })
+})

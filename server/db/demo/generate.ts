@@ -18,9 +18,19 @@
 // Noise matches the engine's default instrument profile (server/engine/sigma.ts:
 // 3″ directions, 5″ zeniths, 2 mm + 2 ppm distances, 1 mm centering of
 // instrument and target), so rows with a blank sigma are weighted as they were
-// simulated. Levelling rows carry their own sigma, 2 mm/√km. Zenith angles
-// include the combined earth-curvature and refraction term (1 − k)·D²/(2R),
-// k = 0.13, R = 6371 km (common practice; the engine reduces with the same).
+// simulated. Levelling rows carry their own sigma, 2 mm/√km.
+//
+// The measurements are made in 3D, not with the engine's reductions: the local
+// plane, at the project height H₀ = 65 m, is wrapped onto the sphere of radius
+// R + H₀, R = 6 371 km (common practice), around the site's centre (azimuthal
+// equidistant: arc length at H₀ = plane distance), every
+// mark stands at its height along the radius, the instrument and target points
+// hi and ht above it. Slope distances are the chords between those points;
+// directions the azimuths in the instrument's horizon (minus the set's
+// orientation); zenith angles the angle from the instrument's vertical, less
+// the refraction angle k·S/(2R) with k = 0.13 (common practice); horizontal
+// distances the arc between the marks at their mean height (what the file
+// format says a horizontal distance is).
 //
 // The blunder: one direction is read 40″ wrong. Its line is written to
 // blunder.json and printed; the CSV's header only says a blunder exists.
@@ -40,6 +50,8 @@ const LEVELLING_MM_PER_SQRT_KM = 2
 const RHO = 180 / Math.PI
 const EARTH_RADIUS_M = 6_371_000
 const REFRACTION_K = 0.13
+/** the project height of the demo site (its mean ground height): the plane lies there, and the seed sets it */
+export const DEMO_PROJECT_HEIGHT_M = 65
 
 // mulberry32: a small, well-known 32-bit generator; enough for demo noise.
 function prng(seed: number) {
@@ -99,10 +111,6 @@ export function buildDemo() {
   ].map(([i, j]) => at(i!, j!))
 
   const hz = (a: Station, b: Station) => Math.hypot(b.e - a.e, b.n - a.n)
-  const azimuth = (a: Station, b: Station) => {
-    const t = Math.atan2(b.e - a.e, b.n - a.n)
-    return t < 0 ? t + 2 * Math.PI : t
-  }
   const wrap = (x: number) => ((x % (2 * Math.PI)) + 2 * Math.PI) % (2 * Math.PI)
 
   function dms(rad: number): string {
@@ -118,6 +126,37 @@ export function buildDemo() {
   const centering = (CENTERING_MM / 1000) ** 2 * 2
   const sigmaDirection = (d: number) => Math.sqrt((DIRECTION_ARCSEC / 3600 / RHO) ** 2 + centering / (d * d))
   const sigmaDistance = (d: number) => Math.sqrt((DISTANCE_MM / 1000) ** 2 + (DISTANCE_PPM * 1e-6 * d) ** 2 + centering)
+
+  // 3D: the plane around the site's centre wrapped onto the sphere (see the header)
+  const E0 = 1750
+  const N0 = 5750
+  const up = (st: Station) => {
+    const de = st.e - E0
+    const dn = st.n - N0
+    const psi = Math.hypot(de, dn) / (EARTH_RADIUS_M + DEMO_PROJECT_HEIGHT_M)
+    const th = Math.atan2(de, dn)
+    return [Math.sin(psi) * Math.sin(th), Math.sin(psi) * Math.cos(th), Math.cos(psi)]
+  }
+  const point = (st: Station, above: number) => up(st).map((c) => c * (EARTH_RADIUS_M + st.h + above))
+  const dot = (a: number[], b: number[]) => a[0]! * b[0]! + a[1]! * b[1]! + a[2]! * b[2]!
+  /** slope distance, horizon azimuth and geometric zenith from instrument point to target point */
+  const measure3d = (a: Station, hiA: number, b: Station, htB: number) => {
+    const p = point(a, hiA)
+    const q = point(b, htB)
+    const d = [q[0]! - p[0]!, q[1]! - p[1]!, q[2]! - p[2]!]
+    const S = Math.hypot(d[0]!, d[1]!, d[2]!)
+    const u = up(a)
+    // local north: the centre's north (0, 1, 0) projected into the horizon; east = north × up
+    const y = [0, 1, 0]
+    const yu = dot(y, u)
+    const nr = [y[0]! - yu * u[0]!, y[1]! - yu * u[1]!, y[2]! - yu * u[2]!]
+    const nl = Math.hypot(nr[0]!, nr[1]!, nr[2]!)
+    const north = nr.map((c) => c / nl)
+    const east = [north[1]! * u[2]! - north[2]! * u[1]!, north[2]! * u[0]! - north[0]! * u[2]!, north[0]! * u[1]! - north[1]! * u[0]!]
+    return { S, az: Math.atan2(dot(d, east), dot(d, north)), zenith: Math.acos(dot(d, u) / S) }
+  }
+  /** arc between the marks at their mean height */
+  const arcAtMeanHeight = (a: Station, b: Station) => Math.acos(Math.min(1, dot(up(a), up(b)))) * (EARTH_RADIUS_M + (a.h + b.h) / 2)
 
   const lines: string[] = []
   const xmlSetups: string[] = []
@@ -157,7 +196,7 @@ export function buildDemo() {
 
     for (const t of targets) {
       const d = hz(st, t)
-      let r = azimuth(st, t) - omega + rnd.normal() * sigmaDirection(d)
+      let r = measure3d(st, hi, t, heights.get(t.name)!).az - omega + rnd.normal() * sigmaDirection(d)
       // The blunder goes on the fifth set-up, to a target seen from three or
       // more set-ups, so redundancy is high enough to find it.
       const isBlunder = blunder === null && setupIndex === 4 && t.i === 3 && t.j === 2
@@ -169,17 +208,16 @@ export function buildDemo() {
       xmlObs.push(`horizAngle="${((wrap(r) * RHO).toFixed(7))}"`)
     }
     targets.forEach((t, idx) => {
-      const d = hz(st, t)
       const ht = heights.get(t.name)!
-      // Curvature lowers the target as seen along the level line; refraction
-      // lifts it back by k of that.
-      const dh = t.h + ht - (st.h + hi) - ((1 - REFRACTION_K) * d * d) / (2 * EARTH_RADIUS_M)
-      const slope = Math.hypot(d, dh)
-      const z = Math.atan2(d, dh) + rnd.normal() * (ZENITH_ARCSEC / 3600 / RHO)
+      const m = measure3d(st, hi, t, ht)
+      const slope = m.S
+      // the line of sight bends towards the ground: the target is seen higher by k·S/(2R)
+      const z = m.zenith - (REFRACTION_K * slope) / (2 * EARTH_RADIUS_M) + rnd.normal() * (ZENITH_ARCSEC / 3600 / RHO)
       // Some lines to other set-up stations are measured as horizontal
       // distances (reduced in the instrument); the rest as slope distance and
       // zenith, so every station also gets a trigonometric height.
       if (idx % 3 === 2 && SETUPS.includes(t)) {
+        const d = arcAtMeanHeight(st, t)
         const hd = d + rnd.normal() * sigmaDistance(d)
         push(['horizontal_distance', st.name, '', t.name, hd.toFixed(4), 'm', '', '', '', '', '', ''])
         xmlObs[idx] += ` horizDistance="${hd.toFixed(4)}" targetHeight="${ht.toFixed(3)}"`

@@ -12,8 +12,8 @@
 // - Default units when the unit cell is blank: m for lengths and control, dms
 //   for angles. `sigma` is millimetres for lengths and height differences,
 //   arcseconds for angles, whatever the unit column says.
-// - hi and ht are in the row's length unit; on angle rows (which have no
-//   length unit) they are in metres.
+// - hi and ht are in the project's length unit (option heightUnit, m when not
+//   given) on every row, whatever the row's own unit column says.
 // - The reader never throws, whatever bytes it is given.
 
 import Papa from 'papaparse'
@@ -47,6 +47,12 @@ export interface CsvReadOptions {
    * row left without a sigma can get one from it.
    */
   profile?: InstrumentProfile
+  /**
+   * The unit of every hi and ht in the file: the project's length unit (m when
+   * not given). One rule for all rows, so a zenith and the slope distance of the
+   * same line always read their heights alike.
+   */
+  heightUnit?: LengthUnit
 }
 
 export const CSV_COLUMNS = ['kind', 'at', 'from', 'to', 'value', 'unit', 'sigma', 'hi', 'ht', 'set', 'length', 'note'] as const
@@ -306,8 +312,8 @@ function readRow(
     else sigma = isAngle ? p.value * RAD_PER_ARCSEC : p.value / 1000
   }
 
-  // hi/ht share the row's length unit; angle rows have none, so metres.
-  const heightUnit: LengthUnit = isAngle ? 'm' : lengthUnit
+  // one rule for hi/ht on every row: the file's height unit (the project's length unit)
+  const heightUnit: LengthUnit = options.heightUnit ?? 'm'
   const hi = readInstrumentHeight(row('hi'), 'hi', heightUnit, err)
   const ht = readInstrumentHeight(row('ht'), 'ht', heightUnit, err)
 

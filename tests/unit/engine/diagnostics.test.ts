@@ -32,12 +32,22 @@ describe('data snooping on an invented network with a planted blunder', () => {
     expect(ex.w).toBeNull()
     expect(r.result.observations.filter((o) => o.flagged)).toHaveLength(0)
   })
-  it('MDB = σ·δ0/√r_i and its effect on coordinates is positive', () => {
-    const r = adjustNetwork(net)
-    if (!r.ok) throw new Error(r.reason)
-    for (const o of r.result.observations) {
-      expect(o.mdb!).toBeCloseTo((o.sigma! * r.result.critical.delta0) / Math.sqrt(o.redundancy!), 9)
-      expect(o.mdbEffect!).toBeGreaterThan(0)
+  it('an error of exactly MDB size, planted in noise-free data, gives |w| = δ0 = 4.13 (Baarda 1968) and moves the stations by the reported MDB effect', () => {
+    // behavioural check, not the formula: plant the bias, re-adjust, measure
+    const clean = gridNetwork(4, 2024, 0)
+    const base = adjustNetwork(clean)
+    if (!base.ok) throw new Error(base.reason)
+    const pos = new Map(base.result.stations.map((s) => [s.name, s]))
+    for (const kind of ['horizontal_distance', 'direction'] as const) {
+      const i = clean.observations.findIndex((o) => o.kind === kind && o.at === 'P1_2')
+      const o = base.result.observations[i]
+      const mdb = o.residualUnit === 'arcsec' ? (o.mdb! * Math.PI) / (180 * 3600) : o.mdb!
+      const biased = clean.observations.map((x, k) => (k === i ? { ...x, value: x.value + mdb } : x))
+      const r = adjustNetwork({ controls: clean.controls, observations: biased }, { scaling: 'a-priori' })
+      if (!r.ok) throw new Error(r.reason)
+      expect(Math.abs(r.result.observations[i].w!)).toBeCloseTo(4.13, 2)
+      const shift = Math.max(...r.result.stations.map((s) => Math.hypot(s.east! - pos.get(s.name)!.east!, s.north! - pos.get(s.name)!.north!)))
+      expect(shift / o.mdbEffect!).toBeCloseTo(1, 3)
     }
   })
   it('the report is deterministic and carries the caution line', () => {

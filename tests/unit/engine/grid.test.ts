@@ -5,8 +5,8 @@ import { describe, expect, it } from 'vitest'
 import fc from 'fast-check'
 import proj4 from 'proj4'
 import { elevationFactor, GridProjection } from '../../../server/engine/grid'
-import { adjustNetwork, formatReport, type AdjustmentResult, type ObservationRecord } from '../../../server/engine/index'
-import { ARC, az, fixed, obs } from './helpers'
+import { adjustNetwork, formatReport, type AdjustmentResult } from '../../../server/engine/index'
+import { controlsOf, generate3d, mountainNetwork } from './truth3d'
 
 const D2R = Math.PI / 180
 
@@ -91,138 +91,97 @@ describe('point scale factor of a projection (proj4, central differences)', () =
   })
 })
 
-// ---- a UTM network (invented) -------------------------------------------------------
+// ---- the reduction summary on a projected network (3D truth from ./truth3d) ----------
 
-const UTM33 = '+proj=utm +zone=33 +ellps=GRS80 +units=m +no_defs'
-const RADIUS = 6_381_000
 const ok = (o: ReturnType<typeof adjustNetwork>): AdjustmentResult => {
   if (!o.ok) throw new Error(`${o.code}: ${o.reason}`)
   return o.result
 }
 
-/**
- * Stations about 220 km east of the zone's central meridian at 47°N and 800–900 m
- * high: k ≈ 1.0002, elevation factor ≈ 0.99987. Ground distances are made from
- * the grid truth with factors computed here independently (Snyder series for k,
- * Simpson's rule over the line, R/(R + h)).
- */
-function utmNetwork() {
-  const utm = proj4(UTM33)
-  const [e0, n0] = utm.forward([17.9, 47.05])
-  const truth = new Map<string, [number, number, number]>([
-    ['A', [e0, n0, 812.4]],
-    ['B', [e0 + 1480.2, n0 + 95.7, 846.1]],
-    ['C', [e0 + 1612.9, n0 + 1390.4, 871.9]],
-    ['D', [e0 + 120.5, n0 + 1555.8, 833.0]],
-    ['E', [e0 + 790.3, n0 + 760.1, 901.7]],
-  ])
-  const p = new GridProjection(UTM33)
-  const kAt = (e: number, n: number) => {
-    const [lon, lat] = utm.inverse([e, n])
-    return snyderTmK(lat * D2R, (lon - 15) * D2R, 0.9996, p.es)
-  }
-  const cfOf = (a: string, b: string) => {
-    const [ea, na, ha] = truth.get(a)!
-    const [eb, nb, hb] = truth.get(b)!
-    const k = (kAt(ea, na) + 4 * kAt((ea + eb) / 2, (na + nb) / 2) + kAt(eb, nb)) / 6
-    return (RADIUS / (RADIUS + (ha + hb) / 2)) * k
-  }
-  const lines: [string, string][] = [['A', 'B'], ['B', 'C'], ['C', 'D'], ['D', 'A'], ['A', 'E'], ['B', 'E'], ['C', 'E'], ['D', 'E']]
-  const observations: ObservationRecord[] = []
-  let line = 10
-  for (const [a, b] of lines) {
-    const [ea, na] = truth.get(a)!
-    const [eb, nb] = truth.get(b)!
-    const grid = Math.hypot(eb - ea, nb - na)
-    observations.push(obs({ line: line++, kind: 'horizontal_distance', at: a, to: b, value: grid / cfOf(a, b), sigma: 0.002 }))
-    observations.push(obs({ line: line++, kind: 'direction', at: a, to: b, value: az([ea, na], [eb, nb]), sigma: 2 * ARC }))
-    observations.push(obs({ line: line++, kind: 'direction', at: b, to: a, value: az([eb, nb], [ea, na]), sigma: 2 * ARC }))
-  }
-  // one slope distance with its zenith angle (E → A): ground horizontal = S·sin z
-  const [ee, ne, he] = truth.get('E')!
-  const [ea, na, ha] = truth.get('A')!
-  const horiz = Math.hypot(ea - ee, na - ne) / cfOf('E', 'A')
-  const zen = Math.atan2(horiz, ha - he)
-  observations.push(obs({ line: line++, kind: 'slope_distance', at: 'E', to: 'A', value: horiz / Math.sin(zen), sigma: 0.002 }))
-  observations.push(obs({ line: line++, kind: 'zenith', at: 'E', to: 'A', value: zen }))
-  const controls = ['A', 'C'].map((s, i) => ({ ...fixed(s, truth.get(s)![0], truth.get(s)![1], truth.get(s)![2]), line: i + 1 }))
-  const approximate = ['B', 'D', 'E'].map((s) => ({ station: s, height: truth.get(s)![2] }))
-  return { truth, observations, controls, approximate, cfOf }
-}
-
-describe('UTM-projected network: ground distances reduced to the grid', () => {
-  const net = utmNetwork()
-  const input = { controls: net.controls, observations: net.observations, approximate: net.approximate }
-  const projected = ok(adjustNetwork({ ...input, projection: { proj4: UTM33, meanRadiusM: RADIUS } }))
+describe('UTM-projected network: what the reduction reports', () => {
+  const net = mountainNetwork()
+  const truth = generate3d(net.stations, net.setups, { proj4: net.def, a: net.a, f: net.f, geoidSeparation: 47.3, refractionK: 0.13 })
+  const controls = controlsOf(net.stations, ['A', 'C'])
+  const input = { controls, observations: truth.observations }
+  const projected = ok(adjustNetwork({ ...input, projection: { proj4: net.def, geoidSeparationM: 47.3 } }))
   const local = ok(adjustNetwork(input))
 
-  it('each distance carries the combined factor computed independently (1e-9)', () => {
-    for (const o of projected.observations) {
-      if (o.kind !== 'horizontal_distance' && o.kind !== 'slope_distance') continue
-      expect(Math.abs(o.combinedFactor! - net.cfOf(o.at, o.to))).toBeLessThan(1e-9)
+  it('each distance carries k from Snyder\'s series (Simpson over the line, 1e-9) and cf = elevation factor × k', () => {
+    const p = new GridProjection(net.def)
+    const utm = proj4(net.def)
+    const kAt = (e: number, n: number) => {
+      const [lon, lat] = utm.inverse([e, n])
+      return snyderTmK(lat * D2R, (lon - 15) * D2R, 0.9996, p.es)
+    }
+    for (const o of projected.observations.filter((x) => x.kind === 'slope_distance')) {
+      const a = net.stations.find((s) => s.name === o.at)!
+      const b = net.stations.find((s) => s.name === o.to)!
+      const k = (kAt(a.east, a.north) + 4 * kAt((a.east + b.east) / 2, (a.north + b.north) / 2) + kAt(b.east, b.north)) / 6
+      expect(Math.abs(o.scaleFactor! - k)).toBeLessThan(1e-9)
       expect(o.combinedFactor!).toBeCloseTo(o.elevationFactor! * o.scaleFactor!, 15)
     }
     expect(projected.observations.filter((o) => o.kind === 'direction').every((o) => o.combinedFactor === undefined)).toBe(true)
   })
 
-  it('the summary reports the reduction: scale factor above 1 this far from the central meridian, elevation factor below 1', () => {
+  it('the summary: 150 km from the central meridian k ≈ 0.99988 (Snyder: k0(1 + x²/2R²), k0 = 0.9996), elevation factor below 1 at 0.9–1.4 km, directions reduced, arc-to-chord of the order of seconds', () => {
     const g = projected.gridReduction!
     expect(g.applied).toBe(true)
     expect(g.method).toBe('simpson')
-    expect(g.distances).toBe(9)
-    expect(g.radiusM).toBe(RADIUS)
-    expect(g.meanScaleFactor!).toBeGreaterThan(1.0001)
-    expect(g.meanElevationFactor!).toBeLessThan(0.99988)
+    expect(g.distances).toBe(truth.observations.filter((o) => o.kind === 'slope_distance').length)
+    expect(g.directions).toBe(truth.observations.filter((o) => o.kind === 'direction').length)
+    expect(g.meanScaleFactor!).toBeGreaterThan(0.99986)
+    expect(g.meanScaleFactor!).toBeLessThan(0.99992)
+    expect(g.meanElevationFactor!).toBeLessThan(0.99985)
+    expect(g.meanElevationFactor!).toBeGreaterThan(0.99975)
+    // TM arc-to-chord (t − T) ≈ ΔN·(2E₁′ + E₂′)/(6R²k0²) (Snyder 1987, from memory): 6.7 km north at E′ ≈ 150 km → ≈ 2.5″
+    expect(g.maxArcToChordArcsec!).toBeGreaterThan(1.5)
+    expect(g.maxArcToChordArcsec!).toBeLessThan(4)
     expect(g.minCombinedFactor!).toBeLessThanOrEqual(g.meanCombinedFactor!)
     expect(g.maxCombinedFactor!).toBeGreaterThanOrEqual(g.meanCombinedFactor!)
     expect(g.heightsAssumed).toEqual([])
+    expect(g.geoidSeparationM).toBe(47.3)
   })
 
-  it('with the reduction the adjusted coordinates meet the grid truth (0.1 mm) and residuals vanish', () => {
-    for (const s of ['B', 'D', 'E']) {
-      const st = projected.stations.find((x) => x.name === s)!
-      expect(Math.abs(st.east! - net.truth.get(s)![0])).toBeLessThan(1e-4)
-      expect(Math.abs(st.north! - net.truth.get(s)![1])).toBeLessThan(1e-4)
-    }
-    for (const o of projected.observations) if (o.kind === 'horizontal_distance') expect(Math.abs(o.residual!)).toBeLessThan(1e-4)
-  })
-
-  it('residuals and adjusted values stay in ground metres: adjusted ground = observed + residual', () => {
-    const o = projected.observations.find((x) => x.kind === 'horizontal_distance')!
+  it('residuals and adjusted values stay in the observation\'s own units: adjusted = observed + residual', () => {
+    const o = projected.observations.find((x) => x.kind === 'slope_distance')!
     expect(o.adjusted!).toBeCloseTo(o.observed + o.residual!, 12)
   })
 
-  it('without a projection (local plane) nothing is reduced and the same data misfit the control by centimetres', () => {
+  it('without a projection (local plane) nothing goes to the grid', () => {
     expect(local.gridReduction!.applied).toBe(false)
     expect(local.observations.every((o) => o.combinedFactor === undefined)).toBe(true)
-    const worst = Math.max(...local.observations.filter((o) => o.kind === 'horizontal_distance').map((o) => Math.abs(o.residual!)))
-    expect(worst).toBeGreaterThan(0.02)
   })
 
   it('mid-point rule differs from Simpson by far less than the reduction itself', () => {
-    const mid = ok(adjustNetwork({ ...input, projection: { proj4: UTM33, meanRadiusM: RADIUS, scaleFactorMethod: 'midpoint' } }))
-    const a = projected.observations.find((x) => x.kind === 'horizontal_distance')!
-    const b = mid.observations.find((x) => x.kind === 'horizontal_distance')!
-    expect(Math.abs(a.combinedFactor! - b.combinedFactor!)).toBeLessThan(1e-8)
+    const mid = ok(adjustNetwork({ ...input, projection: { proj4: net.def, geoidSeparationM: 47.3, scaleFactorMethod: 'midpoint' } }))
+    const a = projected.observations.find((x) => x.kind === 'slope_distance')!
+    const b = mid.observations.find((x) => x.kind === 'slope_distance')!
+    expect(Math.abs(a.combinedFactor! - b.combinedFactor!)).toBeLessThan(1e-7)
     expect(Math.abs(a.combinedFactor! - b.combinedFactor!)).toBeGreaterThan(0)
   })
 
-  it('a station without any height is named and the mean known height stands in', () => {
-    const r = ok(adjustNetwork({ ...input, approximate: net.approximate.filter((a) => a.station !== 'D'), projection: { proj4: UTM33 } }))
+  it('a station without any height is named and the mean known height stands in (directions and distances only)', () => {
+    // horizontal distances S·sin z (geometric zenith) instead of slope distances and zeniths: no height network
+    const plan = truth.observations.flatMap((o) => {
+      if (o.kind === 'direction') return [o]
+      if (o.kind !== 'slope_distance') return []
+      const l = truth.lines.find((x) => x.at === o.at && x.to === o.to)!
+      return [{ ...o, kind: 'horizontal_distance' as const, value: o.value * Math.sin(l.zenithGeometric) }]
+    })
+    const r = ok(adjustNetwork({ controls, observations: plan, approximate: net.stations.filter((s) => s.name !== 'D' && s.name !== 'A' && s.name !== 'C').map((s) => ({ station: s.name, height: s.height })), projection: { proj4: net.def } }))
     expect(r.gridReduction!.heightsAssumed).toEqual(['D'])
-    expect(r.gridReduction!.radiusM!).toBeGreaterThan(6.36e6)
   })
 
   it('the report shows the combined factor (or says the plane is local)', () => {
     const text = formatReport(projected)
-    expect(text).toContain(`Grid and ground: 9 distances reduced to the grid; combined factor mean ${projected.gridReduction!.meanCombinedFactor!.toFixed(8)}`)
-    expect(formatReport(local)).toContain('Grid and ground: local plane, distances used as measured.')
+    expect(text).toContain(`combined factor mean ${projected.gridReduction!.meanCombinedFactor!.toFixed(8)}`)
+    expect(formatReport(local)).toContain('Grid and ground: local plane')
   })
 
   it('bad projection input fails as input, naming the field', () => {
     const geo = adjustNetwork({ ...input, projection: { proj4: '+proj=longlat +datum=WGS84' } })
     expect(!geo.ok && geo.code === 'input' && /projection, field proj4: .*geographic/.test(geo.reason)).toBe(true)
-    const radius = adjustNetwork({ ...input, projection: { proj4: UTM33, meanRadiusM: 100 } })
-    expect(!radius.ok && /field meanRadiusM/.test(radius.reason)).toBe(true)
+    const sep = adjustNetwork({ ...input, projection: { proj4: net.def, geoidSeparationM: 900 } })
+    expect(!sep.ok && /field geoidSeparationM/.test(sep.reason)).toBe(true)
   })
 })

@@ -184,17 +184,13 @@ function jFq(r: number) {
 describe('invariance properties on invented grid networks', () => {
   const coords = (r: AdjustmentResult) => r.stations.map((s) => [s.name, s.east!, s.north!] as const).sort((a, b) => (a[0] < b[0] ? -1 : 1))
 
-  it('property: Σ r_i = n − u and w uses the a-priori σ', () => {
+  it('property: Σ r_i = n − u', () => {
     fc.assert(
       fc.property(fc.integer({ min: 1, max: 1e6 }), (seed) => {
         const net = gridNetwork(3, seed)
         const r = ok(adjustNetwork(net))
         const sum = r.observations.reduce((s, o) => s + (o.redundancy ?? 0), 0)
         expect(sum).toBeCloseTo(r.counts.n - r.counts.u, 8)
-        for (const o of r.observations) {
-          // residual and σ are both in m or both in arcsec
-          expect(o.w!).toBeCloseTo(o.residual! / (o.sigma! * Math.sqrt(o.redundancy!)), 8)
-        }
       }),
       { numRuns: 8 },
     )
@@ -279,7 +275,6 @@ describe('invariance properties on invented grid networks', () => {
     expect(minimal.observations.find((o) => o.line === 999)!.redundancy!).toBeLessThan(1e-9)
     const d = (r: AdjustmentResult, p: string, q: string) => Math.hypot(st(r, p).east! - st(r, q).east!, st(r, p).north! - st(r, q).north!)
     for (const [p, q] of [['P0_0', 'P2_2'], ['P1_2', 'P2_0'], ['P0_1', 'P2_1']]) expect(d(free, p, q)).toBeCloseTo(d(minimal, p, q), 6)
-    // the free solution's position precision is spread over all stations (no zero σ anywhere)
-    expect(Math.min(...free.stations.map((s) => s.sdEast!))).toBeGreaterThan(0)
+    // its Qxx against the pseudo-inverse: qr-networks.test.ts
   })
 })

@@ -72,10 +72,10 @@ describe('derived scales', () => {
   it('95 % ellipse scale with σ0 estimated is √(2·F(0.95; 2, r)): r = 10 gives √(2·4.103) (NIST §1.3.6.7.3)', () => {
     expect(ellipseScale(0.95, true, 10)).toBeCloseTo(Math.sqrt(2 * 4.103), 2)
   })
-  it('Pope (1976) τ critical value: τ = t·√r/√(r−1+t²) and it tends to the normal value for large r', () => {
+  it('Pope (1976) τ critical value: τ²/r follows Beta(1/2, (r − 1)/2), so P(|τ| > τc) = α0 (jstat beta cdf, another route than the t transform), and it tends to the normal value for large r', () => {
     const r = 20
-    const t = studentTQuantile(1 - 0.001 / 2, r - 1)
-    expect(tauCritical(0.001, r)).toBeCloseTo((t * Math.sqrt(r)) / Math.sqrt(r - 1 + t * t), 12)
+    const tc = tauCritical(0.001, r)!
+    expect(1 - jStat.beta.cdf((tc * tc) / r, 0.5, (r - 1) / 2)).toBeCloseTo(0.001, 9)
     // τ is bounded by √r: |τ| ≤ √r for any residual
     expect(tauCritical(0.001, r)!).toBeLessThan(Math.sqrt(r))
     expect(tauCritical(0.001, 100000)!).toBeCloseTo(3.29, 2)

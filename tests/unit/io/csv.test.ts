@@ -220,14 +220,19 @@ describe('validation of each field', () => {
     expect(one('Slope-Distance,A,,B,10').kind).toBe('slope_distance')
     expect(one('HORIZONTAL DISTANCE,A,,B,10').kind).toBe('horizontal_distance')
   })
-  it('hi/ht follow the row length unit on distance rows (international feet here)', () => {
-    const o = one('slope_distance,A,,B,100,ft,,5,6')
-    expect(o.hi).toBeCloseTo(5 * 0.3048, 12)
-    expect(o.ht).toBeCloseTo(6 * 0.3048, 12)
-  })
-  it('hi/ht are metres on angle rows whatever the angle unit', () => {
+  it('hi/ht are in the file\'s height unit on every row, whatever the row\'s own unit (m by default)', () => {
+    expect([one('slope_distance,A,,B,100,ft,,5,6').hi, one('slope_distance,A,,B,100,ft,,5,6').ht]).toEqual([5, 6])
     const o = one('zenith,A,,B,100,gon,,1.5,1.6')
     expect([o.hi, o.ht]).toEqual([1.5, 1.6])
+  })
+  it('regression: in a feet project a zenith row and its slope distance read hi/ht alike (angle rows used to take metres; international foot 0.3048 m)', () => {
+    const text = `${HEADER}\nslope_distance,A,,B,100,ft,,5,6\nzenith,A,,B,90,deg,,5,6\n`
+    const r = readObservationCsv(text, { heightUnit: 'ft' })
+    if (!r.ok) throw new Error(JSON.stringify(r.errors))
+    for (const o of r.observations) {
+      expect(o.hi).toBeCloseTo(5 * 0.3048, 12)
+      expect(o.ht).toBeCloseTo(6 * 0.3048, 12)
+    }
   })
   it('sigma of a length is millimetres even when the value is in feet', () => {
     expect(one('slope_distance,A,,B,100,usft,3').sigma).toBeCloseTo(0.003, 15)

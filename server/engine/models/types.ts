@@ -1,0 +1,56 @@
+// What every observation kind implements (one file per kind in this folder,
+// listed in ./registry). A kind adds: its checks, the stations it touches, its
+// a-priori σ from the instrument profile and the approximate geometry, and —
+// for the kinds that enter the plane or height network directly — its
+// linearized observation equation with partial derivatives.
+
+import type { InstrumentProfile, ObservationRecord } from '../types'
+
+export interface ModelIssue {
+  column: string
+  message: string
+}
+
+/** Geometry known before the adjustment: horizontal lengths between stations (m), null when unknown. */
+export interface SigmaContext {
+  profile: InstrumentProfile
+  length(a: string, b: string): number | null
+}
+
+/** A station's position in the plane and the columns of its unknowns (−1 = held). */
+export interface PlanePoint {
+  e: number
+  n: number
+  ce: number
+  cn: number
+}
+
+/** One linearized row: computed value at the linearization point and ∂f/∂x by column. */
+export interface Linearized {
+  computed: number
+  cols: number[]
+  coef: number[]
+}
+
+export interface ObservationModel<K extends string = string> {
+  kind: K
+  /** words a person reads, e.g. in a select */
+  label: string
+  /** the value is an angle (radians) or a length (metres) */
+  quantity: 'angle' | 'length'
+  /** the network the kind enters: plane (E, N), height (H), or both through its partner row */
+  network: 'plane' | 'height' | 'plane+height'
+  /** row checks beyond the reader's (the engine's own guard: nothing reaches the solver unchecked) */
+  validate(o: ObservationRecord): ModelIssue[]
+  /** stations the row touches */
+  stations(o: ObservationRecord): string[]
+  /** a-priori σ of the row from the profile (m or rad); null when the geometry it needs is unknown */
+  profileSigma(o: ObservationRecord, ctx: SigmaContext): number | null
+}
+
+export function pushTerm(out: Linearized, col: number, value: number): void {
+  if (col >= 0) {
+    out.cols.push(col)
+    out.coef.push(value)
+  }
+}

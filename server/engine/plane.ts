@@ -1,0 +1,203 @@
+// The plane network: unknowns E, N of every new (or weighted) station and one
+// orientation ω per direction set, ordered station by station in Cuthill–McKee
+// order (each set's ω next to its station) to keep the factor banded. Each row's
+// equation and partial derivatives come from its kind's model (./models). Free
+// networks: the null space (two translations, the rotation — which turns every
+// orientation with it — and the scale) for the inner constraints.
+
+import { angleEquation } from './models/angle'
+import { azimuthEquation } from './models/azimuth'
+import { directionEquation } from './models/direction'
+import { distanceEquation } from './models/horizontal-distance'
+import { pushTerm, type Linearized, type PlanePoint } from './models/types'
+import { wrapPi } from './geometry'
+import type { XY } from './approx'
+import type { LinearRow, NonlinearProblem } from './lsq'
+import type { ControlRecord } from './types'
+
+/** Convergence: 0.01 mm on coordinates, and the angle that subtends 0.01 mm at 1 km. */
+export const TOL_LENGTH = 1e-5
+export const TOL_ANGLE = 1e-8
+
+export type PlaneDef =
+  | { type: 'direction'; at: number; to: number; set: number }
+  | { type: 'angle'; at: number; from: number; to: number }
+  | { type: 'distance'; at: number; to: number }
+  | { type: 'azimuth'; at: number; to: number }
+  | { type: 'coord'; st: number; comp: 0 | 1 }
+
+export interface PlaneRow {
+  def: PlaneDef
+  /** index of the observation's result */
+  out: number
+  /** observed value reduced to the grid (m or rad) */
+  value: number
+  sigma: number
+  /** model residual (m or rad) → output residual (m of the observation, or arcsec) */
+  outScale: number
+}
+
+export function buildPlaneProblem(
+  names: string[],
+  control: (ControlRecord | null)[],
+  coords: XY[],
+  orientation: Float64Array,
+  rows: PlaneRow[],
+  setStation: string[],
+  setLabel: string[],
+  free: boolean,
+) {
+  const nS = names.length
+  const nSets = orientation.length
+  const order = cuthillMcKee(nS, rows.flatMap(({ def }) => (def.type === 'coord' ? [] : def.type === 'angle' ? [[def.at, def.to], [def.at, def.from]] : [[def.at, def.to]])))
+  const stationCols = names.map(() => Int32Array.from([-1, -1]))
+  const labels: string[] = []
+  const setCol = new Int32Array(nSets)
+  const setsAt = names.map(() => [] as number[])
+  const nameIdx = new Map(names.map((s, k) => [s, k]))
+  for (let s = 0; s < nSets; s++) setsAt[nameIdx.get(setStation[s])!].push(s)
+  let u = 0
+  for (const k of order) {
+    for (const s of setsAt[k]) {
+      setCol[s] = u++
+      labels.push(`orientation of direction set ${setLabel[s] ? `'${setLabel[s]}' ` : ''}at station ${setStation[s]}`)
+    }
+    const c = control[k]
+    if (free || !c || c.sdEast !== null) {
+      stationCols[k][0] = u++
+      labels.push(`station ${names[k]} (east)`)
+    }
+    if (free || !c || c.sdNorth !== null) {
+      stationCols[k][1] = u++
+      labels.push(`station ${names[k]} (north)`)
+    }
+  }
+  const x0 = new Float64Array(u)
+  const tolerance = new Float64Array(u)
+  for (let s = 0; s < nSets; s++) {
+    x0[setCol[s]] = orientation[s]
+    tolerance[setCol[s]] = TOL_ANGLE
+  }
+  for (let k = 0; k < nS; k++) {
+    const [ce, cn] = stationCols[k]
+    if (ce >= 0) {
+      x0[ce] = coords[k].e
+      tolerance[ce] = TOL_LENGTH
+    }
+    if (cn >= 0) {
+      x0[cn] = coords[k].n
+      tolerance[cn] = TOL_LENGTH
+    }
+  }
+  const point = (x: Float64Array, k: number): PlanePoint => {
+    const [ce, cn] = stationCols[k]
+    return { e: ce >= 0 ? x[ce] : coords[k].e, n: cn >= 0 ? x[cn] : coords[k].n, ce, cn }
+  }
+
+  const linearize = (x: Float64Array): LinearRow[] =>
+    rows.map(({ def, sigma, value }) => {
+      let lin: Linearized
+      let angular = true
+      switch (def.type) {
+        case 'direction':
+          lin = directionEquation(point(x, def.at), point(x, def.to), x[setCol[def.set]], setCol[def.set])
+          break
+        case 'azimuth':
+          lin = azimuthEquation(point(x, def.at), point(x, def.to))
+          break
+        case 'angle':
+          lin = angleEquation(point(x, def.at), point(x, def.from), point(x, def.to))
+          break
+        case 'distance':
+          lin = distanceEquation(point(x, def.at), point(x, def.to))
+          angular = false
+          break
+        case 'coord': {
+          const p = point(x, def.st)
+          lin = { computed: def.comp === 0 ? p.e : p.n, cols: [], coef: [] }
+          pushTerm(lin, def.comp === 0 ? p.ce : p.cn, 1)
+          angular = false
+          break
+        }
+      }
+      const misclosure = angular ? wrapPi(value - lin.computed) : value - lin.computed
+      return { cols: lin.cols, coef: lin.coef, misclosure, sigma, computed: lin.computed }
+    })
+
+  const nullSpace = free
+    ? (x: Float64Array) => {
+        let ce = 0
+        let cn = 0
+        for (let k = 0; k < nS; k++) {
+          const p = point(x, k)
+          ce += p.e / nS
+          cn += p.n / nS
+        }
+        const g = [new Float64Array(u), new Float64Array(u), new Float64Array(u), new Float64Array(u)]
+        const weights = new Float64Array(u)
+        for (let k = 0; k < nS; k++) {
+          const [ie, in_] = stationCols[k]
+          const p = point(x, k)
+          const e = p.e - ce
+          const n = p.n - cn
+          g[0][ie] = 1
+          g[1][in_] = 1
+          // rotation by a small angle: azimuths and all orientations grow by it
+          g[2][ie] = n
+          g[2][in_] = -e
+          g[3][ie] = e
+          g[3][in_] = n
+          weights[ie] = weights[in_] = 1
+        }
+        for (let s = 0; s < nSets; s++) g[2][setCol[s]] = 1
+        return { g, weights }
+      }
+    : undefined
+
+  // the statistics read each station's block and the blocks between connected stations
+  const cofactorGroups = () => {
+    const own = (k: number) => [...stationCols[k]].filter((c) => c >= 0)
+    const groups = names.map((_, k) => own(k))
+    for (const { def } of rows) {
+      if (def.type === 'coord') continue
+      groups.push([...own(def.at), ...own(def.to)])
+      if (def.type === 'angle') groups.push([...own(def.at), ...own(def.from)])
+    }
+    return groups
+  }
+
+  return {
+    problem: { u, labels, tolerance, x0, linearize, nullSpace, cofactorGroups } satisfies NonlinearProblem,
+    rowOut: rows.map((r) => r.out),
+    rowScale: rows.map((r) => r.outScale),
+    stationCols,
+  }
+}
+
+/** Cuthill–McKee ordering of the station graph (bandwidth reduction, less fill in QR). */
+export function cuthillMcKee(n: number, edges: number[][]): number[] {
+  const adj: Set<number>[] = Array.from({ length: n }, () => new Set())
+  for (const [a, b] of edges) {
+    if (a === b) continue
+    adj[a].add(b)
+    adj[b].add(a)
+  }
+  const seen = new Uint8Array(n)
+  const order: number[] = []
+  const byDegree = Array.from({ length: n }, (_, i) => i).sort((a, b) => adj[a].size - adj[b].size || a - b)
+  for (const start of byDegree) {
+    if (seen[start]) continue
+    seen[start] = 1
+    const queue = [start]
+    for (let h = 0; h < queue.length; h++) {
+      const v = queue[h]
+      order.push(v)
+      const next = [...adj[v]].filter((w) => !seen[w]).sort((a, b) => adj[a].size - adj[b].size || a - b)
+      for (const w of next) {
+        seen[w] = 1
+        queue.push(w)
+      }
+    }
+  }
+  return order
+}
