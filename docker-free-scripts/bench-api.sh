@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
-# The benchmarks that need PostgreSQL: storing uploads (tests/bench/store.ts)
-# and a run through the API and the queue (tests/bench/api.ts). Its own fresh
+# The benchmarks that need PostgreSQL: storing uploads (tests/bench/store.ts),
+# a run through the API and the queue (tests/bench/api.ts) and 60 s of load by
+# 50 signed-in people (tests/bench/load.ts). Its own fresh
 # database on the test cluster, the built app and a worker, like test.sh.
 # Figures only.
 source "$(dirname "$0")/lib.sh"
@@ -19,3 +20,4 @@ ensure_build
 npx tsx server/db/seed.ts
 node --expose-gc --import tsx tests/bench/store.ts
 node --import tsx tests/bench/api.ts
+node --import tsx tests/bench/load.ts

@@ -457,7 +457,11 @@ export const auditLog = pgTable('audit_log', {
   before: jsonb(),
   after: jsonb(),
   at: timestamp({ withTimezone: true }).notNull().defaultNow(),
-}, (t) => [index('audit_log_firm_at').on(t.firmId, t.at), index('audit_log_user_at').on(t.userId, t.at)])
+  /** The firm's hash chain (server/services/audit.ts): the previous entry's rowHash, null for the first. */
+  prevHash: text(),
+  /** SHA-256 of prevHash and this entry's content. */
+  rowHash: text(),
+}, (t) => [index('audit_log_firm_at').on(t.firmId, t.at), index('audit_log_firm_id').on(t.firmId, t.id), index('audit_log_user_at').on(t.userId, t.at)])
 
 /** Development and test mailbox: what the in-process SMTP server received. */
 export const mailboxMessages = pgTable('mailbox_messages', {

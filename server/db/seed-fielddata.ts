@@ -1,7 +1,9 @@
-// Demo field data: the crew member uploads the invented demo network
-// (server/db/demo/demo-network.csv) into the demo project through the same
-// service as the web upload, so a fresh `npm start` shows a project with
-// observations. Idempotent: skipped when those bytes are already there.
+// Demo field data: the party chief uploads the invented demo network
+// (server/db/demo/demo-network.csv, measured by the North crew) into the demo
+// project through the same service as the web upload, so a fresh `npm start`
+// shows a project with observations. The chief uploads it because the file
+// holds the control points, which a field crew may not set.
+// Idempotent: skipped when those bytes are already there.
 import { createHash } from 'node:crypto'
 import { readFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
@@ -23,14 +25,15 @@ export async function seedFieldData(db: Db, projectId: number): Promise<void> {
   if (done) return
   const [firm] = await db.select().from(firms).where(eq(firms.id, project.firmId)).limit(1)
   const [crewUser] = await db.select().from(users).where(eq(users.email, 'crew@tiepoint.test')).limit(1)
-  if (!firm || !crewUser) return
+  const [chief] = await db.select().from(users).where(eq(users.email, 'chief@tiepoint.test')).limit(1)
+  if (!firm || !crewUser || !chief) return
   const [crew] = await db.select({ id: crews.id }).from(crews)
     .innerJoin(crewMembers, eq(crewMembers.crewId, crews.id))
     .where(and(eq(crews.firmId, firm.id), eq(crewMembers.userId, crewUser.id))).limit(1)
   const ctx: FirmContext = {
-    user: { id: crewUser.id, email: crewUser.email, name: crewUser.name, licenceNumber: null, licenceJurisdiction: null, via: 'session' },
+    user: { id: chief.id, email: chief.email, name: chief.name, licenceNumber: null, licenceJurisdiction: null, via: 'session' },
     firm,
-    role: 'field_crew',
+    role: 'party_chief',
   }
   await uploadObservationSet(ctx, project, { name: 'demo-network.csv', bytes, crewId: crew?.id ?? null })
 }

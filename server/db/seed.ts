@@ -132,7 +132,23 @@ export async function seedDemo(db: Db = useDb()) {
   return base
 }
 
+/**
+ * The demo owners have a published password, so they go only into the
+ * project's own local cluster (the start and test scripts mark its exact URL)
+ * or where someone asked for them with TIEPOINT_SEED_DEMO=1.
+ */
+export function demoSeedRefusal(env: NodeJS.ProcessEnv = process.env): string | null {
+  if (env.TIEPOINT_SEED_DEMO === '1') return null
+  if (env.DATABASE_URL && env.TIEPOINT_LOCAL_DATABASE_URL === env.DATABASE_URL) return null
+  return 'not seeding the demo firm: DATABASE_URL is not the project\'s own local cluster, and the demo users have a published password. Set TIEPOINT_SEED_DEMO=1 to seed it anyway.'
+}
+
 if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
+  const refusal = demoSeedRefusal()
+  if (refusal) {
+    console.error(`[tiepoint] ${refusal}`)
+    process.exit(3)
+  }
   seedDemo()
     .then(() => console.error('[tiepoint] demo firm seeded'))
     .catch((error) => {

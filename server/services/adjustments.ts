@@ -9,7 +9,7 @@ import type { PoolClient } from 'pg'
 import { runSettingsSchema, type RunSettings } from '../../shared/schemas/adjustments'
 import { observationPageQuery, relativePageQuery, stationPageQuery } from '../../shared/schemas/run-results'
 import type { CompareQuery, ObservationPageQuery, RelativePageQuery, StationPageQuery } from '../../shared/schemas/run-results'
-import { usePool, useDb } from '../db/client'
+import { usePool, useDb, type Tx } from '../db/client'
 import { adjustments, observations, projects, users } from '../db/schema'
 import type { Adjustment, Project } from '../db/schema'
 import { adjustNetwork } from '../engine/index'
@@ -22,7 +22,7 @@ import type { RunDto, RunListItem, RunWeighting } from '../../shared/types/run'
 
 export type { RunListItem }
 import { loadRunInputs, RunInputError } from './run-inputs'
-import { ADJUST_QUEUE, sendAdjustJob, type AdjustJob } from './run-queue'
+import { ADJUST_QUEUE, jobPolicy, readyQueue, sendAdjustJob, type AdjustJob } from './run-queue'
 import {
   buildSummary, cliShape, compareRuns, csvStream, distributions, mapData, pageObservations, pageRelative, pageStations, storeResults, type RunSummary,
 } from './run-results'
@@ -32,43 +32,51 @@ export type RunStatus = Adjustment['status']
 
 // ── queueing ────────────────────────────────────────────────────────────────
 
-/** Queues a run; 422 names the setting that cannot be used. */
-export async function queueRun(ctx: FirmContext, project: Project, body: unknown, opts: { queue?: string } = {}): Promise<{ number: number; status: RunStatus }> {
+/**
+ * Queues a run; 422 names the setting that cannot be used. The run row, its
+ * audit entry and its queue job are written in one transaction, so there is
+ * never a queued run without a job (or a job without its run); `before` runs
+ * first in that same transaction (an exclusion is kept only if its re-run is
+ * queued). The worker's sweep also sends a job again for a queued run whose
+ * job is gone, so no run stays queued for ever.
+ */
+export async function queueRun(ctx: FirmContext, project: Project, body: unknown, opts: { queue?: string; before?: (tx: Tx) => Promise<void> } = {}): Promise<{ number: number; status: RunStatus }> {
   const parsed = runSettingsSchema.safeParse(body ?? {})
   if (!parsed.success) {
     throw new DomainError('invalid', 'Some settings are not valid', parsed.error.issues.map((i) => ({ field: i.path.join('.') || undefined, message: i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message })))
   }
-  const db = useDb()
-  let inputs
+  const queue = opts.queue ?? ADJUST_QUEUE
   try {
-    inputs = await loadRunInputs(ctx.firm.id, project.id, parsed.data)
+    await readyQueue(queue)
+  } catch (e) {
+    console.error('[tiepoint] the job queue is not available:', (e as Error).message)
+    throw new DomainError('busy', 'The job queue is not available right now; nothing was queued. Please try again in a minute.')
+  }
+  try {
+    const run = await useDb().transaction(async (tx) => {
+      await opts.before?.(tx)
+      // The project row lock serialises number allocation between concurrent requests.
+      await tx.execute(sql`select id from ${projects} where ${projects.firmId} = ${ctx.firm.id} and ${projects.id} = ${project.id} for update`)
+      const inputs = await loadRunInputs(ctx.firm.id, project.id, parsed.data, tx)
+      const [{ next }] = await tx.select({ next: sql<number>`coalesce(max(${adjustments.number}), 0)::int + 1` }).from(adjustments)
+        .where(and(eq(adjustments.firmId, ctx.firm.id), eq(adjustments.projectId, project.id))) as [{ next: number }]
+      const [row] = await tx.insert(adjustments).values({
+        firmId: ctx.firm.id, projectId: project.id, number: next, settings: inputs.settings as unknown as Record<string, unknown>,
+        inputHash: inputs.hash, status: 'queued', createdBy: ctx.user.id,
+        // known before the run is computed, so a queued run's page already says how it will be weighted
+        summary: { weighting: inputs.weighting, warnings: inputs.warnings },
+      }).returning()
+      await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'adjustment.queue', entityType: 'adjustment', entityId: row!.id, projectId: project.id, after: { number: next, settings: inputs.settings, inputHash: inputs.hash } })
+      await sendAdjustJob({ adjustmentId: row!.id, firmId: ctx.firm.id, projectId: project.id }, queue, tx)
+      return row!
+    })
+    return { number: run.number, status: run.status }
   } catch (e) {
     if (e instanceof RunInputError) throw new DomainError('invalid', e.message, [{ field: e.field, message: e.message }])
-    throw e
+    if (e instanceof DomainError) throw e
+    console.error('[tiepoint] queueing a run failed:', e)
+    throw new DomainError('busy', 'The run could not be queued; nothing was saved. Please try again in a minute.')
   }
-  const run = await db.transaction(async (tx) => {
-    // The project row lock serialises number allocation between concurrent requests.
-    await tx.execute(sql`select id from ${projects} where ${projects.firmId} = ${ctx.firm.id} and ${projects.id} = ${project.id} for update`)
-    const [{ next }] = await tx.select({ next: sql<number>`coalesce(max(${adjustments.number}), 0)::int + 1` }).from(adjustments)
-      .where(and(eq(adjustments.firmId, ctx.firm.id), eq(adjustments.projectId, project.id))) as [{ next: number }]
-    const [row] = await tx.insert(adjustments).values({
-      firmId: ctx.firm.id, projectId: project.id, number: next, settings: inputs.settings as unknown as Record<string, unknown>,
-      inputHash: inputs.hash, status: 'queued', createdBy: ctx.user.id,
-      // known before the run is computed, so a queued run's page already says how it will be weighted
-      summary: { weighting: inputs.weighting, warnings: inputs.warnings },
-    }).returning()
-    await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'adjustment.queue', entityType: 'adjustment', entityId: row!.id, projectId: project.id, after: { number: next, settings: inputs.settings, inputHash: inputs.hash } })
-    return row!
-  })
-  try {
-    await sendAdjustJob({ adjustmentId: run.id, firmId: ctx.firm.id, projectId: project.id }, opts.queue ?? ADJUST_QUEUE)
-  } catch (e) {
-    await db.update(adjustments).set({ status: 'failed', finishedAt: new Date(), errorText: 'The job queue could not take this run; nothing was computed. Please start it again.' })
-      .where(and(eq(adjustments.firmId, ctx.firm.id), eq(adjustments.id, run.id)))
-    console.error('[tiepoint] queueing run failed', e)
-    return { number: run.number, status: 'failed' }
-  }
-  return { number: run.number, status: run.status }
 }
 
 // ── reading ─────────────────────────────────────────────────────────────────
@@ -188,14 +196,14 @@ export async function excludeAndRerun(ctx: FirmContext, project: Project, number
   const [obs] = await db.select().from(observations)
     .where(and(eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id), eq(observations.id, observationId))).limit(1)
   if (!obs) throw new DomainError('invalid', 'That observation is not in this project', [{ field: 'observationId', message: 'observationId: not in this project' }])
-  if (!obs.excluded) {
-    await db.transaction(async (tx) => {
-      await tx.update(observations).set({ excluded: true }).where(and(eq(observations.firmId, ctx.firm.id), eq(observations.id, obs.id)))
-      await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'observation.exclude', entityType: 'observation', entityId: obs.id, projectId: project.id,
-        before: { excluded: false }, after: { excluded: true, fromRun: run.number } })
-    })
+  // The exclusion and the re-run commit together: a run that cannot be queued leaves the observation as it was.
+  const exclude = async (tx: Tx) => {
+    if (obs.excluded) return
+    await tx.update(observations).set({ excluded: true }).where(and(eq(observations.firmId, ctx.firm.id), eq(observations.id, obs.id)))
+    await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'observation.exclude', entityType: 'observation', entityId: obs.id, projectId: project.id,
+      before: { excluded: false }, after: { excluded: true, fromRun: run.number } })
   }
-  return queueRun(ctx, project, run.settings, opts)
+  return queueRun(ctx, project, run.settings, { ...opts, before: exclude })
 }
 
 // ── the worker's side ───────────────────────────────────────────────────────
@@ -355,4 +363,44 @@ export async function sweepStuckRuns(failJob: (queue: string, jobId: string) => 
     client.release()
   }
   return { requeued, failed }
+}
+
+/**
+ * Runs left `queued` with no live job (created, retry or active) for longer
+ * than `olderThanSeconds`: a job lost with the queue's schema, or one that
+ * ended without its run being told. Each gets a new job, sent in the same
+ * transaction that re-checks the run; a run that has used all its attempts
+ * ends `failed` instead. Together with the transactional send in queueRun,
+ * no run stays queued for ever.
+ */
+export async function sweepQueuedWithoutJob(queue: string, olderThanSeconds: number): Promise<{ resent: number; failed: number }> {
+  const db = useDb()
+  const { rows } = await usePool().query<{ id: number; firm_id: number; project_id: number; attempts: number }>(`
+    select a.id, a.firm_id, a.project_id, a.attempts from adjustments a
+    where a.status = 'queued' and a.created_at < now() - make_interval(secs => $1)
+      and not exists (select 1 from pgboss.job j
+        where (j.data->>'adjustmentId') = a.id::text and j.state in ('created', 'retry', 'active'))
+    order by a.id limit 100`, [olderThanSeconds])
+  let resent = 0
+  let failed = 0
+  const maxAttempts = jobPolicy().retryLimit + 1
+  for (const r of rows) {
+    if (r.attempts >= maxAttempts) {
+      const [run] = await db.select().from(adjustments).where(and(eq(adjustments.firmId, r.firm_id), eq(adjustments.id, r.id))).limit(1)
+      if (run) await finishFailed(run, 'The run was tried as often as allowed and its job is gone; start the run again')
+      failed++
+      continue
+    }
+    await readyQueue(queue)
+    const sent = await db.transaction(async (tx) => {
+      const [still] = await tx.select({ status: adjustments.status }).from(adjustments)
+        .where(and(eq(adjustments.firmId, r.firm_id), eq(adjustments.id, r.id))).for('update')
+      if (still?.status !== 'queued') return false
+      await sendAdjustJob({ adjustmentId: r.id, firmId: r.firm_id, projectId: r.project_id }, queue, tx)
+      await audit(tx, { firmId: r.firm_id, userId: null, action: 'adjustment.requeue', entityType: 'adjustment', entityId: r.id, projectId: r.project_id, after: { reason: 'queued without a job', queue } })
+      return true
+    })
+    if (sent) resent++
+  }
+  return { resent, failed }
 }

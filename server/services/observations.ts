@@ -7,6 +7,7 @@ import { createHash } from 'node:crypto'
 import { and, asc, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import Papa from 'papaparse'
+import { CHIEFS } from '../../shared/roles'
 import type { ManualObservations, ObservationPatch, ObservationQuery } from '../../shared/schemas/fielddata'
 import { readObservationCsv } from '../engine/io/csv'
 import { readLandXml } from '../engine/io/landxml'
@@ -189,6 +190,22 @@ function nulCharacters(read: Extract<ReadResult, { ok: true }>): ReadIssue[] {
 }
 
 /**
+ * Held coordinates change only by a party chief, a licensed surveyor or the
+ * owner (CHIEFS): a field crew's file that carries control (CSV `control`
+ * rows, LandXML CgPoints with pntSurv="control") is refused, naming each line,
+ * and nothing is saved. The crew uploads the measurements; the chief sets the
+ * control on the Stations tab or uploads it.
+ */
+function controlFromCrew(ctx: FirmContext, read: Extract<ReadResult, { ok: true }>, format: FileFormat): ReadIssue[] {
+  if (CHIEFS.includes(ctx.role)) return []
+  return read.controls.map((c) => ({
+    line: c.line,
+    column: format === 'landxml' ? 'CgPoint@pntSurv' : 'kind',
+    message: `sets the held coordinates of control point '${c.station}'; only a party chief or licensed surveyor may set control. Remove the control ${format === 'landxml' ? 'CgPoint' : 'row'} and ask a party chief to enter it`,
+  }))
+}
+
+/**
  * Parses and stores one file. Any bad line → 422 listing every one; the same
  * bytes already in the project → 409 naming the earlier set; nothing is
  * written unless everything is.
@@ -217,6 +234,8 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
   if (!read.ok) refuse(read)
   const unstorable = nulCharacters(read)
   if (unstorable.length > 0) refuse({ ok: false, errors: unstorable, warnings: read.warnings })
+  const control = controlFromCrew(ctx, read, format)
+  if (control.length > 0) refuse({ ok: false, errors: control, warnings: read.warnings })
 
   const names = new Set<string>()
   for (const o of read.observations) { names.add(o.at); names.add(o.to); if (o.from) names.add(o.from) }
@@ -294,6 +313,11 @@ export async function addManualObservations(ctx: FirmContext, project: Project, 
   if (!read.ok) {
     throw new DomainError('invalid', `${new Set(read.errors.map((e) => e.line)).size} typed-in row(s) are not valid; nothing was saved`,
       read.errors.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.${e.column}`, message: `row ${e.line - 1}, ${e.column}: ${e.message}` })))
+  }
+  const control = controlFromCrew(ctx, read, 'manual')
+  if (control.length) {
+    throw new DomainError('invalid', `${control.length} typed-in row(s) set control; nothing was saved`,
+      control.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.kind`, message: `row ${e.line - 1}, kind: ${e.message}` })))
   }
   const name = `Typed in by ${ctx.user.name}, ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC`
   return uploadObservationSet(ctx, project, { name, bytes: Buffer.from(text, 'utf8'), format: 'manual', crewId: body.crewId, instrumentProfileId: body.instrumentProfileId })

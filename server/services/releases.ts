@@ -1,7 +1,7 @@
 // Releases: a signed coordinate list turned into client deliverables (CSV,
 // GeoJSON, LandXML, PDF), each stored with its SHA-256. Every download is
 // logged in `downloads` and in the audit log.
-import { and, desc, eq, inArray } from 'drizzle-orm'
+import { and, desc, eq, inArray, sql } from 'drizzle-orm'
 import type { ReleaseCreate } from '../../shared/schemas/releases'
 import { findCrs } from '../../shared/crs'
 import { adjustments, downloads, projects, releaseFiles, releases, signoffs } from '../db/schema'
@@ -41,6 +41,9 @@ const fileUrl = (firmSlug: string, projectId: number, releaseId: number, format:
 
 const LOCAL_GEOJSON_REASON = 'GeoJSON is not offered: the project uses a local plane system, which has no defined link to WGS 84 longitude and latitude (RFC 7946 requires WGS 84).'
 
+/** Advisory-lock namespace: (NS, sign-off id) while a release of that sign-off is written. */
+const RELEASE_LOCK_NS = 7034
+
 export async function createRelease(ctx: FirmContext, project: Project, body: ReleaseCreate): Promise<ReleaseDto> {
   const { signoff, run } = await getSignoff(ctx.firm.id, project.id, body.signoffId).catch(() => {
     throw new DomainError('invalid', 'No such sign-off in this project', [{ field: 'signoffId', message: 'signoffId: is not a sign-off of this project' }])
@@ -50,6 +53,16 @@ export async function createRelease(ctx: FirmContext, project: Project, body: Re
   const publishedAt = new Date()
   const db = useDb()
   const out = await db.transaction(async (tx) => {
+    // A double-submitted release (same sign-off, publisher and note) makes one record:
+    // the sign-off's lock serialises the two requests and the second finds the first.
+    await tx.execute(sql`select pg_advisory_xact_lock(${RELEASE_LOCK_NS}, ${signoff.id})`)
+    const [same] = await tx.select().from(releases).where(and(eq(releases.firmId, ctx.firm.id), eq(releases.signoffId, signoff.id),
+      eq(releases.publishedBy, ctx.user.id), eq(releases.note, body.note ?? ''))).limit(1)
+    if (same) {
+      const files = await tx.select({ format: releaseFiles.format, fileName: releaseFiles.fileName, sha256: releaseFiles.sha256, sizeBytes: releaseFiles.sizeBytes })
+        .from(releaseFiles).where(and(eq(releaseFiles.firmId, ctx.firm.id), eq(releaseFiles.releaseId, same.id))).orderBy(releaseFiles.id)
+      return { rel: same, files, replay: true }
+    }
     const [rel] = await tx.insert(releases).values({
       firmId: ctx.firm.id, projectId: project.id, signoffId: signoff.id, publishedBy: ctx.user.id, publishedAt, note: body.note ?? '',
     }).returning()
@@ -78,9 +91,9 @@ export async function createRelease(ctx: FirmContext, project: Project, body: Re
       firmId: ctx.firm.id, userId: ctx.user.id, action: 'release.create', entityType: 'release', entityId: rel!.id, projectId: project.id,
       after: { signoffId: signoff.id, signoffSha256: signoff.sha256, files: files.map((f) => ({ format: f.format, sha256: f.sha256 })) },
     })
-    return { rel: rel!, files }
+    return { rel: rel!, files: files.map((f) => ({ format: f.format, fileName: f.fileName, sha256: f.sha256, sizeBytes: f.content.length })), replay: false }
   })
-  await notifyReleasePublished({ firmId: ctx.firm.id, projectId: project.id, releaseId: out.rel.id, files: out.files })
+  if (!out.replay) await notifyReleasePublished({ firmId: ctx.firm.id, projectId: project.id, releaseId: out.rel.id, files: out.files })
   return {
     id: out.rel.id,
     signoffId: signoff.id,
@@ -91,7 +104,7 @@ export async function createRelease(ctx: FirmContext, project: Project, body: Re
     publishedAt: out.rel.publishedAt.toISOString(),
     note: out.rel.note,
     stationCount: (signoff.stations as unknown[]).length,
-    files: out.files.map((f) => ({ format: f.format, fileName: f.fileName, sha256: f.sha256, sizeBytes: f.content.length, url: fileUrl(ctx.firm.slug, project.id, out.rel.id, f.format) })),
+    files: out.files.map((f) => ({ format: f.format, fileName: f.fileName, sha256: f.sha256, sizeBytes: f.sizeBytes, url: fileUrl(ctx.firm.slug, project.id, out.rel.id, f.format) })),
     geojsonMissingReason: out.files.some((f) => f.format === 'geojson') ? null : LOCAL_GEOJSON_REASON,
   }
 }

@@ -1,7 +1,7 @@
 // The adjustment job queue: pg-boss on the application's own database. One
 // lazily started instance per process (app server, worker, tests).
 import PgBoss from 'pg-boss'
-import { databaseUrl } from '../db/client'
+import { databaseUrl, txClient, type Tx } from '../db/client'
 
 export const ADJUST_QUEUE = 'adjust'
 
@@ -50,10 +50,23 @@ export async function ensureQueue(boss: PgBoss, name: string): Promise<void> {
   created.add(name)
 }
 
-export async function sendAdjustJob(job: AdjustJob, queue = ADJUST_QUEUE): Promise<string | null> {
+/** Makes sure the queue exists (pg-boss's own connection); call before a transaction that sends to it. */
+export async function readyQueue(queue = ADJUST_QUEUE): Promise<PgBoss> {
   const boss = await useBoss()
   await ensureQueue(boss, queue)
-  return boss.send(queue, job as unknown as object, jobPolicy())
+  return boss
+}
+
+/**
+ * Sends a job. With `tx` the job row is written on that transaction's own
+ * connection, so the run and its job are committed together or not at all.
+ */
+export async function sendAdjustJob(job: AdjustJob, queue = ADJUST_QUEUE, tx?: Tx): Promise<string | null> {
+  const boss = await readyQueue(queue)
+  const db = tx ? { executeSql: (text: string, values?: unknown[]) => txClient(tx).query(text, values) } : undefined
+  const id = await boss.send(queue, job as unknown as object, { ...jobPolicy(), ...(db ? { db } : {}) })
+  if (!id) throw new Error(`the job queue '${queue}' did not take the job of run ${job.adjustmentId}`)
+  return id
 }
 
 export async function stopBoss(): Promise<void> {

@@ -239,6 +239,9 @@ function signoffDto(s: Signoff, runNumber: number, state: { superseded: boolean;
   }
 }
 
+/** Advisory-lock namespace: (NS, run id) while a sign-off of that run is written. */
+const SIGNOFF_LOCK_NS = 7033
+
 /** Signing: the signer confirms their password, checked (and throttled) like a sign-in. */
 export async function createSignoff(ctx: FirmContext, project: Project, runNumber: number, body: SignoffCreate, ip = 'unknown'): Promise<SignoffDto> {
   const db = useDb()
@@ -277,7 +280,13 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
 
   const signed = names.map((n) => toSignedStation(byName.get(n)!)).sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0))
   const sha256 = signoffHash(signed, run.inputHash)
-  const row = await db.transaction(async (tx) => {
+  const { row, replay } = await db.transaction(async (tx) => {
+    // A double-submitted sign-off (same signer, run, coordinates and statement) makes one record:
+    // the run's lock serialises the two requests and the second finds the first.
+    await tx.execute(sql`select pg_advisory_xact_lock(${SIGNOFF_LOCK_NS}, ${run.id})`)
+    const [same] = await tx.select().from(signoffs).where(and(eq(signoffs.firmId, ctx.firm.id), eq(signoffs.adjustmentId, run.id),
+      eq(signoffs.signerId, signer.id), eq(signoffs.sha256, sha256), eq(signoffs.statement, body.statement))).limit(1)
+    if (same) return { row: same, replay: true }
     const [s] = await tx.insert(signoffs).values({
       firmId: ctx.firm.id,
       projectId: project.id,
@@ -299,8 +308,9 @@ export async function createSignoff(ctx: FirmContext, project: Project, runNumbe
       firmId: ctx.firm.id, userId: ctx.user.id, action: 'signoff.create', entityType: 'signoff', entityId: s!.id, projectId: project.id,
       after: { run: run.number, stations: signed.map((x) => x.name), sha256, inputHash: run.inputHash, ...(testWarnings.length ? { acknowledgedFailedTests: testWarnings } : {}) },
     })
-    return s!
+    return { row: s!, replay: false }
   })
+  if (replay) return signoffDto(row, run.number, { superseded: false, reason: null })
   await notifySignoffCompleted({ firmId: ctx.firm.id, projectId: project.id, runNumber: run.number, signerName: signer.name, stationCount: signed.length, sha256 })
   return signoffDto(row, run.number, { superseded: false, reason: null })
 }

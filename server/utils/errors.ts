@@ -22,6 +22,7 @@ export type DomainErrorKind =
   | 'throttled'        // too many attempts; try again later
   | 'upstream'         // a service we depend on (mail) failed; nothing saved
   | 'unavailable'      // the feature is switched off here
+  | 'busy'             // a part of ours (the job queue) cannot take it right now; nothing saved, try again
 
 /** The one place a domain error becomes an HTTP status. */
 export const HTTP_STATUS: Record<DomainErrorKind, number> = {
@@ -36,6 +37,7 @@ export const HTTP_STATUS: Record<DomainErrorKind, number> = {
   throttled: 429,
   upstream: 502,
   unavailable: 404,
+  busy: 503,
 }
 
 export class DomainError extends Error {

@@ -51,7 +51,12 @@ export async function requireUser(event: H3Event): Promise<SessionUser> {
     via = 'token'
     await db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.id))
   } else {
-    const token = await getToken({ event }).catch(() => null)
+    // The secret is passed here because nuxt-auth learns it only when its
+    // /api/auth handler is first loaded: after an app restart, every session
+    // answered 401 until someone happened to open a sign-in route. The same
+    // variables as runtimeConfig.authSecret (NUXT_AUTH_SECRET) and the handler's fallback.
+    const secret = process.env.NUXT_AUTH_SECRET || process.env.AUTH_SECRET
+    const token = await getToken({ event, ...(secret ? { secret } : {}) }).catch(() => null)
     claims = (token ?? undefined) as SessionClaims | undefined
     if (typeof claims?.uid === 'number') userId = claims.uid
   }

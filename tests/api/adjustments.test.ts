@@ -186,7 +186,7 @@ describe('a run on the demo network', () => {
     expect(stored.length).toBe(run.totals.observations)
     // the engine's own list, in the same order, with every field the page shows
     const read = readCsv(DEMO_CSV)
-    const engine = adjustNetwork({ controls: read.controls, observations: read.observations.map((o) => ({ ...o, id: fx.obsIdByLine.get(o.line) })) })
+    const engine = adjustNetwork({ controls: read.controls, observations: read.observations.map((o) => ({ ...o, id: fx.obsIdByLine.get(o.line) })), projectHeightM: DEMO_PROJECT_HEIGHT_M })
     if (!engine.ok) throw new Error(engine.reason)
     const all = (await chief.get(`${runPath(1)}/observations?sort=order&size=500`)).body
     expect(all.total).toBe(engine.result.observations.length)

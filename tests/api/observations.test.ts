@@ -2,9 +2,9 @@
 // (docs/architecture.md, docs/file-format.md, docs/api.md): counts come from counting the fixture rows
 // here, not from our own output; bytes are compared by SHA-256.
 import { readFileSync } from 'node:fs'
-import { and, asc, eq, sql } from 'drizzle-orm'
+import { and, asc, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { closeDb, useDb } from '../../server/db/client'
+import { closeDb, makePool, useDb } from '../../server/db/client'
 import { auditLog, observations } from '../../server/db/schema'
 import { as, DEMO, type Client } from '../support/http'
 import { auditRows, counts, fileForm, freshProject, outsiderCrewClient, sha256 } from './fielddata-helpers'
@@ -32,7 +32,8 @@ describe('upload', () => {
     const text = DEMO_CSV.toString('utf8')
     const rows = dataRows(text)
     const controlRows = rows.filter((r) => r.startsWith('control,')).length
-    const r = await crew.post(`${base(p)}/observation-sets`, fileForm('demo-network.csv', DEMO_CSV))
+    // the file holds control, so the party chief uploads it (a crew may not set control: crew-control.test.ts)
+    const r = await chief.post(`${base(p)}/observation-sets`, fileForm('demo-network.csv', DEMO_CSV))
     expect(r.status).toBe(201)
     expect(r.body.sha256).toBe(sha256(DEMO_CSV))
     expect(r.body.controls).toBe(controlRows)
@@ -322,16 +323,19 @@ describe('what is stored for each observation', () => {
     const marker = `refuse-${Date.now()}-${Math.random().toString(36).slice(2, 8)}`
     const fn = `tp_test_refuse_${marker.replace(/-/g, '_')}`
     const db = useDb()
-    await db.execute(sql.raw(`create function ${fn}() returns trigger language plpgsql as $$ begin raise exception 'refused by test'; end $$`))
-    await db.execute(sql.raw(`create trigger ${fn} before insert on observations for each row when (new.note = '${marker}') execute function ${fn}()`))
+    // the trigger is made by the owner role: the app's runtime role cannot change the schema
+    const owner = makePool(process.env.DATABASE_OWNER_URL ?? process.env.DATABASE_URL!, 1)
+    await owner.query(`create function ${fn}() returns trigger language plpgsql as $$ begin raise exception 'refused by test'; end $$`)
+    await owner.query(`create trigger ${fn} before insert on observations for each row when (new.note = '${marker}') execute function ${fn}()`)
     try {
       const lines = [HEADER, 'control,K1,,,1000 2000,m,,,,,,']
       for (let i = 0; i < 5000; i++) lines.push(`horizontal_distance,K1,,T${i % 50},${(100 + i / 1000).toFixed(3)},m,2,,,,,${i === 4000 ? marker : ''}`)
       const r = await chief.post(`${base(p)}/observation-sets`, fileForm('refused.csv', lines.join('\n') + '\n'))
       expect(r.status).toBe(500)
     } finally {
-      await db.execute(sql.raw(`drop trigger if exists ${fn} on observations`))
-      await db.execute(sql.raw(`drop function if exists ${fn}()`))
+      await owner.query(`drop trigger if exists ${fn} on observations`)
+      await owner.query(`drop function if exists ${fn}()`)
+      await owner.end()
     }
     expect(await counts(p)).toEqual({ observations: 0, sets: 0, stations: 0 })
     const audits = await db.select().from(auditLog).where(and(eq(auditLog.projectId, p), eq(auditLog.action, 'observation_set.upload')))

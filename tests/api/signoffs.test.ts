@@ -3,7 +3,7 @@
 // when the inputs change, and the sign-off request and completion e-mails.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, eq } from 'drizzle-orm'
-import { closeDb, useDb, usePool } from '../../server/db/client'
+import { closeDb, makePool, useDb, usePool } from '../../server/db/client'
 import { adjustedStations, adjustments, memberships, firms, observations, signoffs, users } from '../../server/db/schema'
 import { hashPassword } from '../../server/services/passwords'
 import { signoffHash } from '../../server/services/signoffs'
@@ -128,9 +128,16 @@ describe('a sign-off', () => {
     expect(signoffHash(tampered, row!.inputHash)).not.toBe(row!.sha256)
   })
 
-  it('cannot be changed or removed in SQL: the trigger refuses UPDATE and DELETE', async () => {
-    await expect(usePool().query('update signoffs set statement = $1 where id = $2', ['edited later', signed.id])).rejects.toThrow(/immutable/)
-    await expect(usePool().query('delete from signoffs where id = $1', [signed.id])).rejects.toThrow(/immutable/)
+  it('cannot be changed or removed in SQL: the app\'s role has no right to, and the trigger refuses even the owner role', async () => {
+    await expect(usePool().query('update signoffs set statement = $1 where id = $2', ['edited later', signed.id])).rejects.toThrow(/permission denied/)
+    await expect(usePool().query('delete from signoffs where id = $1', [signed.id])).rejects.toThrow(/permission denied/)
+    const owner = makePool(process.env.DATABASE_OWNER_URL!, 1)
+    try {
+      await expect(owner.query('update signoffs set statement = $1 where id = $2', ['edited later', signed.id])).rejects.toThrow(/immutable/)
+      await expect(owner.query('delete from signoffs where id = $1', [signed.id])).rejects.toThrow(/immutable/)
+    } finally {
+      await owner.end()
+    }
     const [row] = await useDb().select().from(signoffs).where(eq(signoffs.id, signed.id))
     expect(row!.statement).toBe(statement)
   })

@@ -1,5 +1,6 @@
-// Field data in the browser: a field-crew member drops the demo file onto the
-// Observations tab and sees the count; a file with two bad lines shows both
+// Field data in the browser: the party chief has entered the control; a
+// field-crew member drops the demo measurements onto the Observations tab and
+// sees the count (a crew may not set control, so the crew's file has none); a file with two bad lines shows both
 // line numbers; a party chief excludes an observation and edits a control point.
 import { readFileSync } from 'node:fs'
 import type { Browser, Page } from 'playwright-core'
@@ -11,6 +12,8 @@ const DEMO_CSV = readFileSync('server/db/demo/demo-network.csv', 'utf8')
 const HEADER = 'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note'
 const dataRows = DEMO_CSV.split('\n').map((l) => l.trim()).filter((l) => l && !l.startsWith('#')).slice(1)
 const expectedObservations = dataRows.filter((r) => !r.startsWith('control,')).length
+const CONTROL_CSV = [HEADER, ...dataRows.filter((r) => r.startsWith('control,'))].join('\n') + '\n'
+const MEASUREMENTS_CSV = DEMO_CSV.split('\n').filter((l) => !l.startsWith('control,')).join('\n')
 
 let browser: Browser
 let projectId: number
@@ -34,17 +37,21 @@ beforeAll(async () => {
   const crews = await chief.get(`/api/firms/${DEMO.firm}/crews`)
   const north = crews.body.find((c: { name: string }) => c.name === 'North crew')
   await chief.post(`/api/firms/${DEMO.firm}/projects/${projectId}/crews`, { crewId: north.id })
+  const form = new FormData()
+  form.append('file', new Blob([CONTROL_CSV]), 'control.csv')
+  const c = await chief.post(`/api/firms/${DEMO.firm}/projects/${projectId}/observation-sets`, form)
+  if (c.status !== 201) throw new Error(`control upload: ${c.status} ${JSON.stringify(c.body)}`)
   browser = await launch()
 })
 afterAll(async () => { await browser?.close() })
 
 describe('field data in the browser', () => {
-  it('field crew drops the demo file and sees the count; a bad file lists both bad lines', async () => {
+  it('field crew drops the demo measurements and sees the count; a bad file lists both bad lines', async () => {
     const page = await newPage(browser)
     await signIn(page, DEMO.crew)
     await page.goto(`/f/${DEMO.firm}/projects/${projectId}/observations`)
     await page.getByText('Drop a Tiepoint CSV or LandXML 1.2 file here').waitFor()
-    await dropFile(page, 'demo-network.csv', DEMO_CSV)
+    await dropFile(page, 'demo-network.csv', MEASUREMENTS_CSV)
     const result = page.getByTestId('upload-result')
     await result.waitFor({ timeout: 30_000 })
     expect(await result.textContent()).toContain(`${expectedObservations} observations`)

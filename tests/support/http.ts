@@ -10,7 +10,8 @@ export interface ApiResponse<T = any> {
 
 export class Client {
   cookies = new Map<string, string>()
-  constructor(public bearer?: string) {}
+  /** `base`: another app instance than the suite's (the fault tests start their own). */
+  constructor(public bearer?: string, public base: string = baseUrl) {}
 
   private cookieHeader() {
     return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ')
@@ -31,8 +32,8 @@ export class Client {
     // A browser sends Origin with every POST, PATCH and DELETE; the server refuses
     // cookie-authenticated changes without it. Tests of that rule set their own.
     const method = (init.method ?? 'GET').toUpperCase()
-    if (!['GET', 'HEAD'].includes(method) && !headers.has('origin')) headers.set('origin', baseUrl)
-    const res = await fetch(baseUrl + path, { ...init, headers, redirect: 'manual' })
+    if (!['GET', 'HEAD'].includes(method) && !headers.has('origin')) headers.set('origin', this.base)
+    const res = await fetch(this.base + path, { ...init, headers, redirect: 'manual' })
     this.keep(res)
     return res
   }
@@ -67,8 +68,8 @@ export class Client {
 }
 
 /** A client signed in as the given demo user (throws when sign-in fails). */
-export async function as(email: string, password = demoPassword): Promise<Client> {
-  const c = new Client()
+export async function as(email: string, password = demoPassword, base = baseUrl): Promise<Client> {
+  const c = new Client(undefined, base)
   await c.signIn(email, password)
   const me = await c.get('/api/me')
   if (me.status !== 200) throw new Error(`sign-in as ${email} failed: ${me.status} ${JSON.stringify(me.body)}`)

@@ -1,0 +1,11 @@
+#!/usr/bin/env bash
+# npm run audit:verify — check the audit log's hash chain (server/db/audit-verify.ts)
+# against DATABASE_URL, or the project's own cluster when it is not set.
+source "$(dirname "$0")/lib.sh"
+cd "$ROOT"
+ensure_node_modules
+if [ -z "${DATABASE_URL:-}" ]; then
+  PGPORT="${TIEPOINT_PG_PORT:-54329}"
+  pg_up pg "$PGPORT"; pg_database "$PGPORT" tiepoint
+fi
+exec npx tsx server/db/audit-verify.ts
