@@ -3,7 +3,7 @@
 // app hydrates and navigates), the map draws the network and the residual
 // histogram draws on its canvas.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Browser, Page } from 'playwright-core'
+import type { Browser, Locator, Page } from 'playwright-core'
 import { closeDb } from '../../server/db/client'
 import { launch, newPage, shot, signIn } from '../support/browser'
 import { DEMO } from '../support/http'
@@ -13,6 +13,16 @@ let browser: Browser
 let page: Page
 let base: string
 const violations: string[] = []
+
+/** pixels with any opacity on a canvas: zero while nothing has been drawn */
+const paintedPixels = (canvas: Locator) => canvas.evaluate((c: HTMLCanvasElement) => {
+  const ctx = c.getContext('2d')
+  if (!ctx || !c.width || !c.height) return 0
+  const px = ctx.getImageData(0, 0, c.width, c.height).data
+  let painted = 0
+  for (let i = 3; i < px.length; i += 4) if (px[i]! > 0) painted++
+  return painted
+})
 
 beforeAll(async () => {
   const fx = await projectWithNetwork(DEMO.firm, 'CSP e2e', DEMO_CSV)
@@ -40,25 +50,11 @@ describe('pages under the Content-Security-Policy', () => {
     // the app's scripts it would stay empty
     const mapCanvas = map.locator('canvas').first()
     await mapCanvas.waitFor({ timeout: 20_000 })
-    await expect.poll(() => mapCanvas.evaluate((c: HTMLCanvasElement) => {
-      const ctx = c.getContext('2d')
-      if (!ctx || !c.width || !c.height) return 0
-      const px = ctx.getImageData(0, 0, c.width, c.height).data
-      let painted = 0
-      for (let i = 3; i < px.length; i += 4) if (px[i]! > 0) painted++
-      return painted
-    }), { timeout: 20_000 }).toBeGreaterThan(100)
+    await expect.poll(() => paintedPixels(mapCanvas), { timeout: 20_000 }).toBeGreaterThan(100)
     // the histogram canvas has something drawn on it (not all transparent)
     const canvas = page.locator('canvas:not([data-testid="network-map"] canvas)').first()
     await canvas.waitFor({ timeout: 20_000 })
-    await expect.poll(() => canvas.evaluate((c: HTMLCanvasElement) => {
-      const ctx = c.getContext('2d')
-      if (!ctx || !c.width || !c.height) return 0
-      const px = ctx.getImageData(0, 0, c.width, c.height).data
-      let painted = 0
-      for (let i = 3; i < px.length; i += 4) if (px[i]! > 0) painted++
-      return painted
-    }), { timeout: 10_000 }).toBeGreaterThan(100)
+    await expect.poll(() => paintedPixels(canvas), { timeout: 10_000 }).toBeGreaterThan(100)
     await shot(page, 'csp-run-page')
     expect(violations).toEqual([])
   })
