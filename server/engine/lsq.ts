@@ -141,16 +141,8 @@ export function solveNonlinear(problem: NonlinearProblem, maxIterations: number,
     }
     let dx = solve(f)
     if (datum) dx = sTransformVector(datum, dx)
-    let converged = true
-    let step = 0
-    for (let j = 0; j < u; j++) {
-      x[j] += dx[j]
-      const r = Math.abs(dx[j]) / problem.tolerance[j]
-      if (r > step) step = r
-      if (r >= 1) converged = false
-    }
-    lastStep = step
-    if (converged) {
+    lastStep = applyStep(x, dx, problem.tolerance)
+    if (lastStep < 1) {
       const t1 = performance.now()
       const qxx = new Cofactor(f, datum)
       const groups: ArrayLike<number>[] = rows.map((row) => row.cols)
@@ -158,21 +150,44 @@ export function solveNonlinear(problem: NonlinearProblem, maxIterations: number,
       qxx.select(groups)
       const health = condition(f, columnNorms, qxx)
       timings.cofactorMs += performance.now() - t1
-      return {
-        ok: true,
-        x,
-        iterations: it,
-        rank: f.rank,
-        datumDefect: defect,
-        qxx,
-        rows: problem.linearize(x),
-        conditionEstimate: health.kappa,
-        dominant: health.dominant,
-        timings,
-      }
+      return solved(problem, x, it, f.rank, defect, qxx, health, timings)
     }
   }
   return { ok: false, code: 'not_converged', iterations: maxIterations, maxStep: lastStep }
+}
+
+/**
+ * x ← x + dx; returns the largest |dxⱼ| / toleranceⱼ, so the iteration has
+ * converged when it is below 1 (every unknown moved less than its tolerance).
+ */
+function applyStep(x: Float64Array, dx: Float64Array, tolerance: ArrayLike<number>): number {
+  let step = 0
+  for (let j = 0; j < x.length; j++) {
+    x[j] += dx[j]
+    const r = Math.abs(dx[j]) / tolerance[j]
+    if (r > step) step = r
+  }
+  return step
+}
+
+/** The outcome of a converged iteration, with the linearization at the adjusted unknowns. */
+function solved(
+  problem: NonlinearProblem,
+  x: Float64Array,
+  iterations: number,
+  rank: number,
+  datumDefect: number,
+  qxx: CofactorMatrix,
+  health: { kappa: number; dominant: number | null },
+  timings: LsqTimings,
+): LsqOutcome {
+  return {
+    ok: true, x, iterations, rank, datumDefect, qxx,
+    rows: problem.linearize(x),
+    conditionEstimate: health.kappa,
+    dominant: health.dominant,
+    timings,
+  }
 }
 
 function rowOrder(rows: LinearRow[]): Int32Array {
@@ -330,33 +345,14 @@ function solveNonlinearSparse(problem: NonlinearProblem, maxIterations: number):
     }
     let dx = solveSparse(f)
     if (datum) dx = sTransformVector(datum, dx)
-    let converged = true
-    let step = 0
-    for (let j = 0; j < u; j++) {
-      x[j] += dx[j]
-      const r = Math.abs(dx[j]) / problem.tolerance[j]
-      if (r > step) step = r
-      if (r >= 1) converged = false
-    }
-    lastStep = step
-    if (converged) {
+    lastStep = applyStep(x, dx, problem.tolerance)
+    if (lastStep < 1) {
       const t1 = performance.now()
       const qxx = new SparseCofactor(f, datum)
       qxx.select()
       const health = sparseCondition(f, columnNorms, qxx)
       timings.cofactorMs += performance.now() - t1
-      return {
-        ok: true,
-        x,
-        iterations: it,
-        rank: f.rank,
-        datumDefect: defect,
-        qxx,
-        rows: problem.linearize(x),
-        conditionEstimate: health.kappa,
-        dominant: health.dominant,
-        timings,
-      }
+      return solved(problem, x, it, f.rank, defect, qxx, health, timings)
     }
   }
   return { ok: false, code: 'not_converged', iterations: maxIterations, maxStep: lastStep }
