@@ -4,8 +4,5 @@
 source "$(dirname "$0")/lib.sh"
 cd "$ROOT"
 ensure_node_modules
-if [ -z "${DATABASE_URL:-}" ]; then
-  PGPORT="${TIEPOINT_PG_PORT:-54329}"
-  pg_up pg "$PGPORT"; pg_database "$PGPORT" tiepoint
-fi
+database_or_local_cluster
 exec npx tsx server/db/audit-verify.ts

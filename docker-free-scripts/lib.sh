@@ -139,6 +139,15 @@ pg_database() {
   export TIEPOINT_LOCAL_DATABASE_URL="$DATABASE_URL"
 }
 
+# DATABASE_URL as given, else the project's own cluster (started when needed)
+# on TIEPOINT_PG_PORT: for the commands that run beside `npm start`.
+database_or_local_cluster() {
+  if [ -z "${DATABASE_URL:-}" ]; then
+    local port="${TIEPOINT_PG_PORT:-54329}"
+    pg_up pg "$port"; pg_database "$port" tiepoint
+  fi
+}
+
 # A stable AUTH_SECRET per checkout, kept out of the repo.
 ensure_auth_secret() {
   if [ -z "${AUTH_SECRET:-}" ]; then
