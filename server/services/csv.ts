@@ -17,3 +17,13 @@ export function safeRows<T extends Record<string, unknown> | unknown[]>(rows: T[
     ? r.map((v) => (typeof v === 'string' ? safeCell(v) : v))
     : Object.fromEntries(Object.entries(r).map(([k, v]) => [k, typeof v === 'string' ? safeCell(v) : v]))) as T)
 }
+
+/**
+ * safeCell as a PostgreSQL expression over a text column, for exports streamed
+ * straight out of COPY. PostgreSQL's regular expressions read both patterns the
+ * same way (\d, \t, \r and the escaped - inside brackets are valid there), so the
+ * rule has one definition.
+ */
+export function safeCellSql(column: string): string {
+  return `case when ${column} ~ '${FORMULA_START.source}' and ${column} !~ '${PLAIN_NUMBER.source}' then '''' || ${column} else ${column} end`
+}

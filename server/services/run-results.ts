@@ -15,6 +15,7 @@ import type { Adjustment } from '../db/schema'
 import { METRES_PER } from '../engine/io/units'
 import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary, NetworkSummary, ObservationResult, RelativeResult, StationResult } from '../engine/types'
 import { describeTolerance, type ToleranceSpec } from './accuracy'
+import { safeCellSql } from './csv'
 
 // ── the summary ─────────────────────────────────────────────────────────────
 
@@ -390,8 +391,6 @@ export async function csvStream(run: Adjustment, project: { name: string; units:
   const u = project.units
   const k = Number(METRES_PER[u])
   const fixed = (col: string, d: number, scale = `/ ${k}`) => `round((${col} ${scale})::numeric, ${d})::text`
-  // a name a spreadsheet would run as a formula gets an apostrophe in front (safeCell in ./csv.ts, same rule)
-  const safe = (col: string) => `case when ${col} ~ '^[=+@\t\r-]' and ${col} !~ '^[+-]?([0-9]+\\.?[0-9]*|\\.[0-9]+)([eE][+-]?[0-9]+)?$' then '''' || ${col} else ${col} end`
   let query: string
   let header: string
   if (what === 'coordinates') {
@@ -399,14 +398,14 @@ export async function csvStream(run: Adjustment, project: { name: string; units:
     const pct = Math.round(conf * 1000) / 10
     header = ['station', 'kind', 'held', `east_${u}`, `north_${u}`, `height_${u}`, `sd_east_${u}`, `sd_north_${u}`, `sd_height_${u}`,
       `ellipse_semi_major_1sigma_${u}`, `ellipse_semi_minor_1sigma_${u}`, 'ellipse_azimuth_deg', `ellipse_semi_major_${pct}pct_${u}`, `ellipse_semi_minor_${pct}pct_${u}`].join(',')
-    query = `select ${safe('name')}, kind, case when fixed then 'fixed' else '' end, ${fixed('east', 4)}, ${fixed('north', 4)}, ${fixed('height', 4)},
+    query = `select ${safeCellSql('name')}, kind, case when fixed then 'fixed' else '' end, ${fixed('east', 4)}, ${fixed('north', 4)}, ${fixed('height', 4)},
       ${fixed('sd_east', 5)}, ${fixed('sd_north', 5)}, ${fixed('sd_height', 5)}, ${fixed('semi_major', 5)}, ${fixed('semi_minor', 5)},
       case when semi_major is null then null else round(azimuth_deg::numeric, 2)::text end, ${fixed('semi_major95', 5)}, ${fixed('semi_minor95', 5)}
       from adjusted_stations where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
   } else {
     header = 'line,kind,at,from,to,residual,residual_unit,redundancy,w,tau,mdb,flagged,weak,excluded'
     const nat = `* ${NATURAL}`
-    query = `select line, kind, ${safe('at')}, ${safe('"from"')}, ${safe('"to"')}, ${fixed('residual', 2, nat)}, case when residual_unit = 'm' then 'mm' else 'arcsec' end,
+    query = `select line, kind, ${safeCellSql('at')}, ${safeCellSql('"from"')}, ${safeCellSql('"to"')}, ${fixed('residual', 2, nat)}, case when residual_unit = 'm' then 'mm' else 'arcsec' end,
       round(redundancy::numeric, 3)::text, round(w::numeric, 2)::text, round(tau::numeric, 2)::text, ${fixed('mdb', 2, nat)},
       case when flagged then 'yes' else 'no' end, case when weak then 'yes' else 'no' end, case when excluded then 'yes' else 'no' end
       from observation_results where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
