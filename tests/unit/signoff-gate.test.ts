@@ -4,12 +4,7 @@
 import { describe, expect, it } from 'vitest'
 import { adjustNetwork, type AdjustmentResult } from '../../server/engine/index'
 import { failedTests } from '../../server/services/signoffs'
-import { ARC, fixed, obs } from './engine/helpers'
-
-const ok = (o: ReturnType<typeof adjustNetwork>): AdjustmentResult => {
-  if (!o.ok) throw new Error(o.reason)
-  return o.result
-}
+import { ARC, fixed, obs, ok } from './engine/helpers'
 
 // the gate reads a run's stored summary and its count of flagged observations in use
 const gateOf = (r: AdjustmentResult) => ({

@@ -2,16 +2,11 @@
 // its fix. Invented data; expected values from definitions named beside them.
 import { describe, expect, it } from 'vitest'
 import { readFileSync } from 'node:fs'
-import { adjustNetwork, formatReport, type AdjustmentResult, type ControlRecord } from '../../../server/engine/index'
+import { adjustNetwork, formatReport, type ControlRecord } from '../../../server/engine/index'
 import { readObservationCsv } from '../../../server/engine/io/csv'
 import { aprioriSigma } from '../../../server/engine/models/registry'
 import { DEFAULT_PROFILE, directionSigma } from '../../../server/engine/sigma'
-import { ARC, fixed, obs } from './helpers'
-
-const ok = (o: ReturnType<typeof adjustNetwork>): AdjustmentResult => {
-  if (!o.ok) throw new Error(`${o.code}: ${o.reason}`)
-  return o.result
-}
+import { ARC, fixed, obs, ok } from './helpers'
 
 describe('zero redundancy: the global test is not applicable, per network', () => {
   // a polar point: one direction and one distance from a known line, nothing checks it

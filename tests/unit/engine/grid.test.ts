@@ -5,8 +5,9 @@ import { describe, expect, it } from 'vitest'
 import fc from 'fast-check'
 import proj4 from 'proj4'
 import { elevationFactor, GridProjection } from '../../../server/engine/grid'
-import { adjustNetwork, formatReport, type AdjustmentResult } from '../../../server/engine/index'
+import { adjustNetwork, formatReport } from '../../../server/engine/index'
 import { controlsOf, generate3d, mountainNetwork } from './truth3d'
+import { ok } from './helpers'
 
 const D2R = Math.PI / 180
 
@@ -92,11 +93,6 @@ describe('point scale factor of a projection (proj4, central differences)', () =
 })
 
 // ---- the reduction summary on a projected network (3D truth from ./truth3d) ----------
-
-const ok = (o: ReturnType<typeof adjustNetwork>): AdjustmentResult => {
-  if (!o.ok) throw new Error(`${o.code}: ${o.reason}`)
-  return o.result
-}
 
 describe('UTM-projected network: what the reduction reports', () => {
   const net = mountainNetwork()

@@ -1,7 +1,7 @@
 // Invented networks for the engine tests: a seeded random generator, a
 // perturbed-grid plane network with directions and distances, and record
 // builders. Nothing here comes from a real survey.
-import type { ControlRecord, ObservationRecord } from '../../../server/engine/types'
+import type { AdjustmentResult, AdjustOutcome, ControlRecord, ObservationRecord } from '../../../server/engine/types'
 
 export function rng(seed: number): () => number {
   // mulberry32: small deterministic generator for repeatable invented data
@@ -17,6 +17,12 @@ export function rng(seed: number): () => number {
 
 export function gauss(r: () => number): number {
   return Math.sqrt(-2 * Math.log(1 - r())) * Math.cos(2 * Math.PI * r())
+}
+
+/** The result of an adjustment that must succeed; a failure stops the test with its code and reason. */
+export function ok(o: AdjustOutcome): AdjustmentResult {
+  if (!o.ok) throw new Error(`${o.code}: ${o.reason}`)
+  return o.result
 }
 
 export const ARC = Math.PI / (180 * 3600)

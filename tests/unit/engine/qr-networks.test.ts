@@ -6,13 +6,8 @@ import { describe, expect, it } from 'vitest'
 import fc from 'fast-check'
 import { Matrix, SVD } from 'ml-matrix'
 import { factorize, solve } from '../../../server/engine/qr'
-import { adjustNetwork, type AdjustmentResult, type ObservationRecord } from '../../../server/engine/index'
-import { ARC, fixed, gauss, obs, rng } from './helpers'
-
-const ok = (o: ReturnType<typeof adjustNetwork>): AdjustmentResult => {
-  if (!o.ok) throw new Error(`${o.code}: ${o.reason}`)
-  return o.result
-}
+import { adjustNetwork, type ObservationRecord } from '../../../server/engine/index'
+import { ARC, fixed, gauss, obs, ok, rng } from './helpers'
 
 describe('column pivoting (Businger & Golub 1965: |r_kk| non-increasing with the largest-norm rule)', () => {
   it('property: columns scaled over six orders of magnitude are swapped into non-increasing |r_kk|, and the solution equals ml-matrix SVD (1e-9 relative)', () => {

@@ -6,11 +6,7 @@
 import { describe, expect, it } from 'vitest'
 import { adjustNetwork, type AdjustmentResult } from '../../../server/engine/index'
 import { controlsOf, generate3d, mountainNetwork } from './truth3d'
-
-const ok = (o: ReturnType<typeof adjustNetwork>): AdjustmentResult => {
-  if (!o.ok) throw new Error(`${o.code}: ${o.reason}`)
-  return o.result
-}
+import { ok } from './helpers'
 
 describe('3D truth: mountain network in UTM zone 33 N, 150 km from the central meridian (method: ECEF chords, local-horizon azimuths, refracted zeniths from proj4 + GeographicLib)', () => {
   const net = mountainNetwork()
