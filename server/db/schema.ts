@@ -4,6 +4,7 @@
 // its indexes start with it: every query filters by the firm.
 import { sql } from 'drizzle-orm'
 import { OBSERVATION_KINDS } from '../engine/models/registry'
+import type { BaselineVector } from '../engine/types'
 import {
   type AnyPgColumn,
   bigint,
@@ -44,7 +45,7 @@ export const observationKindEnum = pgEnum('observation_kind', OBSERVATION_KINDS)
 /** kinds of a result row: the observation kinds and the coordinate observations of weighted control */
 type ResultKind = (typeof OBSERVATION_KINDS)[number] | 'control'
 export const resultKindEnum = pgEnum('result_kind', [...OBSERVATION_KINDS, 'control'] as [ResultKind, ...ResultKind[]])
-export const componentEnum = pgEnum('coordinate_component', ['east', 'north', 'height'])
+export const componentEnum = pgEnum('coordinate_component', ['east', 'north', 'height', 'dx', 'dy', 'dz'])
 export const runStatusEnum = pgEnum('run_status', ['queued', 'running', 'done', 'failed'])
 export const toleranceKindEnum = pgEnum('tolerance_kind', ['relative_ppm', 'fgdc_95', 'custom'])
 export const deliverableEnum = pgEnum('deliverable', ['csv', 'geojson', 'landxml', 'pdf'])
@@ -266,6 +267,8 @@ export const observations = pgTable('observations', {
   excluded: boolean().notNull().default(false),
   /** value as read from the file, kept when a person edits `value` */
   originalValue: doublePrecision(),
+  /** gnss_baseline only: ΔX ΔY ΔZ (m), σX σY σZ (m), ρXY ρXZ ρYZ — `value` holds the length */
+  vector: jsonb().$type<BaselineVector>(),
   ...timestamps,
 }, (t) => [
   index('observations_firm_project').on(t.firmId, t.projectId, t.kind),

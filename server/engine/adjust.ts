@@ -130,6 +130,10 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   const controlByName = mergeControls(input.controls)
   const obsList = input.observations
   validateObservations(obsList)
+  const vector = obsList.find((o) => o.kind === 'gnss_baseline' && !o.excluded)
+  if (vector) {
+    fail('input', `line ${vector.line}, column kind: GNSS baselines need the combined 3D adjustment, which this plane and height adjustment is not`)
+  }
   const refraction = refractionOf(input)
   const { surface, proj, geoid, method } = surfaceOf(input)
 

@@ -58,6 +58,20 @@ export interface ObservationRecord {
    * LandXML may also give mm, cm, km, in); `value` is still SI. Kept for the record only.
    */
   unit?: string
+  /** gnss_baseline only: the vector and its covariance (`value` holds the vector's length) */
+  vector?: BaselineVector
+}
+
+/**
+ * A GNSS baseline: ΔX ΔY ΔZ from `at` to `to` in metres, Earth-centred
+ * Earth-fixed in the datum of the project's CRS, mark to mark; σX σY σZ in
+ * metres; correlations ρXY ρXZ ρYZ (null = uncorrelated). The 3×3 covariance
+ * must be positive definite (checked by the model, ./models/gnss-baseline).
+ */
+export interface BaselineVector {
+  d: [number, number, number]
+  sigma: [number, number, number]
+  correlation: [number, number, number] | null
 }
 
 /** A-priori precision of an instrument and its set-up. */
@@ -180,7 +194,8 @@ export interface ObservationResult {
   line: number
   /** 'control' rows are coordinate observations of weighted control points */
   kind: ObservationKind | 'control'
-  component: 'east' | 'north' | 'height' | null
+  /** coordinate component of a 'control' row, or ΔX/ΔY/ΔZ component of a gnss_baseline row */
+  component: ResultComponent | null
   at: string
   from: string | null
   to: string
@@ -215,6 +230,23 @@ export interface ObservationResult {
   combinedFactor?: number
   elevationFactor?: number
   scaleFactor?: number
+  /** gnss_baseline component rows only */
+  vectorTest?: VectorTest
+}
+
+export type ResultComponent = 'east' | 'north' | 'height' | 'dx' | 'dy' | 'dz'
+
+/**
+ * The test of a whole GNSS vector, repeated on each of its three component rows:
+ * T = vᵀ Qvv⁺ v / σ0² against χ²(3) (or F when σ̂0 is used) at the run's α0; the
+ * residual vector in the local east/north/up of the vector's `at` station.
+ */
+export interface VectorTest {
+  statistic: number
+  critical: number
+  distribution: 'chi2' | 'F'
+  flagged: boolean
+  residualEnu: [number, number, number]
 }
 
 export interface RelativeResult {

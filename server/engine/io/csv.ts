@@ -398,6 +398,9 @@ function profileGap(kind: ObservationKind, profile: InstrumentProfile): string |
         : 'the instrument profile has no distance σ'
     case 'height_difference':
       return positive(profile.levellingMmPerSqrtKm) ? null : 'the instrument profile has no levelling σ per √km'
+    case 'gnss_baseline':
+      // a vector carries its own σX σY σZ; no profile value stands in for them
+      return 'a GNSS baseline needs σX σY σZ in the sigma column'
   }
 }
 

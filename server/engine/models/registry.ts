@@ -5,6 +5,7 @@
 import { angle } from './angle'
 import { azimuth } from './azimuth'
 import { direction } from './direction'
+import { gnssBaseline } from './gnss-baseline'
 import { heightDifference } from './height-difference'
 import { horizontalDistance } from './horizontal-distance'
 import { slopeDistance } from './slope-distance'
@@ -12,7 +13,7 @@ import type { ObservationRecord } from '../types'
 import type { ModelIssue, ObservationModel, SigmaContext } from './types'
 import { zenith } from './zenith'
 
-export const MODELS = [direction, angle, zenith, slopeDistance, horizontalDistance, azimuth, heightDifference] as const
+export const MODELS = [direction, angle, zenith, slopeDistance, horizontalDistance, azimuth, heightDifference, gnssBaseline] as const
 
 export type ObservationKind = (typeof MODELS)[number]['kind']
 

@@ -38,8 +38,8 @@ export interface ObservationModel<K extends string = string> {
   label: string
   /** the value is an angle (radians) or a length (metres) */
   quantity: 'angle' | 'length'
-  /** the network the kind enters: plane (E, N), height (H), or both through its partner row */
-  network: 'plane' | 'height' | 'plane+height'
+  /** the network the kind enters: plane (E, N), height (H), both through its partner row, or only the 3D adjustment */
+  network: 'plane' | 'height' | 'plane+height' | '3d'
   /** row checks beyond the reader's (the engine's own guard: nothing reaches the solver unchecked) */
   validate(o: ObservationRecord): ModelIssue[]
   /** stations the row touches */
