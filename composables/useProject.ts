@@ -7,6 +7,7 @@ export interface ProjectView {
   crsName: string
   units: 'm' | 'ft' | 'usft'
   angleFormat: 'dms' | 'gon'
+  precisionUnit: 'mm' | 'hundredth_ft'
   status: 'collecting' | 'adjusted' | 'signed' | 'released'
   toleranceProfileId: number | null
   geoidSeparationM: number

@@ -3,6 +3,7 @@
 // pass / watch / fail rating of an observation's tests.
 // Relative imports (not ~~) so the unit tests can load this module without Nuxt.
 import { METRES_PER } from '../server/engine/io/units'
+import { formatPrecision, precisionScale, type PrecisionUnit } from '../shared/precision'
 import type { ObservationResult, StationResult } from '../server/engine/types'
 import { useProject } from './useProject'
 
@@ -54,22 +55,21 @@ export function smallAngleUnit(format: AngleFormat): '″' | 'cc' {
 }
 
 /**
- * `angleFormat` defaults to the project the page belongs to (loaded by the
- * project shell), so every run view shows angles the way the project prefers.
+ * `angleFormat` and `precisionUnit` default to the project the page belongs to
+ * (loaded by the project shell), so every run view shows angles and precisions
+ * the way the project prefers.
  */
-export function useRunFormat(units: () => 'm' | 'ft' | 'usft', angleFormat?: () => AngleFormat | null | undefined) {
-  const shell = angleFormat ? null : useProject().project
+export function useRunFormat(units: () => 'm' | 'ft' | 'usft', angleFormat?: () => AngleFormat | null | undefined, precisionUnit?: () => PrecisionUnit | null | undefined) {
+  const shell = angleFormat && precisionUnit ? null : useProject().project
   const angles = (): AngleFormat => (angleFormat ? angleFormat() : shell?.value?.angleFormat) ?? 'dms'
+  const scale = () => precisionScale(units(), precisionUnit ? precisionUnit() : shell?.value?.precisionUnit)
   const k = () => METRES_PER[units()]
   const unit = () => UNIT_LABEL[units()]
   /** a coordinate or length in project units */
   const len = (m: number | null | undefined, d = 4) => (m === null || m === undefined ? '—' : (m / k()).toFixed(d))
-  /** a small length (σ, ellipse axis) in mm, or in project units for feet projects */
-  const small = (m: number | null | undefined, d = 1) => {
-    if (m === null || m === undefined) return '—'
-    return units() === 'm' ? (m * 1000).toFixed(d) : (m / k()).toFixed(4)
-  }
-  const smallUnit = () => (units() === 'm' ? 'mm' : unit())
+  /** a small length (σ, ellipse axis, allowable) in mm or hundredths of a foot (shared/precision.ts) */
+  const small = (m: number | null | undefined, d?: number) => formatPrecision(m, scale(), d)
+  const smallUnit = () => scale().label
   /** a residual / σ / MDB in its natural unit: mm for lengths, ″ or cc for angles */
   const natural = (v: number | null | undefined, u: 'm' | 'arcsec', d = 1) =>
     (v === null || v === undefined ? '—' : u === 'm' ? (v * 1000).toFixed(d) : smallAngle(v, angles()).toFixed(d))

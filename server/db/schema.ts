@@ -49,6 +49,8 @@ export const componentEnum = pgEnum('coordinate_component', ['east', 'north', 'h
 export const runStatusEnum = pgEnum('run_status', ['queued', 'running', 'done', 'failed'])
 export const toleranceKindEnum = pgEnum('tolerance_kind', ['relative_ppm', 'fgdc_95', 'custom'])
 export const deliverableEnum = pgEnum('deliverable', ['csv', 'geojson', 'landxml', 'pdf'])
+/** how a feet project shows precisions (σ, ellipse axes, allowables): millimetres or hundredths of its foot */
+export const precisionUnitEnum = pgEnum('precision_unit', ['mm', 'hundredth_ft'])
 
 // ── people and firms ─────────────────────────────────────────────────────────
 
@@ -160,6 +162,8 @@ export const toleranceProfiles = pgTable('tolerance_profiles', {
   /** relative_ppm / custom: { mm, ppm, confidence }; fgdc_95: { thresholdMm } */
   params: jsonb().$type<Record<string, number>>().notNull(),
   source: text().notNull(),
+  /** retired: kept on the runs and sign-offs that used it, no longer offered for new runs or projects */
+  retiredAt: timestamp({ withTimezone: true }),
   ...timestamps,
 }, (t) => [uniqueIndex('tolerance_profiles_firm_name').on(t.firmId, t.name)])
 
@@ -174,6 +178,8 @@ export const projects = pgTable('projects', {
   crsDefinition: text(),
   units: unitsEnum().notNull().default('m'),
   angleFormat: angleFormatEnum().notNull().default('dms'),
+  /** feet projects: precisions in mm or hundredths of a foot (metre projects always mm; shared/precision.ts) */
+  precisionUnit: precisionUnitEnum().notNull().default('mm'),
   status: projectStatusEnum().notNull().default('collecting'),
   toleranceProfileId: integer().references(() => toleranceProfiles.id, { onDelete: 'set null' }),
   /** geoid separation N (m) for the whole network: ellipsoidal height = height + N (projected CRS) */

@@ -11,6 +11,7 @@ import proj4 from 'proj4'
 import PDFDocument from 'pdfkit'
 import { XMLBuilder } from 'fast-xml-parser'
 import { METRES_PER } from '../engine/io/units'
+import { formatPrecision, precisionScale, type PrecisionUnit } from '../../shared/precision'
 import type { AccuracyCheck } from './accuracy-check'
 import type { FlaggedObservation, NetworkDrawing, RunSummaryDto, SignedStation } from './signoffs'
 import { sha256Hex } from './passwords'
@@ -20,7 +21,7 @@ export type DeliverableFormat = 'csv' | 'geojson' | 'landxml' | 'pdf'
 
 export interface DeliverableInput {
   firmName: string
-  project: { id: number; name: string; crs: string; crsName: string; crsDefinition: string | null; units: Units }
+  project: { id: number; name: string; crs: string; crsName: string; crsDefinition: string | null; units: Units; precisionUnit?: PrecisionUnit }
   release: { id: number; publishedAt: Date }
   signoff: {
     id: number
@@ -79,22 +80,25 @@ export function fileBase(input: DeliverableInput): string {
 /** Header comment lines (`#`), then one row per signed station, values in the project's units. */
 export function buildCsv(input: DeliverableInput): string {
   const u = input.project.units
+  const ps = precisionScale(u, input.project.precisionUnit)
+  // one decimal more than on screen: the file is for further computation
+  const prec = (v: number | null) => (v === null ? '' : formatPrecision(v, ps, ps.decimals + 1))
   const rows = input.signoff.stations.map((s) => ({
     name: s.name,
     kind: s.kind,
     [`east_${u}`]: fmt(toUnits(s.east, u)),
     [`north_${u}`]: fmt(toUnits(s.north, u)),
     [`height_${u}`]: fmt(toUnits(s.height, u)),
-    [`sd_east_${u}`]: fmt(toUnits(s.sdEast, u)),
-    [`sd_north_${u}`]: fmt(toUnits(s.sdNorth, u)),
-    [`sd_height_${u}`]: fmt(toUnits(s.sdHeight, u)),
-    [`ellipse95_major_${u}`]: fmt(toUnits(s.semiMajor95, u)),
-    [`ellipse95_minor_${u}`]: fmt(toUnits(s.semiMinor95, u)),
+    [`sd_east_${ps.key}`]: prec(s.sdEast),
+    [`sd_north_${ps.key}`]: prec(s.sdNorth),
+    [`sd_height_${ps.key}`]: prec(s.sdHeight),
+    [`ellipse95_major_${ps.key}`]: prec(s.semiMajor95),
+    [`ellipse95_minor_${ps.key}`]: prec(s.semiMinor95),
     ellipse_azimuth_deg: fmt(s.azimuthDeg, 3),
   }))
   const header = [
     `# ${input.project.name}: signed control coordinates, release ${input.release.id}`,
-    `# CRS: ${input.project.crs} (${input.project.crsName}); units: ${UNIT_LABEL[u]}; precisions: standard deviations (1 sigma) and 95 % error ellipses`,
+    `# CRS: ${input.project.crs} (${input.project.crsName}); units: ${UNIT_LABEL[u]}; precisions in ${ps.words}: standard deviations (1 sigma) and 95 % error ellipses`,
     `# Signed by ${input.signoff.signerName}, licence ${input.signoff.licenceNumber} (${input.signoff.licenceJurisdiction}), ${input.signoff.signedAt.toISOString()}; sign-off SHA-256 ${input.signoff.sha256}`,
     `# ${CAUTION}`,
   ]
@@ -381,7 +385,8 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     : 'precisions scaled by the a-posteriori variance factor σ0² of the adjustment'
   heading('Coordinate system and datum')
   line('CRS', `${input.project.crs} — ${input.project.crsName}`)
-  line('Units', `${UNIT_LABEL[u]}; standard deviations (σ) at 1σ, error ellipses at 95 % confidence`)
+  const ps = precisionScale(u, input.project.precisionUnit)
+  line('Units', `coordinates in ${UNIT_LABEL[u]}; precisions in ${ps.words}: standard deviations (σ) at 1σ, error ellipses at 95 % confidence`)
   line('Datum', datumWords)
   line('Precision scaling', scalingWords)
 
@@ -396,8 +401,8 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   line('Input hash', r.inputHash)
 
   heading('Signed coordinates')
-  const pu = u === 'm' ? 'mm' : u
-  const prec = (v: number | null) => (v === null ? '—' : u === 'm' ? (v * 1000).toFixed(1) : fmt(toUnits(v, u)))
+  const pu = ps.label
+  const prec = (v: number | null) => formatPrecision(v, ps)
   table([
     { title: 'Station', width: 56, align: 'left' }, { title: 'Status', width: 36, align: 'left' },
     { title: `East (${u})`, width: 62 }, { title: `North (${u})`, width: 64 }, { title: `Height (${u})`, width: 50 },

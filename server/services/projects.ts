@@ -18,6 +18,7 @@ export interface ProjectDto {
   crsName: string
   units: Project['units']
   angleFormat: Project['angleFormat']
+  precisionUnit: Project['precisionUnit']
   status: Project['status']
   toleranceProfileId: number | null
   geoidSeparationM: number
@@ -38,6 +39,7 @@ export function projectDto(p: Project): ProjectDto {
     crsName: p.crs === 'local' ? 'Local plane system' : (findCrs(p.crs)?.name ?? p.crs),
     units: p.units,
     angleFormat: p.angleFormat,
+    precisionUnit: p.precisionUnit,
     status: p.status,
     toleranceProfileId: p.toleranceProfileId,
     geoidSeparationM: p.geoidSeparationM,
@@ -90,6 +92,8 @@ export async function createProject(ctx: FirmContext, body: ProjectCreate): Prom
       crsDefinition: body.crs === 'local' ? null : findCrs(body.crs)!.proj4,
       units: body.units,
       angleFormat: body.angleFormat ?? 'dms',
+      // feet projects start in hundredths of their foot unless told otherwise
+      precisionUnit: body.precisionUnit ?? (body.units === 'm' ? 'mm' : 'hundredth_ft'),
       createdBy: ctx.user.id,
     }).returning()
     await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'project.create', entityType: 'project', entityId: p!.id, projectId: p!.id, after: projectDto(p!) })
@@ -100,8 +104,13 @@ export async function createProject(ctx: FirmContext, body: ProjectCreate): Prom
 export async function updateProject(ctx: FirmContext, project: Project, body: ProjectUpdate): Promise<ProjectDto> {
   const db = useDb()
   // The id arrives in the body, so it must be looked up in this firm like any other reference.
-  if (body.toleranceProfileId != null && !(await getToleranceProfile(ctx.firm.id, body.toleranceProfileId))) {
-    throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'toleranceProfileId', message: 'toleranceProfileId: no such accuracy standard in this firm' }])
+  if (body.toleranceProfileId != null) {
+    const t = await getToleranceProfile(ctx.firm.id, body.toleranceProfileId)
+    if (!t) throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'toleranceProfileId', message: 'toleranceProfileId: no such accuracy standard in this firm' }])
+    // a retired standard may stay where it is, but is not chosen anew
+    if (t.retiredAt && t.id !== project.toleranceProfileId) {
+      throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'toleranceProfileId', message: `toleranceProfileId: '${t.name}' is retired; choose a current accuracy standard` }])
+    }
   }
   return db.transaction(async (tx) => {
     const patch: Partial<typeof projects.$inferInsert> = { ...body }

@@ -71,7 +71,7 @@ export async function createRelease(ctx: FirmContext, project: Project, body: Re
       project: {
         id: project.id, name: project.name, crs: project.crs,
         crsName: project.crs === 'local' ? 'Local plane system' : (findCrs(project.crs)?.name ?? project.crs),
-        crsDefinition: project.crsDefinition, units: project.units,
+        crsDefinition: project.crsDefinition, units: project.units, precisionUnit: project.precisionUnit,
       },
       release: { id: rel!.id, publishedAt },
       signoff: {

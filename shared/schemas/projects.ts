@@ -13,6 +13,8 @@ export const projectCreateSchema = z.object({
   units: z.enum(['m', 'ft', 'usft']),
   description: z.string().max(2000, 'is longer than 2000 characters').optional(),
   angleFormat: z.enum(['dms', 'gon']).optional(),
+  /** feet projects: precisions in mm or hundredths of a foot (metre projects always show mm) */
+  precisionUnit: z.enum(['mm', 'hundredth_ft']).optional(),
 }).strict()
 
 /** Geodetic settings of a project, passed to every run and recorded with it. */

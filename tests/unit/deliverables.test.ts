@@ -114,16 +114,37 @@ describe('CSV', () => {
     expect(text).toMatch(/units: US survey ft/)
     const parsed = Papa.parse<Record<string, string>>(text, { header: true, comments: '#', skipEmptyLines: true })
     expect(parsed.errors).toEqual([])
-    expect(parsed.meta.fields).toEqual(['name', 'kind', 'east_usft', 'north_usft', 'height_usft', 'sd_east_usft', 'sd_north_usft', 'sd_height_usft', 'ellipse95_major_usft', 'ellipse95_minor_usft', 'ellipse_azimuth_deg'])
+    expect(parsed.meta.fields).toEqual(['name', 'kind', 'east_usft', 'north_usft', 'height_usft', 'sd_east_mm', 'sd_north_mm', 'sd_height_mm', 'ellipse95_major_mm', 'ellipse95_minor_mm', 'ellipse_azimuth_deg'])
+    expect(text).toMatch(/precisions in millimetres \(mm\)/)
     const row = parsed.data[0]!
     expect(row.name).toBe('FM20')
     expect(Number(row.east_usft)).toBeCloseTo(6478123.4567, 4)
     expect(Number(row.north_usft)).toBeCloseTo(1845678.9012, 4)
-    expect(Number(row.ellipse95_major_usft) * 1200 / 3937).toBeCloseTo(0.00566, 4)
+    expect(row.ellipse95_major_mm).toBe('5.66')
+  })
+
+  it('a feet project set to hundredths writes its precisions in hundredths of its foot, and says so', () => {
+    const text = buildCsv({ ...spcs, project: { ...spcs.project, precisionUnit: 'hundredth_ft' } })
+    expect(text).toMatch(/precisions in hundredths of a US survey foot \(0\.01 US ft\)/)
+    const parsed = Papa.parse<Record<string, string>>(text, { header: true, comments: '#', skipEmptyLines: true })
+    expect(parsed.meta.fields).toContain('ellipse95_major_cusft')
+    expect(parsed.meta.fields).not.toContain('ellipse95_major_mm')
+    // 1 US survey foot = 1200/3937 m (Federal Register 24 FR 5348, 1959): back to metres
+    expect(Number(parsed.data[0]!.ellipse95_major_cusft) / 100 * 1200 / 3937).toBeCloseTo(0.00566, 5)
   })
 })
 
 describe('PDF report', () => {
+  it('states the precision unit of a feet project set to hundredths in the units line and table headers', async () => {
+    const pdf = await buildPdf({ ...spcs, project: { ...spcs.project, precisionUnit: 'hundredth_ft' } })
+    const { text } = await extractText(await getDocumentProxy(new Uint8Array(pdf)), { mergePages: true })
+    const flat = text.replace(/\s+/g, ' ')
+    expect(flat).toContain('precisions in hundredths of a US survey foot (0.01 US ft)')
+    // 0.00566 m = 1.86 hundredths of a US survey foot (1 US ft = 1200/3937 m)
+    expect(flat).toContain('1.86')
+    expect(flat).not.toContain('5.7')
+  })
+
   it('holds every signed coordinate, the sign-off hash and the caution', async () => {
     const pdf = await buildPdf(utm)
     expect(pdf.subarray(0, 5).toString()).toBe('%PDF-')
