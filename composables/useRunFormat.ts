@@ -3,7 +3,7 @@
 // pass / watch / fail rating of an observation's tests.
 // Relative imports (not ~~) so the unit tests can load this module without Nuxt.
 import { METRES_PER } from '../server/engine/io/units'
-import { formatPrecision, precisionScale, type PrecisionUnit } from '../shared/precision'
+import { formatPrecision, precisionScale, type PrecisionUnit } from '~~/shared/precision'
 import type { ObservationResult, StationResult } from '../server/engine/types'
 import { useProject } from './useProject'
 

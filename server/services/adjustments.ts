@@ -57,7 +57,7 @@ export async function queueRun(ctx: FirmContext, project: Project, body: unknown
       await opts.before?.(tx)
       // The project row lock serialises number allocation between concurrent requests.
       await tx.execute(sql`select id from ${projects} where ${projects.firmId} = ${ctx.firm.id} and ${projects.id} = ${project.id} for update`)
-      const inputs = await loadRunInputs(ctx.firm.id, project.id, parsed.data, tx)
+      const inputs = await loadRunInputs(ctx.firm.id, project.id, parsed.data, tx, true)
       const [{ next }] = await tx.select({ next: sql<number>`coalesce(max(${adjustments.number}), 0)::int + 1` }).from(adjustments)
         .where(and(eq(adjustments.firmId, ctx.firm.id), eq(adjustments.projectId, project.id))) as [{ next: number }]
       const [row] = await tx.insert(adjustments).values({

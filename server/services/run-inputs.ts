@@ -46,7 +46,12 @@ const profileOf = (p: typeof instrumentProfiles.$inferSelect): InstrumentProfile
   centeringInstrumentMm: p.centeringInstrumentMm, centeringTargetMm: p.centeringTargetMm, levellingMmPerSqrtKm: p.levellingMmPerSqrtKm,
 })
 
-export async function loadRunInputs(firmId: number, projectId: number, settings: RunSettings, db: Db | Tx = useDb()): Promise<RunInputs> {
+/**
+ * `forNewRun`: the inputs of a run being queued now. Only then is a retired
+ * tolerance profile refused; a run queued before the profile was retired, and
+ * the sign-off's check that a run's inputs are unchanged, still load it.
+ */
+export async function loadRunInputs(firmId: number, projectId: number, settings: RunSettings, db: Db | Tx = useDb(), forNewRun = false): Promise<RunInputs> {
   const [project] = await db.select().from(projects).where(and(eq(projects.firmId, firmId), eq(projects.id, projectId))).limit(1)
   if (!project) throw new RunInputError('The project no longer exists')
 
@@ -66,6 +71,12 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
   if (toleranceProfileId !== null) {
     const [t] = await db.select().from(toleranceProfiles).where(and(eq(toleranceProfiles.firmId, firmId), eq(toleranceProfiles.id, toleranceProfileId))).limit(1)
     if (!t) throw new RunInputError(`tolerance profile ${toleranceProfileId} does not exist in this firm`, 'toleranceProfileId')
+    // retired standards stay on the runs that used them, but no new run checks against one
+    if (t.retiredAt && forNewRun) {
+      throw new RunInputError(settings.toleranceProfileId === undefined
+        ? `the project's tolerance profile '${t.name}' is retired: choose another for this run, or a current one in the project settings`
+        : `tolerance profile '${t.name}' is retired: choose a current one`, 'toleranceProfileId')
+    }
     tolerance = { id: t.id, name: t.name, kind: t.kind, params: t.params, source: t.source }
   }
 

@@ -10,9 +10,9 @@
 //   Standards for Geodetic Networks), compared with a threshold the firm
 //   chooses.
 // - custom: a firm's own a mm + b ppm rule, evaluated like relative_ppm.
-import { and, asc, eq } from 'drizzle-orm'
-import type { ToleranceCreate } from '../../shared/schemas/tolerance'
-import { toleranceProfiles } from '../db/schema'
+import { and, asc, eq, sql } from 'drizzle-orm'
+import type { ToleranceCreate, ToleranceUpdate } from '../../shared/schemas/tolerance'
+import { projects, toleranceProfiles } from '../db/schema'
 import { useDb } from '../db/client'
 import type { FirmContext } from '../utils/guard'
 import { DomainError } from '../utils/errors'
@@ -68,6 +68,11 @@ export interface ToleranceProfileDto {
   source: string
   /** one line a person can read: "20 mm + 50 ppm at 95 %" */
   rule: string
+  /** retired: kept on past runs, not offered for new runs or projects */
+  retired: boolean
+  retiredAt: string | null
+  /** projects of the firm that check against it (list only) */
+  projectCount?: number
 }
 
 export function describeRule(p: Pick<ToleranceProfileRow, 'kind' | 'params'>): string {
@@ -77,12 +82,18 @@ export function describeRule(p: Pick<ToleranceProfileRow, 'kind' | 'params'>): s
 
 export const toleranceDto = (p: ToleranceProfileRow): ToleranceProfileDto => ({
   id: p.id, name: p.name, kind: p.kind, params: p.params, source: p.source, rule: describeRule(p),
+  retired: p.retiredAt !== null, retiredAt: p.retiredAt?.toISOString() ?? null,
 })
 
+/** Current profiles first, then retired ones, each by name; with how many projects use each. */
 export async function listToleranceProfiles(ctx: FirmContext): Promise<ToleranceProfileDto[]> {
-  const rows = await useDb().select().from(toleranceProfiles)
-    .where(eq(toleranceProfiles.firmId, ctx.firm.id)).orderBy(asc(toleranceProfiles.name))
-  return rows.map(toleranceDto)
+  const rows = await useDb().select({
+    profile: toleranceProfiles,
+    projectCount: sql<number>`(select count(*)::int from ${projects} p where p.firm_id = ${toleranceProfiles.firmId} and p.tolerance_profile_id = ${toleranceProfiles.id})`,
+  }).from(toleranceProfiles)
+    .where(eq(toleranceProfiles.firmId, ctx.firm.id))
+    .orderBy(sql`${toleranceProfiles.retiredAt} is not null`, asc(toleranceProfiles.name))
+  return rows.map((r) => ({ ...toleranceDto(r.profile), projectCount: r.projectCount }))
 }
 
 export async function getToleranceProfile(firmId: number, id: number | null): Promise<ToleranceProfileRow | null> {
@@ -103,5 +114,42 @@ export async function createToleranceProfile(ctx: FirmContext, body: ToleranceCr
     if (!row) throw new DomainError('conflict', `A tolerance profile named '${body.name}' already exists`, [{ field: 'name', message: 'name: is already used' }])
     await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'tolerance.create', entityType: 'tolerance_profile', entityId: row.id, after: toleranceDto(row) })
     return toleranceDto(row)
+  })
+}
+
+/**
+ * Edits a profile's name, numbers or source, or retires / restores it. Past runs
+ * and sign-offs keep the rule they were checked against (they store a copy), so
+ * an edit changes only what later runs check.
+ */
+export async function updateToleranceProfile(ctx: FirmContext, id: number, body: ToleranceUpdate): Promise<ToleranceProfileDto> {
+  return useDb().transaction(async (tx) => {
+    const [before] = await tx.select().from(toleranceProfiles)
+      .where(and(eq(toleranceProfiles.firmId, ctx.firm.id), eq(toleranceProfiles.id, id))).for('update').limit(1)
+    if (!before) throw new DomainError('not_found', 'No such tolerance profile in this firm')
+    // the numbers a profile has depend on its kind
+    const wrong = before.kind === 'fgdc_95'
+      ? (['mm', 'ppm'] as const).filter((k) => body[k] !== undefined)
+      : (['thresholdMm'] as const).filter((k) => body[k] !== undefined)
+    if (wrong.length) {
+      throw new DomainError('invalid', 'Some fields are not valid', wrong.map((k) => ({
+        field: k, message: `${k}: does not apply to a ${before.kind === 'fgdc_95' ? 'horizontal accuracy (FGDC 95 %)' : 'relative precision (mm + ppm)'} profile`,
+      })))
+    }
+    const params: Record<string, number> = before.kind === 'fgdc_95'
+      ? { thresholdMm: body.thresholdMm ?? before.params.thresholdMm ?? 0 }
+      : { mm: body.mm ?? before.params.mm ?? 0, ppm: body.ppm ?? before.params.ppm ?? 0, confidence: before.params.confidence ?? 0.95 }
+    const retiredAt = body.retired === undefined ? before.retiredAt : body.retired ? (before.retiredAt ?? new Date()) : null
+    if (body.name !== undefined && body.name !== before.name) {
+      const [clash] = await tx.select({ id: toleranceProfiles.id }).from(toleranceProfiles)
+        .where(and(eq(toleranceProfiles.firmId, ctx.firm.id), eq(toleranceProfiles.name, body.name))).limit(1)
+      if (clash) throw new DomainError('conflict', `A tolerance profile named '${body.name}' already exists`, [{ field: 'name', message: 'name: is already used' }])
+    }
+    const [row] = await tx.update(toleranceProfiles)
+      .set({ name: body.name ?? before.name, source: body.source ?? before.source, params, retiredAt })
+      .where(and(eq(toleranceProfiles.firmId, ctx.firm.id), eq(toleranceProfiles.id, id))).returning()
+    const action = body.retired === true && !before.retiredAt ? 'tolerance.retire' : body.retired === false && before.retiredAt ? 'tolerance.restore' : 'tolerance.update'
+    await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action, entityType: 'tolerance_profile', entityId: id, before: toleranceDto(before), after: toleranceDto(row!) })
+    return toleranceDto(row!)
   })
 }

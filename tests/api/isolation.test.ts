@@ -124,6 +124,7 @@ export const ROUTES: RouteRow[] = [
     method: 'POST', path: '/api/firms/:firm/tolerance-profiles',
     body: () => ({ kind: 'custom', name: `${MARK} rule`, mm: 10, ppm: 10, source: 'invented rule for tests' }),
   },
+  { method: 'PATCH', path: '/api/firms/:firm/tolerance-profiles/:profile', body: () => ({ source: MARK }) },
 ]
 
 /** Ids that are relative to their parent (run numbers) or not ids at all (formats) are never swapped alone. */

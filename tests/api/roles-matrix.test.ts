@@ -13,7 +13,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
-import { crews, projectAccess, projectCrews, stations, users } from '../../server/db/schema'
+import { crews, projectAccess, projectCrews, stations, toleranceProfiles, users } from '../../server/db/schema'
 import type { Role } from '../../shared/roles'
 import { ROLES } from '../../shared/roles'
 import { demoPassword } from '../support/env'
@@ -85,6 +85,10 @@ async function freshStation(projectId: number) {
   const [s] = await useDb().insert(stations).values({ firmId: fid(), projectId, name: `MX${stamp()}`.slice(0, 40), kind: 'new' }).returning()
   return s!.id
 }
+async function freshTolerance() {
+  const [t] = await useDb().insert(toleranceProfiles).values({ firmId: signed.firmId, name: `Matrix rule ${stamp()}`, kind: 'custom', params: { mm: 10, ppm: 10, confidence: 0.95 }, source: 'invented rule for tests' }).returning()
+  return t!.id
+}
 async function freshInstrument() {
   const r = await who.owner.post(`${F}/instruments`, {
     name: `Matrix instrument ${stamp()}`, distanceMm: 1, distancePpm: 1, directionArcsec: 1, zenithArcsec: 1,
@@ -113,6 +117,7 @@ const ROWS: Row[] = [
   { route: 'PATCH projects/:project/stations/:station', expect: chiefs(200), target: async () => ({ path: `${P(data.projectId)}/stations/${await freshStation(data.projectId)}`, body: { description: 'matrix edit' } }) },
   { route: 'DELETE projects/:project/stations/:station', expect: chiefs(204), target: async () => ({ path: `${P(data.projectId)}/stations/${await freshStation(data.projectId)}` }) },
   { route: 'POST tolerance-profiles', expect: chiefs(201), target: async () => ({ path: `${F}/tolerance-profiles`, body: { kind: 'custom', name: `Matrix rule ${stamp()}`, mm: 10, ppm: 10, source: 'invented rule for tests' } }) },
+  { route: 'PATCH tolerance-profiles/:profile', expect: chiefs(200), target: async () => ({ path: `${F}/tolerance-profiles/${await freshTolerance()}`, body: { retired: true } }) },
   { route: 'POST crews', expect: chiefs(201), target: async () => ({ path: `${F}/crews`, body: { name: `Matrix crew ${stamp()}` } }) },
   { route: 'PATCH crews/:crew', expect: chiefs(200), target: async () => ({ path: `${F}/crews/${await freshCrew()}`, body: { name: `Matrix crew renamed ${stamp()}` } }) },
   { route: 'DELETE crews/:crew', expect: chiefs(204), target: async () => ({ path: `${F}/crews/${await freshCrew()}` }) },

@@ -75,7 +75,7 @@ export async function firmFixture(firm: string, firmId: number, chief: Client, s
     ids: {
       project: fx.projectId, number: run.number, set: fx.setId, observation: obs!.id, station: station!.id, crew: crew.id,
       instrument: instrument.id, member: spare.memberId, invitation: invitation.id, release: release.id, format: 'csv',
-      signoff: signoff.id, tolerance: tol.id, memberUser: spare.userId,
+      signoff: signoff.id, tolerance: tol.id, profile: tol.id, memberUser: spare.userId,
     },
     own: {
       projects: [fx.projectId], crews: [crew.id], instrument_profiles: [instrument.id], invitations: [invitation.id],

@@ -8,7 +8,7 @@ import { fgdcCircular95FromAxes, fgdcHorizontal95, standardEllipseAxes } from '.
 import type { ToleranceProfileRow } from '../../server/services/tolerance'
 
 const profile = (kind: ToleranceProfileRow['kind'], params: Record<string, number>): ToleranceProfileRow => ({
-  id: 1, firmId: 1, name: `test ${kind}`, kind, params, source: 'test', createdAt: new Date(), updatedAt: new Date(),
+  id: 1, firmId: 1, name: `test ${kind}`, kind, params, source: 'test', retiredAt: null, createdAt: new Date(), updatedAt: new Date(),
 })
 
 describe('FGDC-STD-007.2-1998 horizontal accuracy at 95 % (circular)', () => {
