@@ -13,6 +13,7 @@ import type { Tx } from '../db/client'
 import { chunked, copyBool, copyInto, copyNumber, copyStat, copyText } from '../db/copy'
 import type { Adjustment } from '../db/schema'
 import { METRES_PER } from '../engine/io/units'
+import { precisionScale, type PrecisionUnit } from '../../shared/precision'
 import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary, NetworkSummary, ObservationResult, RelativeResult, StationResult } from '../engine/types'
 import { describeTolerance, type ToleranceSpec } from './accuracy'
 import { safeCellSql } from './csv'
@@ -385,22 +386,26 @@ async function countShiftRows(firmId: number, a: number, b: number): Promise<num
  * response behind the comment lines. Only numbers from the database are put
  * into the COPY text (COPY takes no bind parameters).
  */
-export async function csvStream(run: Adjustment, project: { name: string; units: 'm' | 'ft' | 'usft' }, what: 'coordinates' | 'residuals'): Promise<Readable> {
+export async function csvStream(run: Adjustment, project: { name: string; units: 'm' | 'ft' | 'usft'; precisionUnit?: PrecisionUnit }, what: 'coordinates' | 'residuals'): Promise<Readable> {
   const firmId = Number(run.firmId)
   const runId = Number(run.id)
   const u = project.units
   const k = Number(METRES_PER[u])
   const fixed = (col: string, d: number, scale = `/ ${k}`) => `round((${col} ${scale})::numeric, ${d})::text`
+  // precisions by the project's one rule (shared/precision.ts), two decimals more than on screen
+  const ps = precisionScale(u, project.precisionUnit)
+  const p = ps.key
+  const prec = (col: string) => fixed(col, ps.decimals + 2, `* ${Number(ps.perMetre)}`)
   let query: string
   let header: string
   if (what === 'coordinates') {
     const conf = Number((run.settings as { confidence?: number }).confidence ?? 0.95)
     const pct = Math.round(conf * 1000) / 10
-    header = ['station', 'kind', 'held', `east_${u}`, `north_${u}`, `height_${u}`, `sd_east_${u}`, `sd_north_${u}`, `sd_height_${u}`,
-      `ellipse_semi_major_1sigma_${u}`, `ellipse_semi_minor_1sigma_${u}`, 'ellipse_azimuth_deg', `ellipse_semi_major_${pct}pct_${u}`, `ellipse_semi_minor_${pct}pct_${u}`].join(',')
+    header = ['station', 'kind', 'held', `east_${u}`, `north_${u}`, `height_${u}`, `sd_east_${p}`, `sd_north_${p}`, `sd_height_${p}`,
+      `ellipse_semi_major_1sigma_${p}`, `ellipse_semi_minor_1sigma_${p}`, 'ellipse_azimuth_deg', `ellipse_semi_major_${pct}pct_${p}`, `ellipse_semi_minor_${pct}pct_${p}`].join(',')
     query = `select ${safeCellSql('name')}, kind, case when fixed then 'fixed' else '' end, ${fixed('east', 4)}, ${fixed('north', 4)}, ${fixed('height', 4)},
-      ${fixed('sd_east', 5)}, ${fixed('sd_north', 5)}, ${fixed('sd_height', 5)}, ${fixed('semi_major', 5)}, ${fixed('semi_minor', 5)},
-      case when semi_major is null then null else round(azimuth_deg::numeric, 2)::text end, ${fixed('semi_major95', 5)}, ${fixed('semi_minor95', 5)}
+      ${prec('sd_east')}, ${prec('sd_north')}, ${prec('sd_height')}, ${prec('semi_major')}, ${prec('semi_minor')},
+      case when semi_major is null then null else round(azimuth_deg::numeric, 2)::text end, ${prec('semi_major95')}, ${prec('semi_minor95')}
       from adjusted_stations where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
   } else {
     header = 'line,kind,at,from,to,residual,residual_unit,redundancy,w,tau,mdb,flagged,weak,excluded'
@@ -411,6 +416,7 @@ export async function csvStream(run: Adjustment, project: { name: string; units:
       from observation_results where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
   }
   const head = [`# Tiepoint run ${run.number} of project "${project.name.replace(/[\r\n]+/g, ' ').replace(/"/g, "'")}"; input SHA-256 ${run.inputHash}`,
+    ...(what === 'coordinates' ? [`# coordinates in ${u}; precisions (sd_*, ellipse_*) in ${ps.words}`] : []),
     '# Coordinates must be checked against local regulations and licensed practice before use.', header].join('\n') + '\n'
   const client = await usePool().connect()
   const out = new PassThrough()

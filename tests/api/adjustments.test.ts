@@ -130,6 +130,9 @@ describe('a run on the demo network', () => {
     expect(text).toContain('licensed practice')
     const cp1 = run.stations.find((s: any) => s.name === 'CP1')
     expect(text).toContain(`CP1,control,fixed,${cp1.east.toFixed(4)},${cp1.north.toFixed(4)}`)
+    // a metre project: precisions in mm, and the file says so
+    expect(text).toContain('precisions (sd_*, ellipse_*) in millimetres (mm)')
+    expect(text.split('\n').find((l) => l.startsWith('station,'))).toContain(',sd_east_mm,')
     const r = await chief.raw(`${runPath(1)}/export/residuals.csv`)
     const rtext = await r.text()
     expect(rtext.split('\n').filter((l) => l && !l.startsWith('#')).length).toBe(run.totals.observations + 1)

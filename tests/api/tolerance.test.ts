@@ -88,6 +88,17 @@ describe('editing and retiring tolerance profiles', () => {
     expect(view.body.status).toBe('done')
     expect(view.body.settings.toleranceProfileId).toBe(t.body.id)
     expect(view.body.summary.tolerance.name).toBe(t.body.name)
+
+    // the same run's CSV in a feet project set to hundredths: the precision columns follow the setting
+    expect((await chief.patch(base, { units: 'ft', precisionUnit: 'hundredth_ft' })).status).toBe(200)
+    const csv = await (await chief.raw(`${base}/adjustments/${run.body.number}/export/coordinates.csv`)).text()
+    expect(csv).toContain('precisions (sd_*, ellipse_*) in hundredths of an international foot (0.01 ft)')
+    const lines = csv.split('\n').filter((l) => l && !l.startsWith('#'))
+    const cols = lines[0]!.split(',')
+    const st = view.body.stations.find((s: { fixed: boolean; sdEast: number | null }) => !s.fixed && s.sdEast !== null)
+    const row = lines.find((l) => l.startsWith(`${st.name},`))!.split(',')
+    // international foot = 0.3048 m exactly, so one hundredth is 0.003048 m
+    expect(Number(row[cols.indexOf('sd_east_cft')])).toBeCloseTo(st.sdEast / 0.003048, 3)
     // the project keeps it (saving other settings does not fail) ...
     expect((await chief.patch(base, { toleranceProfileId: t.body.id, description: 'still here' })).status).toBe(200)
     // ... but a new run checked against it is refused, naming the field

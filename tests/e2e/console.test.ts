@@ -32,10 +32,10 @@ function watchConsole(page: Page): string[] {
 const firm = `/f/${DEMO.firm}`
 const projectTabs = () => [project, `${project}/stations`, `${project}/observations`, `${project}/runs`, `${project}/runs/1`, `${project}/signoff`, `${project}/releases`]
 const cases: [string, string, () => string[]][] = [
-  ['owner', DEMO.owner, () => [firm, `${firm}/format`, `${firm}/members`, `${firm}/instruments`, `${firm}/audit`, `${firm}/mailbox`, `${firm}/projects/new`, '/profile', ...projectTabs()]],
-  ['party chief', DEMO.chief, () => [firm, `${firm}/members`, `${firm}/instruments`, `${firm}/projects/new`, '/profile', ...projectTabs()]],
-  ['field crew', DEMO.crew, () => [firm, `${firm}/members`, `${firm}/instruments`, '/profile', ...projectTabs()]],
-  ['licensed surveyor', DEMO.surveyor, () => [firm, `${firm}/members`, `${firm}/instruments`, `${firm}/audit`, '/profile', ...projectTabs()]],
+  ['owner', DEMO.owner, () => [firm, `${firm}/format`, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, `${firm}/audit`, `${firm}/mailbox`, `${firm}/projects/new`, '/profile', ...projectTabs()]],
+  ['party chief', DEMO.chief, () => [firm, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, `${firm}/projects/new`, '/profile', ...projectTabs()]],
+  ['field crew', DEMO.crew, () => [firm, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, '/profile', ...projectTabs()]],
+  ['licensed surveyor', DEMO.surveyor, () => [firm, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, `${firm}/audit`, '/profile', ...projectTabs()]],
   ['client', DEMO.client, () => ['/client', firm, '/profile', `${project}/releases`]],
 ]
 

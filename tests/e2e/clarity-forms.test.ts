@@ -1,0 +1,153 @@
+// Practitioner forms in the browser: a party chief adds a tolerance profile on
+// the Tolerances page, sets it (and hundredths of a foot) in a feet project's
+// settings, starts a run that names the profile it is checked against, and
+// reads precisions in hundredths on the run report and the sign-off page; a
+// station is deleted on the Stations tab after a confirmation.
+// Foot: international foot = 0.3048 m exactly (Federal Register 24 FR 5348, 1959),
+// so a hundredth of a foot is 3.048 mm.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Browser, Page } from 'playwright-core'
+import { eq } from 'drizzle-orm'
+import { closeDb, useDb } from '../../server/db/client'
+import { projects, stations } from '../../server/db/schema'
+import { launch, newPage, shot, signIn } from '../support/browser'
+import { DEMO } from '../support/http'
+import { DEMO_CSV, projectWithNetwork } from '../api/adjustments-fixture'
+
+let browser: Browser
+let page: Page
+let base: string
+let api: string
+let projectId: number
+const tolName = `Culvert contract ${Date.now()}`
+const tolSource = 'Contract 2026-17 (invented), schedule B, clause 4.2'
+
+beforeAll(async () => {
+  const fx = await projectWithNetwork(DEMO.firm, 'Forms e2e feet', DEMO_CSV)
+  projectId = fx.projectId
+  // a feet project still showing mm: the setting is changed on screen below
+  await useDb().update(projects).set({ units: 'ft', precisionUnit: 'mm' }).where(eq(projects.id, fx.projectId))
+  base = `/f/${DEMO.firm}/projects/${fx.projectId}`
+  api = `/api/firms/${DEMO.firm}/projects/${fx.projectId}`
+  browser = await launch()
+  page = await newPage(browser)
+  await signIn(page, DEMO.chief)
+})
+afterAll(async () => {
+  await browser?.close()
+  await closeDb()
+})
+
+/** a length in metres as hundredths of an international foot, 2 decimals */
+const hundredths = (m: number) => (m / 0.003048).toFixed(2)
+
+describe('tolerance profile from page to run', () => {
+  it('adds a profile on the Tolerances page; a missing source is named beside its field', async () => {
+    await page.goto(`/f/${DEMO.firm}`)
+    await page.getByRole('link', { name: 'Tolerances' }).first().click()
+    await page.waitForURL(/\/tolerances$/)
+    await page.getByRole('button', { name: 'Add tolerance profile' }).click()
+    await page.getByLabel('Name').fill(tolName)
+    await page.getByLabel('Constant a').fill('8')
+    await page.getByLabel('Part per million b').fill('40')
+    await page.getByRole('button', { name: 'Save' }).click()
+    const form = page.getByTestId('tolerance-form')
+    await form.getByText('is required: say where the rule comes from').waitFor()
+    await page.getByLabel('Source').fill(tolSource)
+    await page.getByRole('button', { name: 'Save' }).click()
+    const row = page.locator(`[data-tolerance="${tolName}"]`)
+    await row.waitFor()
+    expect(await row.innerText()).toContain('relative precision at 95 % ≤ 8 mm + 40 ppm of the distance')
+    expect(await row.innerText()).toContain(tolSource)
+    await shot(page, 'clarity-tolerances')
+  })
+
+  it('assigns it and hundredths of a foot in the project settings', async () => {
+    await page.goto(base)
+    await page.getByRole('button', { name: 'Edit', exact: true }).click()
+    await page.getByLabel('Tolerance profile').selectOption({ label: tolName })
+    await page.getByLabel('Precisions').selectOption('hundredth_ft')
+    await page.getByRole('button', { name: 'Save' }).click()
+    await page.getByText('Saved.').waitFor()
+    expect(await page.getByTestId('project-tolerance').innerText()).toContain(tolName)
+    expect(await page.getByTestId('precision-unit').innerText()).toContain('hundredths of an international foot (0.01 ft)')
+    const [p] = await useDb().select().from(projects).where(eq(projects.id, projectId))
+    expect(p!.precisionUnit).toBe('hundredth_ft')
+  })
+
+  it('the new-run form names the project profile; the finished run names it too and shows hundredths', async () => {
+    await page.goto(`${base}/runs`)
+    const select = page.locator('#run-tolerance')
+    await select.waitFor()
+    expect(await select.locator('option:checked').innerText()).toBe(`Checked against ${tolName} (project setting)`)
+    expect(await page.getByTestId('run-tolerance-note').innerText()).toContain(`Source: ${tolSource}`)
+    await page.getByRole('button', { name: 'Start run' }).click()
+    await page.waitForURL(/\/runs\/\d+$/)
+    const number = page.url().split('/').pop()
+    const until = Date.now() + 90_000
+    let status = ''
+    while (Date.now() < until) {
+      status = (await (await page.request.get(`${api}/adjustments/${number}/status`)).json()).status
+      if (status === 'done' || status === 'failed') break
+      await page.waitForTimeout(500)
+    }
+    expect(status).toBe('done')
+    await page.reload()
+    await page.getByTestId('verdict').waitFor({ timeout: 30_000 })
+    expect(await page.locator('main').innerText()).toContain(`Against ${tolName}`)
+
+    const table = page.locator('[data-testid="station-table"]')
+    expect(await table.locator('thead').innerText()).toContain('0.01 ft')
+    const run = await (await page.request.get(`${api}/adjustments/${number}`)).json()
+    const st = run.stations.find((s: { sdEast: number | null; fixed: boolean }) => !s.fixed && s.sdEast !== null)
+    const cell = (await table.locator(`#station-${st.name} td`).nth(5).innerText()).trim()
+    expect(cell.split(' / ')[0]).toBe(hundredths(st.sdEast))
+    await shot(page, 'clarity-run-hundredths')
+  })
+
+  it('the sign-off page shows the same hundredths and says so', async () => {
+    await page.goto(`${base}/signoff`)
+    const units = page.getByTestId('signoff-units')
+    await units.waitFor({ timeout: 30_000 })
+    expect(await units.innerText()).toContain('in 0.01 ft')
+    const run = await (await page.request.get(`${api}/adjustments`)).json()
+    const full = await (await page.request.get(`${api}/adjustments/${run[0].number}`)).json()
+    const st = full.stations.find((s: { sdEast: number | null; fixed: boolean }) => !s.fixed && s.sdEast !== null)
+    const row = page.locator('[data-testid="signoff-stations"] tbody tr', { hasText: st.name }).first()
+    expect((await row.locator('td').nth(6).innerText()).trim()).toBe(hundredths(st.sdEast))
+    const narrow = await newPage(browser, 390, 800)
+    await signIn(narrow, DEMO.chief)
+    await narrow.goto(`${base}/signoff`)
+    await narrow.getByTestId('signoff-units').waitFor({ timeout: 30_000 })
+    await shot(narrow, 'clarity-signoff-390')
+    await narrow.context().close()
+  })
+})
+
+describe('deleting a station on screen', () => {
+  it('asks first, saying what depends on it, then deletes it', async () => {
+    const [firmRow] = await useDb().select({ firmId: projects.firmId }).from(projects).where(eq(projects.id, projectId))
+    await useDb().insert(stations).values({ firmId: firmRow!.firmId, projectId, name: 'SPARE9', kind: 'control', controlEast: 1000, controlNorth: 2000 })
+    await page.goto(`${base}/stations`)
+    const row = page.locator('[data-station="SPARE9"]')
+    await row.waitFor()
+    // a station observations use is refused before any question
+    await page.getByRole('button', { name: 'Delete CP1' }).click()
+    await page.getByText(/CP1 cannot be deleted: \d+ observations use it/).waitFor()
+
+    let asked = ''
+    page.once('dialog', async (d) => { asked = d.message(); await d.dismiss() })
+    await page.getByRole('button', { name: 'Delete SPARE9' }).click()
+    await expect.poll(() => asked).toContain('Delete station SPARE9?')
+    expect(asked).toContain('control coordinates')
+    expect(await row.count()).toBe(1)
+
+    page.once('dialog', (d) => d.accept())
+    await page.getByRole('button', { name: 'Delete SPARE9' }).click()
+    await page.getByText('Station SPARE9 was deleted.').waitFor()
+    await expect.poll(() => row.count()).toBe(0)
+    const left = await useDb().select().from(stations).where(eq(stations.name, 'SPARE9'))
+    expect(left.filter((s) => s.projectId === projectId)).toEqual([])
+    await shot(page, 'clarity-stations')
+  })
+})
