@@ -10,7 +10,7 @@ import type { Browser, Page } from 'playwright-core'
 import { eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
 import { projects, stations } from '../../server/db/schema'
-import { launch, newPage, shot, signIn } from '../support/browser'
+import { launch, newPage, SCREENSHOTS, shot, signIn } from '../support/browser'
 import { DEMO } from '../support/http'
 import { DEMO_CSV, projectWithNetwork } from '../api/adjustments-fixture'
 
@@ -73,6 +73,7 @@ describe('tolerance profile from page to run', () => {
     expect(await page.getByTestId('precision-unit').innerText()).toContain('hundredths of an international foot (0.01 ft)')
     const [p] = await useDb().select().from(projects).where(eq(projects.id, projectId))
     expect(p!.precisionUnit).toBe('hundredth_ft')
+    await shot(page, 'clarity-project-settings')
   })
 
   it('the new-run form names the project profile; the finished run names it too and shows hundredths', async () => {
@@ -81,6 +82,7 @@ describe('tolerance profile from page to run', () => {
     await select.waitFor()
     expect(await select.locator('option:checked').innerText()).toBe(`Checked against ${tolName} (project setting)`)
     expect(await page.getByTestId('run-tolerance-note').innerText()).toContain(`Source: ${tolSource}`)
+    await page.locator('section[aria-labelledby="new-run-heading"]').screenshot({ path: `${SCREENSHOTS}/clarity-new-run-form.png` })
     await page.getByRole('button', { name: 'Start run' }).click()
     await page.waitForURL(/\/runs\/\d+$/)
     const number = page.url().split('/').pop()
@@ -102,6 +104,7 @@ describe('tolerance profile from page to run', () => {
     const st = run.stations.find((s: { sdEast: number | null; fixed: boolean }) => !s.fixed && s.sdEast !== null)
     const cell = (await table.locator(`#station-${st.name} td`).nth(5).innerText()).trim()
     expect(cell.split(' / ')[0]).toBe(hundredths(st.sdEast))
+    await table.screenshot({ path: `${SCREENSHOTS}/clarity-run-station-table.png` })
     await shot(page, 'clarity-run-hundredths')
   })
 
@@ -120,6 +123,12 @@ describe('tolerance profile from page to run', () => {
     await narrow.goto(`${base}/signoff`)
     await narrow.getByTestId('signoff-units').waitFor({ timeout: 30_000 })
     await shot(narrow, 'clarity-signoff-390')
+    await narrow.goto(`/f/${DEMO.firm}/tolerances`)
+    await narrow.locator(`[data-tolerance="${tolName}"]`).waitFor()
+    await shot(narrow, 'clarity-tolerances-390')
+    await narrow.goto(`${base}/runs`)
+    await narrow.locator('#run-tolerance').waitFor()
+    await shot(narrow, 'clarity-runs-390')
     await narrow.context().close()
   })
 })
