@@ -115,6 +115,10 @@ export async function updateProject(ctx: FirmContext, project: Project, body: Pr
   return db.transaction(async (tx) => {
     const patch: Partial<typeof projects.$inferInsert> = { ...body }
     if (body.crs) patch.crsDefinition = body.crs === 'local' ? null : findCrs(body.crs)!.proj4
+    // a project that moves between metres and feet takes that unit's starting precision unit unless told
+    if (body.units && body.precisionUnit === undefined && (body.units === 'm') !== (project.units === 'm')) {
+      patch.precisionUnit = body.units === 'm' ? 'mm' : 'hundredth_ft'
+    }
     const [p] = await tx.update(projects).set(patch)
       .where(and(eq(projects.firmId, ctx.firm.id), eq(projects.id, project.id))).returning()
     await audit(tx, { firmId: ctx.firm.id, userId: ctx.user.id, action: 'project.update', entityType: 'project', entityId: project.id, projectId: project.id, before: projectDto(project), after: projectDto(p!) })

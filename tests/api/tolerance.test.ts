@@ -128,6 +128,10 @@ describe('the precision-unit setting of a project', () => {
     expect(ft.body.precisionUnit).toBe('hundredth_ft')
     const m = await chief.post(`${firm}/projects`, { name: `Metres ${Date.now()}`, crs: 'local', units: 'm' })
     expect(m.body.precisionUnit).toBe('mm')
+    // moving a metre project to feet takes the feet default; back to metres, mm again
+    expect((await chief.patch(`${firm}/projects/${m.body.id}`, { units: 'usft' })).body.precisionUnit).toBe('hundredth_ft')
+    expect((await chief.patch(`${firm}/projects/${m.body.id}`, { units: 'ft' })).body.precisionUnit).toBe('hundredth_ft')
+    expect((await chief.patch(`${firm}/projects/${m.body.id}`, { units: 'm' })).body.precisionUnit).toBe('mm')
     const p = await chief.patch(`${firm}/projects/${ft.body.id}`, { precisionUnit: 'mm' })
     expect(p.status).toBe(200)
     expect(p.body.precisionUnit).toBe('mm')

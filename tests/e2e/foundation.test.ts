@@ -14,11 +14,11 @@ const railOf = async (page: import('playwright-core').Page) =>
 
 describe('signing in as each role', () => {
   const cases: [string, string, string[]][] = [
-    [DEMO.owner, 'Owner', ['Projects', 'Members', 'Instruments', 'Audit', 'Mailbox', 'Profile']],
+    [DEMO.owner, 'Owner', ['Projects', 'Members', 'Instruments', 'Tolerances', 'Audit', 'Mailbox', 'Profile']],
     // Everyone has a development mailbox of their own (the test app runs without SMTP_URL, on loopback).
-    [DEMO.chief, 'Party chief', ['Projects', 'Members', 'Instruments', 'Mailbox', 'Profile']],
-    [DEMO.crew, 'Field crew', ['Projects', 'Members', 'Instruments', 'Mailbox', 'Profile']],
-    [DEMO.surveyor, 'Licensed surveyor', ['Projects', 'Members', 'Instruments', 'Audit', 'Mailbox', 'Profile']],
+    [DEMO.chief, 'Party chief', ['Projects', 'Members', 'Instruments', 'Tolerances', 'Mailbox', 'Profile']],
+    [DEMO.crew, 'Field crew', ['Projects', 'Members', 'Instruments', 'Tolerances', 'Mailbox', 'Profile']],
+    [DEMO.surveyor, 'Licensed surveyor', ['Projects', 'Members', 'Instruments', 'Tolerances', 'Audit', 'Mailbox', 'Profile']],
     [DEMO.client, 'Client', ['Projects', 'Mailbox', 'Profile']],
   ]
   for (const [email, roleLabel, rail] of cases) {
