@@ -19,6 +19,7 @@ import { fail, Stop } from './failure'
 import { LOCAL_RADIUS, LocalSurface, ProjectedSurface, type Surface } from './geodesy'
 import { GridProjection } from './grid'
 import { buildHeightProblem, type HeightRow } from './height'
+import { adjust3d } from './network3d'
 import { mergeControls, planeDatumCheck, stationLegCheck, validateObservations, validateProfile, validateSettings, type PlaneKindTag } from './input'
 import { aprioriSigma, isAngularKind } from './models/registry'
 import type { SigmaContext } from './models/types'
@@ -131,11 +132,13 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   const obsList = input.observations
   validateObservations(obsList)
   const vector = obsList.find((o) => o.kind === 'gnss_baseline' && !o.excluded)
-  if (vector) {
-    fail('input', `line ${vector.line}, column kind: GNSS baselines need the combined 3D adjustment, which this plane and height adjustment is not`)
+  if (vector && !input.projection) {
+    fail('input', `line ${vector.line}, column kind: GNSS baselines need a georeferenced project — a projected CRS and a geoid separation N — to be combined with grid coordinates and heights; a local plane cannot take them`)
   }
   const refraction = refractionOf(input)
   const { surface, proj, geoid, method } = surfaceOf(input)
+  // GNSS baselines: the whole run is adjusted in 3D (./network3d)
+  if (vector && proj) return adjust3d({ input, settings, timings, solveOptions, controlByName, proj, geoid, refraction, profile })
 
   const outputs: ObservationResult[] = obsList.map((o) => {
     const angular = isAngularKind(o.kind)
