@@ -334,3 +334,17 @@ describe('datum of the 3D network', () => {
     }
   })
 })
+
+describe('text report of a 3D run', () => {
+  it('says the deflection of the vertical is ignored and lists the vector tests worst first', async () => {
+    const { formatReport } = await import('../../../server/engine/index')
+    const rows = vectorRows(5, true)
+    const bad = rows.findIndex((o) => o.at === 'C' && o.to === 'E')
+    rows[bad] = { ...rows[bad], vector: { ...rows[bad].vector!, d: [rows[bad].vector!.d[0], rows[bad].vector!.d[1], rows[bad].vector!.d[2] + 0.04] } }
+    const text = formatReport(ok(adjustNetwork({ controls: controlsOf(net.stations, ['A']), observations: rows, projection })))
+    expect(text).toMatch(/deflection of the vertical is ignored/)
+    const section = text.split('GNSS vector tests')[1].split('\n')
+    // the first listed vector is the one with the planted error, flagged
+    expect(section[1]).toMatch(new RegExp(`^\\s+${rows[bad].line} C\\s+→ E\\s.*FLAG$`))
+  })
+})
