@@ -49,7 +49,7 @@
 
 import { approximateHeights, approximatePlane, type XY } from './approx'
 import { globalTestOf, type PhaseTimings } from './adjust'
-import { localMdbEffect, type CofactorMatrix } from './cofactor'
+import type { CofactorMatrix } from './cofactor'
 import { fail } from './failure'
 import { dot, fromEcef, geodeticPoint, normalSectionRadius, sub, toEnu, type Ellipsoid, type GeodeticPoint, type Vec3 } from './geodesy3d'
 import { ellipseFromCovariance, RAD_TO_DEG, RHO_ARCSEC, wrapPi } from './geometry'
@@ -893,12 +893,15 @@ function testVector(
   const { l, li } = row
   const cols = rows[0].cols
   const k = cols.length
+  // the vector's block of Q_xx, read once (its unknowns are the same on all three rows)
+  const qb = new Float64Array(k * k)
+  for (let p = 0; p < k; p++) for (let q = p; q < k; q++) qb[p * k + q] = qb[q * k + p] = qxx.get(cols[p], cols[q])
   // R̃ = I − Ã·Q·Ãᵀ (whitened Q_vv)
   const aq = rows.map((rw) => {
     const out = new Float64Array(k)
     for (let p = 0; p < k; p++) {
       let s = 0
-      for (let q = 0; q < k; q++) s += qxx.get(cols[p], cols[q]) * rw.coef[q]
+      for (let q = 0; q < k; q++) s += qb[p * k + q] * rw.coef[q]
       out[p] = s
     }
     return out
@@ -938,7 +941,15 @@ function testVector(
       // the bias e_c·MDB whitened: L⁻¹·e_c·MDB, as one combined row over the vector's unknowns
       const ac = new Array<number>(k).fill(0)
       for (let r = 0; r < 3; r++) for (let p = 0; p < k; p++) ac[p] += li[r * 3 + c] * rows[r].coef[p]
-      out.mdbEffect = localMdbEffect(qxx, cols, ac, mdb, net.stationOfCol)
+      // its effect Δx = Q_xx·ãᵀ·MDB at the vector's two stations (the larger shift)
+      const shift = new Map<number, number>()
+      for (let p = 0; p < k; p++) {
+        let dx = 0
+        for (let q = 0; q < k; q++) dx += qb[p * k + q] * ac[q]
+        const st = net.stationOfCol[cols[p]]
+        shift.set(st, (shift.get(st) ?? 0) + (dx * mdb) ** 2)
+      }
+      out.mdbEffect = Math.sqrt(Math.max(0, ...shift.values()))
     }
   }
   // the whole-vector test with the pseudo-inverse of R̃ (rank q)

@@ -99,7 +99,7 @@ function referenceSolve(rows: ObservationRecord[], held = 'A') {
   const Qvv = C.clone().sub(A.mmul(Qxx).mmul(A.transpose()))
   const vpv = v.transpose().mmul(P).mmul(v).get(0, 0)
   const r = n - u
-  return { unknown, col, x, v, Qvv, Qxx, P, vpv, r }
+  return { unknown, col, x, v, Qvv, Qxx, P, A, vpv, r }
 }
 
 function worstMiss(result: AdjustmentResult) {
@@ -183,6 +183,16 @@ describe('GNSS-only network, correlated vectors with noise, against a dense GLS 
         // Baarda's w of a correlated observation: (P·v)_i / √(P·Qvv·P)_ii (Teunissen 2000, Testing Theory)
         expect(out[c].w!).toBeCloseTo(Pv.get(rr, 0) / Math.sqrt(PQP.get(rr, rr)), 5)
         expect(out[c].sigma!).toBeCloseTo(o.vector!.sigma[c], 12)
+        // MDB = δ0/√(P·Qvv·P)_ii (δ0 = 4.13 for α0 = 0.001, β0 = 0.80, Baarda 1968), and its
+        // effect: the larger 3D shift Qxx·Aᵀ·P·e_i·MDB at the vector's two stations
+        const mdb = result.critical.delta0 / Math.sqrt(PQP.get(rr, rr))
+        expect(out[c].mdb! / mdb).toBeCloseTo(1, 6)
+        const shift = ref.Qxx.mmul(ref.A.transpose()).mmul(ref.P.getColumnVector(rr)).mul(mdb)
+        const at = [o.at, o.to].filter((s) => ref.col.has(s)).map((s) => {
+          const k = ref.col.get(s)!
+          return Math.hypot(shift.get(k, 0), shift.get(k + 1, 0), shift.get(k + 2, 0))
+        })
+        expect(out[c].mdbEffect! / Math.max(...at)).toBeCloseTo(1, 5)
         sum += out[c].redundancy!
       }
     })
