@@ -358,3 +358,35 @@ describe('text report of a 3D run', () => {
     expect(section[1]).toMatch(new RegExp(`^\\s+${rows[bad].line} C\\s+→ E\\s.*FLAG$`))
   })
 })
+
+describe('weighted control and a-priori scaling in 3D', () => {
+  const rows = vectorRows(11, true)
+
+  it('a second station weighted in E, N, H (σ 5 mm at its true values) gives three control rows; Σ r_i = r', () => {
+    const controls = [...controlsOf(net.stations, ['A']), { ...controlsOf(net.stations, ['C'])[0], line: 9, sdEast: 0.005, sdNorth: 0.005, sdHeight: 0.005 }]
+    const r = ok(adjustNetwork({ controls, observations: rows, projection }))
+    const ctl = r.observations.filter((o) => o.kind === 'control')
+    expect(ctl.map((o) => o.component)).toEqual(['east', 'north', 'height'])
+    // three more rows than the GLS reference with A held alone
+    expect(r.dof).toBe(referenceSolve(rows).r + 3)
+    const sum = r.observations.reduce((a, o) => a + (o.redundancy ?? 0), 0)
+    expect(sum).toBeCloseTo(r.dof, 6)
+    const c = r.stations.find((s) => s.name === 'C')!
+    // the weighted point moves by its vectors' noise only (a few mm), and its σ is below its control σ
+    const truthC = net.stations.find((s) => s.name === 'C')!
+    expect(Math.hypot(c.east! - truthC.east, c.north! - truthC.north)).toBeLessThan(0.01)
+    expect(c.sdEast!).toBeLessThan(0.005)
+  })
+
+  it("with scaling 'a-priori' the vector test is T against χ²(3) at α0 (16.27 for α0 = 0.001, NIST χ² table)", () => {
+    const r = ok(adjustNetwork({ controls: controlsOf(net.stations, ['A']), observations: rows, projection }, { scaling: 'a-priori' }))
+    const ref = referenceSolve(rows)
+    const t = r.observations.find((o) => o.line === rows[0].line)!.vectorTest!
+    expect(t.distribution).toBe('chi2')
+    expect(t.critical).toBeCloseTo(16.266, 2)
+    const vb = ref.v.subMatrix(0, 2, 0, 0)
+    const Qb = ref.Qvv.subMatrix(0, 2, 0, 2)
+    expect(t.statistic).toBeCloseTo(vb.transpose().mmul(inverse(Qb)).mmul(vb).get(0, 0), 5)
+    expect(r.network3d?.vectorTest).toBe('chi2')
+  })
+})
