@@ -571,7 +571,7 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
     sigma0,
     globalTest: globalTestOf(totals.vpv, totals.r, settings.alpha),
     stations: allNames.map((s) => stationOut.get(s)!),
-    observations: outputs,
+    observations: withVectorComponents(outputs, obsList),
     relative,
     health,
     counts: { n: totals.n, u: totals.u, r: totals.r },
@@ -583,6 +583,19 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   if (planeSummary) result.plane = planeSummary
   if (heightSummary) result.height = heightSummary
   return result
+}
+
+/**
+ * Every vector reaching the plane and height adjustment is excluded (used ones
+ * go to ./network3d); it is still reported as the 3D run reports vectors: three
+ * rows, components dx, dy, dz, so a vector looks the same in every run.
+ */
+function withVectorComponents(outputs: ObservationResult[], obsList: ObservationRecord[]): ObservationResult[] {
+  return outputs.flatMap((out, i) => {
+    const rec = i < obsList.length ? obsList[i] : null
+    if (!rec || rec.kind !== 'gnss_baseline' || !rec.vector) return [out]
+    return (['dx', 'dy', 'dz'] as const).map((component, c) => ({ ...out, component, observed: rec.vector!.d[c], valueUnit: 'm' as const, residualUnit: 'm' as const }))
+  })
 }
 
 /** A placed station's position for the rough convergence of approximate azimuths. */

@@ -390,3 +390,17 @@ describe('weighted control and a-priori scaling in 3D', () => {
     expect(r.network3d?.vectorTest).toBe('chi2')
   })
 })
+
+describe('a run whose vectors are all excluded', () => {
+  it('stays a plane and height adjustment and still reports each vector as three excluded rows dx, dy, dz', () => {
+    const terr = generate3d(net.stations, net.setups, { proj4: net.def, a: net.a, f: net.f, geoidSeparation: N, refractionK: K }).observations
+    const vec = { ...vectorRows(null, false)[0], excluded: true }
+    const r = ok(adjustNetwork({ controls: controlsOf(net.stations, ['A', 'C']), observations: [...terr, vec], projection, refraction: { k: K, sigmaK: 0.05 } }))
+    expect(r.network3d).toBeUndefined()
+    expect(r.plane).toBeDefined()
+    const rows = r.observations.filter((o) => o.line === vec.line)
+    expect(rows.map((o) => [o.component, o.observed, o.excluded, o.residual])).toEqual(
+      (['dx', 'dy', 'dz'] as const).map((c, i) => [c, vec.vector!.d[i], true, null]),
+    )
+  })
+})
