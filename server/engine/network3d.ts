@@ -206,23 +206,31 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
     else if (a && a.height !== undefined) hEll[k] = a.height + geoid
   })
   const placed = (k: number) => !Number.isNaN(lat[k])
-  const full = (k: number) => placed(k) && !Number.isNaN(hEll[k])
   const vectors = used.filter((x) => x.o.kind === 'gnss_baseline').map((x) => ({ at: index.get(x.o.at)!, to: index.get(x.o.to)!, d: x.o.vector!.d }))
   const spreadVectors = () => {
+    // a placed station without a height yet carries the vector with a stand-in
+    // height (the mean known one): its position then moves by about
+    // Δh·(length/R), metres at most, which the iteration removes
+    const known = Array.from(hEll).filter((h) => !Number.isNaN(h))
+    const standIn = known.length ? known.reduce((a, b) => a + b, 0) / known.length : geoid
     let any = false
     let progress = true
     while (progress) {
       progress = false
       for (const v of vectors) {
         for (const [from, to, sign] of [[v.at, v.to, 1], [v.to, v.at, -1]] as const) {
-          if (!full(from) || full(to)) continue
-          const x = geodeticPoint(ell, lat[from], lon[from], hEll[from]).x
+          if (!placed(from)) continue
+          const hKnown = !Number.isNaN(hEll[from])
+          const needPosition = !placed(to)
+          const needHeight = hKnown && Number.isNaN(hEll[to])
+          if (!needPosition && !needHeight) continue
+          const x = geodeticPoint(ell, lat[from], lon[from], hKnown ? hEll[from] : standIn).x
           const g = fromEcef(ell, [x[0] + sign * v.d[0], x[1] + sign * v.d[1], x[2] + sign * v.d[2]])
-          if (!placed(to)) {
+          if (needPosition) {
             lat[to] = g.lat
             lon[to] = g.lon
           }
-          if (Number.isNaN(hEll[to])) hEll[to] = g.h
+          if (needHeight) hEll[to] = g.h
           progress = any = true
         }
       }

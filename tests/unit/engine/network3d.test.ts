@@ -309,6 +309,14 @@ describe('datum of the 3D network', () => {
     expect(r.stations.find((s) => s.name === 'G')!.sdEast).toBe(0)
   })
 
+  it('E, N held at one station and H at another is a valid datum too (the approximations carry positions before heights)', () => {
+    const en = { ...controlsOf(net.stations, ['A'])[0], height: null }
+    const h = { ...controlsOf(net.stations, ['F'])[0], line: 2, east: null, north: null }
+    const r = ok(adjustNetwork({ controls: [en, h], observations: rows, projection }))
+    const w = worstMiss(r)
+    expect(Math.max(w.e, w.n, w.h)).toBeLessThan(1e-4)
+  })
+
   it('no held station fails naming the missing position datum', () => {
     const out = adjustNetwork({ controls: [], observations: rows, projection })
     expect(out.ok).toBe(false)
