@@ -412,3 +412,56 @@ describe('a run whose vectors are all excluded', () => {
     )
   })
 })
+
+describe('azimuths, angles and horizontal distances in 3D, noise-free, against the 3D truth (local-horizon azimuths and chords)', () => {
+  // one target height per set-up, so an angle's two targets share the row's ht
+  const setups = [
+    { at: 'E', hi: 1.62, orientation: 0.3, targets: ['A', 'B', 'C', 'D', 'G', 'F'].map((to) => ({ to, ht: 1.5 })) },
+    { at: 'G', hi: 1.48, orientation: 1.1, targets: ['A', 'B', 'C', 'E'].map((to) => ({ to, ht: 1.3 })) },
+  ]
+  const truth = generate3d(net.stations, setups, { proj4: net.def, a: net.a, f: net.f, geoidSeparation: N, refractionK: K })
+  const ARC = Math.PI / (180 * 3600)
+  const base = { from: null, set: null, lengthKm: null, note: '' }
+  const observations: ObservationRecord[] = []
+  let line = 700
+  for (const su of setups) {
+    const lines = truth.lines.filter((l) => l.at === su.at)
+    for (const l of lines) {
+      const ht = su.targets.find((t) => t.to === l.to)!.ht
+      observations.push({ ...base, line: line++, kind: 'azimuth', at: l.at, to: l.to, value: l.horizonAzimuth, sigma: 2 * ARC, hi: su.hi, ht })
+      // the horizontal part of the chord in the instrument's horizon: S·sin z (geometric)
+      observations.push({ ...base, line: line++, kind: 'horizontal_distance', at: l.at, to: l.to, value: l.slope * Math.sin(l.zenithGeometric), sigma: 0.002, hi: su.hi, ht })
+    }
+    for (let i = 1; i < lines.length; i++) {
+      const v = (lines[i].horizonAzimuth - lines[i - 1].horizonAzimuth + 4 * Math.PI) % (2 * Math.PI)
+      observations.push({ ...base, line: line++, kind: 'angle', at: su.at, from: lines[i - 1].to, to: lines[i].to, value: v, sigma: 3 * ARC, hi: su.hi, ht: su.targets[0].ht })
+    }
+  }
+  // the vectors give A, B, C, D, F; E and G come from the terrestrial rows alone (no vector reaches them)
+  const vectors = vectorRows(null, false).filter((o) => !['E', 'G'].includes(o.at) && !['E', 'G'].includes(o.to))
+  const result = ok(adjustNetwork({ controls: controlsOf(net.stations, ['A']), observations: [...vectors, ...observations], projection }))
+
+  it('places E and G at the truth within 1 mm in E and N and 2 mm in H', () => {
+    const w = worstMiss(result)
+    expect(w.e).toBeLessThan(0.001)
+    expect(w.n).toBeLessThan(0.001)
+    expect(w.h).toBeLessThan(0.002)
+  })
+
+  it('every azimuth, angle and horizontal distance fits: residuals below 0.05″ and 0.1 mm', () => {
+    const rows = result.observations.filter((o) => ['azimuth', 'angle', 'horizontal_distance'].includes(o.kind))
+    expect(rows.length).toBe(observations.length)
+    for (const o of rows) expect(Math.abs(o.residual!)).toBeLessThan(o.residualUnit === 'arcsec' ? 0.05 : 1e-4)
+  })
+
+  it('a wrong model fails: grid bearings in place of the geodetic azimuths (meridian convergence ≈ 1.3° here) fail the global test', () => {
+    const gridBearing = (a: string, b: string) => {
+      const p = net.stations.find((s) => s.name === a)!
+      const q = net.stations.find((s) => s.name === b)!
+      return (Math.atan2(q.east - p.east, q.north - p.north) + 2 * Math.PI) % (2 * Math.PI)
+    }
+    const wrong = observations.map((o) => (o.kind === 'azimuth' ? { ...o, value: gridBearing(o.at, o.to) } : o))
+    const r = ok(adjustNetwork({ controls: controlsOf(net.stations, ['A']), observations: [...vectors, ...wrong], projection }))
+    expect(r.globalTest.passed).toBe(false)
+  })
+})
