@@ -858,7 +858,8 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
     geoidSeparationM: geoid,
     ellipsoid: { a: ell.a, inverseFlattening: ell.es > 0 ? 1 / (1 - Math.sqrt(1 - ell.es)) : null },
     deflectionOfVerticalIgnored: true,
-    vectorTest: estimated && r > 3 ? 'F' : 'chi2',
+    // as the vector tests ran (F needs r > q; a vector short of redundancy falls back to χ²)
+    vectorTest: outputs.some((o) => o.vectorTest?.distribution === 'F') ? 'F' : 'chi2',
   }
   return {
     converged: true,
