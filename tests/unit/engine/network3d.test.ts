@@ -207,6 +207,14 @@ describe('GNSS-only network, correlated vectors with noise, against a dense GLS 
       const test = result.observations.find((x) => x.line === o.line)!.vectorTest!
       expect(test.distribution).toBe('F')
       expect(test.statistic).toBeCloseTo(T / 3 / ((ref.vpv - T) / (ref.r - 3)), 5)
+      // the residual in east, north, up at the vector's start (frame from proj4's latitude and longitude of the mark)
+      const st = net.stations.find((s) => s.name === o.at)!
+      const [lon, lat] = proj4(net.def).inverse([st.east, st.north]).map((d: number) => (d * Math.PI) / 180)
+      const e = [-Math.sin(lon), Math.cos(lon), 0]
+      const nn = [-Math.sin(lat) * Math.cos(lon), -Math.sin(lat) * Math.sin(lon), Math.cos(lat)]
+      const up = [Math.cos(lat) * Math.cos(lon), Math.cos(lat) * Math.sin(lon), Math.sin(lat)]
+      const enu = [e, nn, up].map((axis) => axis[0] * vb.get(0, 0) + axis[1] * vb.get(1, 0) + axis[2] * vb.get(2, 0))
+      for (let c = 0; c < 3; c++) expect(test.residualEnu[c]).toBeCloseTo(enu[c], 7)
     })
   })
 
