@@ -168,6 +168,47 @@ describe('GNSS-only network, correlated vectors with noise, against a dense GLS 
     }
   })
 
+  it('the same relative precision between connected stations (ΔE, ΔN covariance through both stations\' proj4 Jacobians)', () => {
+    const jac = (s: string) => {
+      const k = ref.col.get(s)!
+      const p = [ref.x.get(k, 0), ref.x.get(k + 1, 0), ref.x.get(k + 2, 0)]
+      const J = Matrix.zeros(2, 3)
+      for (let c = 0; c < 3; c++) {
+        const up = [...p]
+        const dn = [...p]
+        up[c] += 0.01
+        dn[c] -= 0.01
+        const a = gridOfEcef(up)
+        const b = gridOfEcef(dn)
+        for (let r = 0; r < 2; r++) J.set(r, c, (a[r] - b[r]) / 0.02)
+      }
+      return { J, k }
+    }
+    let checked = 0
+    for (const [a, b] of [['B', 'C'], ['E', 'G'], ['C', 'G']]) {
+      const A = jac(a)
+      const B = jac(b)
+      const q = (i: number, j: number) => ref.Qxx.subMatrix(i, i + 2, j, j + 2)
+      const S = B.J.mmul(q(B.k, B.k)).mmul(B.J.transpose())
+        .add(A.J.mmul(q(A.k, A.k)).mmul(A.J.transpose()))
+        .sub(A.J.mmul(q(A.k, B.k)).mmul(B.J.transpose()))
+        .sub(B.J.mmul(q(B.k, A.k)).mmul(A.J.transpose()))
+        .mul(sigma0Sq)
+      const rel = result.relative.find((r) => (r.from === a && r.to === b) || (r.from === b && r.to === a))!
+      const m = (S.get(0, 0) + S.get(1, 1)) / 2
+      const big = m + Math.hypot((S.get(0, 0) - S.get(1, 1)) / 2, S.get(0, 1))
+      expect(rel.semiMajor / Math.sqrt(big)).toBeCloseTo(1, 5)
+      const sa = net.stations.find((s) => s.name === a)!
+      const sb = net.stations.find((s) => s.name === b)!
+      const g = [sb.east - sa.east, sb.north - sa.north]
+      const d = Math.hypot(g[0], g[1])
+      const varD = (g[0] * g[0] * S.get(0, 0) + g[1] * g[1] * S.get(1, 1) + 2 * g[0] * g[1] * S.get(0, 1)) / (d * d)
+      expect(rel.sdDistance / Math.sqrt(varD)).toBeCloseTo(1, 4)
+      checked++
+    }
+    expect(checked).toBe(3)
+  })
+
   it('per component the same residual, redundancy number, w; the redundancy numbers sum to r', () => {
     const Pv = ref.P.mmul(ref.v)
     const PQP = ref.P.mmul(ref.Qvv).mmul(ref.P)
