@@ -118,8 +118,15 @@ class Acc {
 
 export function adjust3d(ctx: Network3dContext): AdjustmentResult {
   const { input, settings, timings, proj, geoid, refraction, controlByName } = ctx
-  if (settings.datum === 'free') {
-    fail('input', 'settings, field datum: a free network is not available for the combined 3D adjustment with GNSS baselines; hold one station in E, N and H')
+  const free = settings.datum === 'free'
+  if (free) {
+    // a translation leaves vectors and chords unchanged, but turns the ellipsoid
+    // normal that every other kind is measured against: only these two have the
+    // three translations as an exact datum defect
+    const other = input.observations.find((o) => !o.excluded && o.kind !== 'gnss_baseline' && o.kind !== 'slope_distance')
+    if (other) {
+      fail('input', `line ${other.line}, column kind: a free 3D network takes GNSS baselines and slope distances only — a ${other.kind.replace('_', ' ')} is measured against the ellipsoid normal, which a free translation turns; hold one station in E, N and H instead (datum 'as-given')`)
+    }
   }
   const ell: Ellipsoid = { a: proj.a, es: proj.es }
   const obsList = input.observations
@@ -169,12 +176,13 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
       fail('input', `line ${c.line}, column sigma: in the combined 3D adjustment east and north of control point ${c.station} are held or weighted together (give σ for both or for neither)`)
     }
   })
-  const heldHz = control.map((c) => !!c && c.east !== null && c.sdEast === null)
-  const heldUp = control.map((c) => !!c && c.height !== null && c.sdHeight === null)
-  if (!control.some((c) => c && c.east !== null)) {
+  // free network: control values only seed the approximations (as in the plane network)
+  const heldHz = control.map((c) => !free && !!c && c.east !== null && c.sdEast === null)
+  const heldUp = control.map((c) => !free && !!c && c.height !== null && c.sdHeight === null)
+  if (!free && !control.some((c) => c && c.east !== null)) {
     fail('singular', 'no position datum: the combined 3D adjustment needs at least one station held (or weighted) in east and north — GNSS vectors carry orientation and scale, not position')
   }
-  if (!control.some((c) => c && c.height !== null)) {
+  if (!free && !control.some((c) => c && c.height !== null)) {
     fail('singular', 'no height datum: hold (or weight) the height H of at least one station — GNSS vectors give height differences only')
   }
 
@@ -329,7 +337,7 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
   const assumed: string[] = []
   {
     const given = Array.from(hEll).filter((h) => !Number.isNaN(h))
-    const mean = given.reduce((s, h) => s + h, 0) / given.length
+    const mean = given.length ? given.reduce((s, h) => s + h, 0) / given.length : geoid
     names.forEach((s, k) => {
       if (Number.isNaN(hEll[k])) {
         hEll[k] = mean
@@ -481,7 +489,7 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
     return outputs.length - 1
   }
   control.forEach((c, k) => {
-    if (!c) return
+    if (!c || free) return
     if (c.east !== null && c.sdEast !== null) {
       rows.push({ type: 'coord', out: addCoordOut(c, 'east', c.east, c.sdEast), st: k, comp: 0, value: c.east, sigma: c.sdEast })
       rows.push({ type: 'coord', out: addCoordOut(c, 'north', c.north!, c.sdNorth!), st: k, comp: 1, value: c.north!, sigma: c.sdNorth! })
@@ -668,8 +676,28 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
   const blocks = new Int32Array(u)
   setStation.forEach((k, s) => (blocks[setCol[s]] = k))
   stationCols.forEach((sc, k) => sc.forEach((j) => j >= 0 && (blocks[j] = k)))
+  // free network: the three translations in X, Y, Z as each station's (x_e, x_n, x_u), weight 1 on every station
+  const nullSpace = free
+    ? (x: Float64Array) => {
+        const g = [new Float64Array(u), new Float64Array(u), new Float64Array(u)]
+        const weights = new Float64Array(u)
+        for (let k = 0; k < nS; k++) {
+          const p = stationAt(x, k)
+          const [ce, cn, cu] = stationCols[k]
+          const fe = ((p.nu + p.h) * p.cosLat) / scaleE[k]
+          const fn = (p.rho + p.h) / scaleN[k]
+          for (let t = 0; t < 3; t++) {
+            g[t][ce] = p.east[t] / fe
+            g[t][cn] = p.north[t] / fn
+            g[t][cu] = p.up[t]
+          }
+          weights[ce] = weights[cn] = weights[cu] = 1
+        }
+        return { g, weights }
+      }
+    : undefined
   const problem: NonlinearProblem = {
-    u, labels, tolerance, x0, linearize, blocks,
+    u, labels, tolerance, x0, linearize, blocks, nullSpace,
     cofactorGroups: () => {
       const own = (k: number) => [...stationCols[k]].filter((c) => c >= 0)
       const groups = names.map((_, k) => own(k))
@@ -700,7 +728,7 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
   const { x, qxx } = outcome
   const lin = outcome.rows
   const n = lin.length
-  const r = n - u
+  const r = n - (u - outcome.datumDefect)
   let vpv = 0
   for (const row of lin) vpv += (row.misclosure / row.sigma) ** 2
   const sigma0Sq = r > 0 ? vpv / r : null
@@ -751,14 +779,14 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
       east: c?.east ?? null,
       north: c?.north ?? null,
       height: c?.height ?? null,
-      sdEast: c && c.east !== null ? c.sdEast ?? 0 : null,
-      sdNorth: c && c.north !== null ? c.sdNorth ?? 0 : null,
-      sdHeight: c && c.height !== null ? c.sdHeight ?? 0 : null,
+      sdEast: c && c.east !== null && !free ? c.sdEast ?? 0 : null,
+      sdNorth: c && c.north !== null && !free ? c.sdNorth ?? 0 : null,
+      sdHeight: c && c.height !== null && !free ? c.sdHeight ?? 0 : null,
       ellipse: null,
       ellipse95: null,
-      fixed: !!c && c.sdEast === null && c.sdNorth === null && c.sdHeight === null,
+      fixed: !!c && !free && c.sdEast === null && c.sdNorth === null && c.sdHeight === null,
       kind: c ? 'control' : 'new',
-      controlled: { east: !!c && c.east !== null, north: !!c && c.north !== null, height: !!c && c.height !== null },
+      controlled: { east: !!c && c.east !== null && !free, north: !!c && c.north !== null && !free, height: !!c && c.height !== null && !free },
     })
   }
   for (const c of input.controls) addName(c.station)

@@ -12,7 +12,7 @@
 // The network is the invented mountain network of ./truth3d (UTM zone 33 N,
 // 150 km east of the central meridian, so meridian convergence ≈ 1.3°).
 import { describe, expect, it } from 'vitest'
-import { Matrix, inverse } from 'ml-matrix'
+import { Matrix, inverse, pseudoInverse } from 'ml-matrix'
 import proj4 from 'proj4'
 import { adjustNetwork, type AdjustmentResult, type ObservationRecord } from '../../../server/engine/index'
 import { controlsOf, ecefOfStations, generate3d, mountainNetwork } from './truth3d'
@@ -512,5 +512,81 @@ describe('azimuths, angles and horizontal distances in 3D, noise-free, against t
     const wrong = observations.map((o) => (o.kind === 'azimuth' ? { ...o, value: gridBearing(o.at, o.to) } : o))
     const r = ok(adjustNetwork({ controls: controlsOf(net.stations, ['A']), observations: [...vectors, ...wrong], projection }))
     expect(r.globalTest.passed).toBe(false)
+  })
+})
+
+describe('free 3D network (inner constraints on the three translations) against the minimum-norm solve in ECEF (ml-matrix pseudo-inverse)', () => {
+  const rows = vectorRows(11, true)
+  // approximations: the truth moved by a few centimetres, different per station
+  const approximate = net.stations.map((s, i) => ({ station: s.name, east: s.east + 0.03 * (i - 3), north: s.north - 0.02 * i, height: s.height + 0.05 * ((i % 3) - 1) }))
+  const result = ok(adjustNetwork({ controls: [], observations: rows, projection, approximate }, { datum: 'free' }))
+  const toCart = proj4(geoDef, cartDef)
+  const X0 = approximate.map((a) => {
+    const [lon, lat] = proj4(net.def).inverse([a.east, a.north])
+    return toCart.forward([lon, lat, a.height + N]) as number[]
+  })
+  const names = net.stations.map((s) => s.name)
+  const u = names.length * 3
+  const A = Matrix.zeros(rows.length * 3, u)
+  const l = Matrix.zeros(rows.length * 3, 1)
+  const C = Matrix.zeros(rows.length * 3, rows.length * 3)
+  rows.forEach((o, i) => {
+    const a = names.indexOf(o.at)
+    const b = names.indexOf(o.to)
+    const cov = covariance(o.vector!.sigma, o.vector!.correlation)
+    for (let c = 0; c < 3; c++) {
+      A.set(3 * i + c, 3 * b + c, 1)
+      A.set(3 * i + c, 3 * a + c, -1)
+      // observed − computed at the approximations
+      l.set(3 * i + c, 0, o.vector!.d[c] - (X0[b][c] - X0[a][c]))
+      for (let c2 = 0; c2 < 3; c2++) C.set(3 * i + c, 3 * i + c2, cov.get(c, c2))
+    }
+  })
+  // the minimum-norm correction: dx = (AᵀPA)⁺AᵀPl, its cofactor (AᵀPA)⁺ (ml-matrix pseudo-inverse)
+  const P = inverse(C)
+  const Nmat = A.transpose().mmul(P).mmul(A)
+  const Qs = pseudoInverse(Nmat)
+  const dx = Qs.mmul(A.transpose()).mmul(P).mmul(l)
+  const v = A.mmul(dx).sub(l)
+  const vpv = v.transpose().mmul(P).mmul(v).get(0, 0)
+  const r = rows.length * 3 - (u - 3)
+
+  it('datum defect 3: r = n − (u − 3), the same vᵀPv', () => {
+    expect(result.dof).toBe(r)
+    expect(result.globalTest.statistic).toBeCloseTo(vpv, 6)
+  })
+
+  it('the same coordinates within 0.05 mm (the adjusted centroid stays at the approximations\' centroid)', () => {
+    names.forEach((s, k) => {
+      const g = gridOfEcef([0, 1, 2].map((c) => X0[k][c] + dx.get(3 * k + c, 0)))
+      const st = result.stations.find((x) => x.name === s)!
+      expect(Math.abs(st.east! - g[0])).toBeLessThan(5e-5)
+      expect(Math.abs(st.north! - g[1])).toBeLessThan(5e-5)
+      expect(Math.abs(st.height! - g[2])).toBeLessThan(5e-5)
+    })
+  })
+
+  it('the same σH of every station from the minimum-norm cofactor matrix', () => {
+    const s0 = vpv / r
+    names.forEach((s, k) => {
+      const p = [0, 1, 2].map((c) => X0[k][c] + dx.get(3 * k + c, 0))
+      const J = Matrix.zeros(1, 3)
+      for (let c = 0; c < 3; c++) {
+        const up = [...p]
+        const dn = [...p]
+        up[c] += 0.01
+        dn[c] -= 0.01
+        J.set(0, c, (gridOfEcef(up)[2] - gridOfEcef(dn)[2]) / 0.02)
+      }
+      const q = J.mmul(Qs.subMatrix(3 * k, 3 * k + 2, 3 * k, 3 * k + 2)).mmul(J.transpose()).get(0, 0) * s0
+      expect(result.stations.find((x) => x.name === s)!.sdHeight! / Math.sqrt(q)).toBeCloseTo(1, 4)
+    })
+  })
+
+  it('a direction in a free 3D network is refused by line and column', () => {
+    const dir: ObservationRecord = { line: 77, kind: 'direction', at: 'A', to: 'B', from: null, value: 1, sigma: null, hi: null, ht: null, set: null, lengthKm: null, note: '' }
+    const out = adjustNetwork({ controls: [], observations: [...rows, dir], projection, approximate }, { datum: 'free' })
+    expect(out.ok).toBe(false)
+    if (!out.ok) expect(out.reason).toMatch(/^line 77, column kind: a free 3D network takes GNSS baselines and slope distances only/)
   })
 })
