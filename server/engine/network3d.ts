@@ -271,6 +271,7 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
     names.forEach((s, k) => placed(k) && known.set(s, gridOf(k)))
     // grid azimuth of the geodetic north at a placed station: turns observed azimuths to the grid roughly
     const first = names.findIndex((_, k) => placed(k))
+    if (first < 0) return false
     const p = proj.toGrid(lon[first], lat[first])
     const q = proj.toGrid(lon[first], lat[first] + 1e-6)
     const gridNorth = Math.atan2(q.e - p.e, q.n - p.n)

@@ -583,6 +583,15 @@ describe('free 3D network (inner constraints on the three translations) against 
     })
   })
 
+  it('with nothing to place it from (no control, no approximations) it fails naming the stations', () => {
+    const out = adjustNetwork({ controls: [], observations: rows, projection }, { datum: 'free' })
+    expect(out.ok).toBe(false)
+    if (!out.ok) {
+      expect(out.code).toBe('unplaceable')
+      expect(out.stations).toEqual(names)
+    }
+  })
+
   it('a direction in a free 3D network is refused by line and column', () => {
     const dir: ObservationRecord = { line: 77, kind: 'direction', at: 'A', to: 'B', from: null, value: 1, sigma: null, hi: null, ht: null, set: null, lengthKm: null, note: '' }
     const out = adjustNetwork({ controls: [], observations: [...rows, dir], projection, approximate }, { datum: 'free' })
