@@ -887,6 +887,7 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
     geoidSeparationM: geoid,
     ellipsoid: { a: ell.a, inverseFlattening: ell.es > 0 ? 1 / (1 - Math.sqrt(1 - ell.es)) : null },
     deflectionOfVerticalIgnored: true,
+    heightsAssumed: assumed.sort(),
     // as the vector tests ran (F needs r > q; a vector short of redundancy falls back to χ²)
     vectorTest: outputs.some((o) => o.vectorTest?.distribution === 'F') ? 'F' : 'chi2',
   }
@@ -903,11 +904,6 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
     counts: { n, u, r },
     critical: { w: wCrit, tau: tCrit, delta0: d0 },
     settings,
-    gridReduction: {
-      applied: false, method: null, radiusM: null, geoidSeparationM: geoid, projectHeightM: null, distances: 0, directions: 0,
-      maxArcToChordArcsec: null, meanCombinedFactor: null, minCombinedFactor: null, maxCombinedFactor: null,
-      meanScaleFactor: null, meanElevationFactor: null, heightsAssumed: assumed.sort(),
-    },
     refraction: { k: refraction.k, sigmaK: refraction.sigmaK, zeniths },
     network3d: summary,
   }

@@ -36,7 +36,7 @@ export function formatReport(result: AdjustmentResult): string {
         `${n3.ellipsoid.inverseFlattening ? `, 1/f = ${f(n3.ellipsoid.inverseFlattening, 9)}` : ''}; heights H = h − N with N = ${f(n3.geoidSeparationM, 3)} m.`,
     )
     out.push('  The deflection of the vertical is ignored: the ellipsoid normal stands for the plumb line (directions, zenith angles, levelling).')
-    if (gr?.heightsAssumed.length) out.push(`  No height known for ${gr.heightsAssumed.join(', ')} before the adjustment (mean known height used to start).`)
+    if (n3.heightsAssumed.length) out.push(`  No height known for ${n3.heightsAssumed.join(', ')} before the adjustment (mean known height used to start).`)
   } else if (gr?.applied && gr.projectHeightM === null) {
     out.push(
       `Grid and ground: ${gr.distances} distance${gr.distances === 1 ? '' : 's'} reduced to the grid; combined factor mean ${f(gr.meanCombinedFactor, 8)} ` +

@@ -294,7 +294,7 @@ export interface AdjustmentResult {
   counts: { n: number; u: number; r: number }
   critical: { w: number; tau: number | null; delta0: number }
   settings: AdjustSettings
-  /** ground-to-grid reduction of distances (always set by adjustNetwork) */
+  /** ground-to-grid reduction of distances (set by the plane and height adjustment; absent for a combined 3D run, which reduces nothing — see network3d) */
   gridReduction?: GridReductionSummary
   /** the coefficient of refraction used for zenith angles, its σ, and how many zeniths used it */
   refraction?: { k: number; sigmaK: number; zeniths: number }
@@ -315,6 +315,8 @@ export interface Network3dSummary extends NetworkSummary {
   ellipsoid: { a: number; inverseFlattening: number | null }
   /** the ellipsoid normal stands for the plumb line: no deflection of the vertical applied (for the report) */
   deflectionOfVerticalIgnored: true
+  /** stations with no height before the adjustment: the mean known height stood in as the start (the adjustment then determines it) */
+  heightsAssumed: string[]
   /** which distribution the vector tests used: χ²(q) with σ0 = 1, or F(q, r − q) with the variance factor estimated */
   vectorTest: 'chi2' | 'F'
 }

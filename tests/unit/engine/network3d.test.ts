@@ -599,3 +599,17 @@ describe('free 3D network (inner constraints on the three translations) against 
     if (!out.ok) expect(out.reason).toMatch(/^line 77, column kind: a free 3D network takes GNSS baselines and slope distances only/)
   })
 })
+
+describe('what a 3D run reports about its model', () => {
+  it('no grid reduction (nothing is reduced to a plane); the summary names N, the ellipsoid and the ignored deflection of the vertical', () => {
+    const r = ok(adjustNetwork({ controls: controlsOf(net.stations, ['A']), observations: vectorRows(null, false), projection }))
+    expect(r.gridReduction).toBeUndefined()
+    expect(r.plane).toBeUndefined()
+    expect(r.height).toBeUndefined()
+    // GRS80: a = 6378137 m, 1/f = 298.257222101 (Moritz 1980)
+    expect(r.network3d!.ellipsoid.a).toBe(6378137)
+    expect(r.network3d!.ellipsoid.inverseFlattening!).toBeCloseTo(298.257222101, 6)
+    expect(r.network3d!.geoidSeparationM).toBe(N)
+    expect(r.network3d!.heightsAssumed).toEqual([])
+  })
+})
