@@ -309,6 +309,17 @@ describe('combined network: vectors + a total-station traverse + a levelled line
     expect(sum).toBeCloseTo(result.dof, 6)
   })
 
+  it('the dense factorization (the oracle) gives the same stations, σ and redundancy numbers', () => {
+    const dense = ok(adjustNetwork({ controls: controlsOf(net.stations, ['A']), observations, projection, refraction: { k: K, sigmaK: 0.05 } }, {}, { factorization: 'dense' }))
+    for (const s of result.stations) {
+      const d = dense.stations.find((x) => x.name === s.name)!
+      expect(Math.abs(d.north! - s.north!)).toBeLessThan(1e-7)
+      expect(Math.abs(d.height! - s.height!)).toBeLessThan(1e-7)
+      expect(d.sdNorth!).toBeCloseTo(s.sdNorth!, 9)
+    }
+    dense.observations.forEach((o, i) => expect(o.redundancy ?? 0).toBeCloseTo(result.observations[i].redundancy ?? 0, 8))
+  })
+
   it('a wrong model fails: with one-way zeniths (reciprocal ones would cancel it), refraction left out (k = 0) moves heights by more than 2 mm', () => {
     const oneWay = terr.filter((o) => o.kind !== 'zenith' || o.at < o.to)
     const wrong = ok(adjustNetwork({ controls: controlsOf(net.stations, ['A']), observations: [...oneWay, vectors[0]], projection, refraction: { k: 0, sigmaK: 0.05 } }))
