@@ -80,19 +80,23 @@ function network(cols: number, rows: number, vectors: number, seed: number) {
 // warm-up (the JIT is not timed)
 adjustNetworkTimed(network(5, 4, 40, 2))
 const input = network(25, 20, 2000, 1)
-const cpu0 = process.cpuUsage()
-const t0 = performance.now()
-const { outcome, timings } = adjustNetworkTimed(input)
-const total = performance.now() - t0
-const cpu = process.cpuUsage(cpu0)
-if (!outcome.ok) {
-  console.log(`gnss bench: failed — ${outcome.code}: ${outcome.reason}`)
-  process.exitCode = 1
-} else {
+// twice: the first run after a small warm-up (the JIT still compiling much of the
+// 3D path), the second as a worker that has adjusted a network before
+for (const label of ['first run', 'second run']) {
+  const cpu0 = process.cpuUsage()
+  const t0 = performance.now()
+  const { outcome, timings } = adjustNetworkTimed(input)
+  const total = performance.now() - t0
+  const cpu = process.cpuUsage(cpu0)
+  if (!outcome.ok) {
+    console.log(`gnss bench: failed — ${outcome.code}: ${outcome.reason}`)
+    process.exitCode = 1
+    break
+  }
   const res = outcome.result
   const flagged = new Set(res.observations.filter((o) => o.vectorTest?.flagged).map((o) => o.line)).size
   console.log(
-    `gnss bench: 500 stations, ${input.observations.length} correlated vectors (n ${res.counts.n}, u ${res.counts.u}, r ${res.counts.r}), ${res.iterations} iteration(s), σ̂0 ${res.sigma0?.toFixed(3)}, ${flagged} vector(s) flagged`,
+    `gnss bench (${label}): 500 stations, ${input.observations.length} correlated vectors (n ${res.counts.n}, u ${res.counts.u}, r ${res.counts.r}), ${res.iterations} iteration(s), σ̂0 ${res.sigma0?.toFixed(3)}, ${flagged} vector(s) flagged`,
   )
   console.log(
     `  total ${total.toFixed(0)} ms (target < ${TARGET_MS} ms, ratio ${(total / TARGET_MS).toFixed(2)}); approximations ${timings.approximationMs.toFixed(0)} ms, ` +
