@@ -105,19 +105,64 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
     }
   }
   if (!input.noLocalFrame && coords.size >= 2 && input.stations.some((s) => !coords.has(s))) {
-    // stalled (e.g. no set sees a known point): build the network in a local frame
-    // from a seed and fit it onto the placed stations, then carry on from there
-    const local = approximatePlane({ ...input, known: new Map(), seedIfEmpty: true, noLocalFrame: true })
-    const common = [...coords.keys()].filter((s) => local.coords.has(s))
-    if (common.length >= 2) {
+    // stalled (e.g. no set sees a known point): build each connected piece of the
+    // network that still has unplaced stations in a local frame of its own, from a
+    // seed inside that piece, and fit it onto the piece's placed stations; then
+    // carry on from there. (One seed for the whole network reached one piece
+    // only, so a second piece with its own control stayed unplaced.)
+    let fitted = false
+    for (const piece of pieces(input.stations, neighbours)) {
+      if (piece.every((s) => coords.has(s))) continue
+      const placed = piece.filter((s) => coords.has(s))
+      if (placed.length < 2) continue
+      const local = approximatePlane({ ...restrictTo(input, piece), known: new Map(), seedIfEmpty: true, noLocalFrame: true })
+      const common = placed.filter((s) => local.coords.has(s))
+      if (common.length < 2) continue
       const t = fitRigid(common.map((s) => ({ x: local.coords.get(s)!, p: coords.get(s)! })))
       for (const [s, xy] of local.coords) if (!coords.has(s)) coords.set(s, t(xy))
-      return approximatePlane({ ...input, known: coords, noLocalFrame: true })
+      fitted = true
     }
+    if (fitted) return approximatePlane({ ...input, known: coords, noLocalFrame: true })
   }
   orientSets(input, coords, orientation)
   for (let s = 0; s < input.setCount; s++) if (Number.isNaN(orientation[s])) orientation[s] = 0
   return { coords, orientation, unplaced: input.stations.filter((s) => !coords.has(s)) }
+}
+
+/** Connected pieces of the station graph (stations joined by any observation), each in input order. */
+function pieces(stations: string[], neighbours: Map<string, string[]>): string[][] {
+  const pieceOf = new Map<string, number>()
+  const out: string[][] = []
+  for (const start of stations) {
+    if (pieceOf.has(start)) continue
+    const k = out.length
+    const queue = [start]
+    pieceOf.set(start, k)
+    for (let h = 0; h < queue.length; h++) {
+      for (const nb of neighbours.get(queue[h]) ?? []) {
+        if (!pieceOf.has(nb)) {
+          pieceOf.set(nb, k)
+          queue.push(nb)
+        }
+      }
+    }
+    out.push(queue)
+  }
+  const order = new Map(stations.map((s, i) => [s, i]))
+  return out.map((p) => p.sort((a, b) => (order.get(a) ?? 0) - (order.get(b) ?? 0)))
+}
+
+/** The observations among one piece's stations (set numbers kept, so orientations line up). */
+function restrictTo(input: PlaneApproxInput, piece: string[]): PlaneApproxInput {
+  const inside = new Set(piece)
+  return {
+    ...input,
+    stations: piece,
+    directions: input.directions.filter((d) => inside.has(d.at)),
+    angles: input.angles.filter((g) => inside.has(g.at)),
+    distances: input.distances.filter((d) => inside.has(d.at)),
+    azimuths: input.azimuths.filter((z) => inside.has(z.at)),
+  }
 }
 
 /** Least-squares rotation (or reflection, for mirror-ambiguous distance-only frames) + translation. */
