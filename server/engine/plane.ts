@@ -13,6 +13,7 @@ import { pushTerm, type Linearized, type PlanePoint } from './models/types'
 import { wrapPi } from './geometry'
 import type { XY } from './approx'
 import type { LinearRow, NonlinearProblem } from './lsq'
+import type { SparseRows } from './sparse/symbolic'
 import type { ControlRecord } from './types'
 
 /** Convergence: 0.01 mm on coordinates, and the angle that subtends 0.01 mm at 1 km. */
@@ -89,40 +90,86 @@ export function buildPlaneProblem(
       tolerance[cn] = TOL_LENGTH
     }
   }
-  const point = (x: Float64Array, k: number): PlanePoint => {
+  const point = (x: Float64Array, k: number, into?: PlanePoint): PlanePoint => {
     const [ce, cn] = stationCols[k]
-    return { e: ce >= 0 ? x[ce] : coords[k].e, n: cn >= 0 ? x[cn] : coords[k].n, ce, cn }
+    const e = ce >= 0 ? x[ce] : coords[k].e
+    const n = cn >= 0 ? x[cn] : coords[k].n
+    if (!into) return { e, n, ce, cn }
+    into.e = e
+    into.n = n
+    into.ce = ce
+    into.cn = cn
+    return into
+  }
+
+  // scratch points for the rows' stations: linearizing allocates nothing per row
+  const pa: PlanePoint = { e: 0, n: 0, ce: -1, cn: -1 }
+  const pb: PlanePoint = { e: 0, n: 0, ce: -1, cn: -1 }
+  const pc: PlanePoint = { e: 0, n: 0, ce: -1, cn: -1 }
+  /** row i at x into `lin` (its model's equation); returns the misclosure observed − computed */
+  const linearizeRow = (x: Float64Array, i: number, lin: Linearized): number => {
+    const { def, value } = rows[i]
+    let angular = true
+    switch (def.type) {
+      case 'direction':
+        directionEquation(point(x, def.at, pa), point(x, def.to, pb), x[setCol[def.set]], setCol[def.set], lin)
+        break
+      case 'azimuth':
+        azimuthEquation(point(x, def.at, pa), point(x, def.to, pb), lin)
+        break
+      case 'angle':
+        angleEquation(point(x, def.at, pa), point(x, def.from, pb), point(x, def.to, pc), lin)
+        break
+      case 'distance':
+        distanceEquation(point(x, def.at, pa), point(x, def.to, pb), lin)
+        angular = false
+        break
+      case 'coord': {
+        const p = point(x, def.st, pa)
+        lin.computed = def.comp === 0 ? p.e : p.n
+        lin.cols.length = 0
+        lin.coef.length = 0
+        pushTerm(lin, def.comp === 0 ? p.ce : p.cn, 1)
+        angular = false
+        break
+      }
+    }
+    return angular ? wrapPi(value - lin.computed) : value - lin.computed
   }
 
   const linearize = (x: Float64Array): LinearRow[] =>
-    rows.map(({ def, sigma, value }) => {
-      let lin: Linearized
-      let angular = true
-      switch (def.type) {
-        case 'direction':
-          lin = directionEquation(point(x, def.at), point(x, def.to), x[setCol[def.set]], setCol[def.set])
-          break
-        case 'azimuth':
-          lin = azimuthEquation(point(x, def.at), point(x, def.to))
-          break
-        case 'angle':
-          lin = angleEquation(point(x, def.at), point(x, def.from), point(x, def.to))
-          break
-        case 'distance':
-          lin = distanceEquation(point(x, def.at), point(x, def.to))
-          angular = false
-          break
-        case 'coord': {
-          const p = point(x, def.st)
-          lin = { computed: def.comp === 0 ? p.e : p.n, cols: [], coef: [] }
-          pushTerm(lin, def.comp === 0 ? p.ce : p.cn, 1)
-          angular = false
-          break
-        }
-      }
-      const misclosure = angular ? wrapPi(value - lin.computed) : value - lin.computed
+    rows.map(({ sigma }, i) => {
+      const lin: Linearized = { computed: 0, cols: [], coef: [] }
+      const misclosure = linearizeRow(x, i, lin)
       return { cols: lin.cols, coef: lin.coef, misclosure, sigma, computed: lin.computed }
     })
+
+  // the same rows whitened into typed arrays; the pattern is fixed by the stations' columns
+  const scratch: Linearized = { computed: 0, cols: [], coef: [] }
+  const linearizeWhitened = (x: Float64Array, reuse: SparseRows | null): SparseRows => {
+    const m = rows.length
+    let out = reuse
+    if (!out) {
+      const rowPtr = new Int32Array(m + 1)
+      const cols: number[] = []
+      for (let i = 0; i < m; i++) {
+        linearizeRow(x, i, scratch)
+        for (const c of scratch.cols) cols.push(c)
+        rowPtr[i + 1] = cols.length
+      }
+      out = { m, rowPtr, rowCol: Int32Array.from(cols), rowVal: new Float64Array(cols.length), rhs: new Float64Array(m) }
+    }
+    const { rowPtr, rowVal, rhs } = out
+    for (let i = 0; i < m; i++) {
+      const misclosure = linearizeRow(x, i, scratch)
+      const w = 1 / rows[i].sigma
+      const coef = scratch.coef
+      let o = rowPtr[i]
+      for (let c = 0; c < coef.length; c++, o++) rowVal[o] = coef[c] * w
+      rhs[i] = misclosure * w
+    }
+    return out
+  }
 
   const nullSpace = free
     ? (x: Float64Array) => {
@@ -172,7 +219,7 @@ export function buildPlaneProblem(
   stationCols.forEach((sc, k) => sc.forEach((j) => j >= 0 && (blocks[j] = k)))
 
   return {
-    problem: { u, labels, tolerance, x0, linearize, nullSpace, cofactorGroups, blocks } satisfies NonlinearProblem,
+    problem: { u, labels, tolerance, x0, linearize, linearizeWhitened, nullSpace, cofactorGroups, blocks } satisfies NonlinearProblem,
     rowOut: rows.map((r) => r.out),
     rowScale: rows.map((r) => r.outScale),
     stationCols,

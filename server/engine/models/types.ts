@@ -48,6 +48,18 @@ export interface ObservationModel<K extends string = string> {
   profileSigma(o: ObservationRecord, ctx: SigmaContext): number | null
 }
 
+/**
+ * `out` for an equation: the caller's reusable scratch row (emptied here), or a
+ * new one. Linearizing a large network every iteration then allocates nothing per row.
+ */
+export function linearizedInto(out?: Linearized): Linearized {
+  if (!out) return { computed: 0, cols: [], coef: [] }
+  out.computed = 0
+  out.cols.length = 0
+  out.coef.length = 0
+  return out
+}
+
 export function pushTerm(out: Linearized, col: number, value: number): void {
   if (col >= 0) {
     out.cols.push(col)

@@ -51,6 +51,8 @@ export function newWorkspace(): SparseWorkspace {
 
 /**
  * @param reuse a factorization of the same pattern that is no longer needed: its arrays are overwritten
+ * @param held caller's unknowns taken out of the factorization a priori (a free
+ *   network's minimal datum): treated as dependent columns, without the rank test
  */
 export function factorizeSparse(
   sym: Symbolic,
@@ -59,6 +61,7 @@ export function factorizeSparse(
   rankTolerance = 1e-10,
   work: SparseWorkspace = newWorkspace(),
   reuse: SparseFactor | null = null,
+  held: Uint8Array | null = null,
 ): SparseFactor {
   const { ns, pivStart, npiv, fPtr, fcol, parent, rPtr, rIdx, rOff, posOf, u } = sym
   const rv = reuse && reuse.sym === sym ? reuse.rv.fill(0) : new Float64Array(sym.rSize)
@@ -186,6 +189,7 @@ export function factorizeSparse(
       const alpha = end > row ? F[cj + row] : 0
       if (j < np) {
         const p = pivStart[s] + j
+        if (held && held[sym.colAt[p]]) continue // a free network's datum unknown: zero in the basic solution
         const norm = Math.sqrt(alpha * alpha + xs)
         if (!(norm > rankTolerance * columnNorms[sym.colAt[p]])) continue // dependent
         live[p] = 1
