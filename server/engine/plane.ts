@@ -9,7 +9,7 @@ import { angleEquation } from './models/angle'
 import { azimuthEquation } from './models/azimuth'
 import { directionEquation } from './models/direction'
 import { distanceEquation } from './models/horizontal-distance'
-import { pushTerm, type Linearized, type PlanePoint } from './models/types'
+import { linearizedInto, pushTerm, type Linearized, type PlanePoint } from './models/types'
 import { wrapPi } from './geometry'
 import type { XY } from './approx'
 import type { LinearRow, NonlinearProblem } from './lsq'
@@ -126,9 +126,8 @@ export function buildPlaneProblem(
         break
       case 'coord': {
         const p = point(x, def.st, pa)
+        linearizedInto(lin)
         lin.computed = def.comp === 0 ? p.e : p.n
-        lin.cols.length = 0
-        lin.coef.length = 0
         pushTerm(lin, def.comp === 0 ? p.ce : p.cn, 1)
         angular = false
         break
@@ -145,7 +144,7 @@ export function buildPlaneProblem(
     })
 
   // the same rows whitened into typed arrays; the pattern is fixed by the stations' columns
-  const scratch: Linearized = { computed: 0, cols: [], coef: [] }
+  const scratch: Linearized = { computed: 0, cols: [], coef: [], size: 0 }
   const linearizeWhitened = (x: Float64Array, reuse: SparseRows | null): SparseRows => {
     const m = rows.length
     let out = reuse
@@ -154,7 +153,7 @@ export function buildPlaneProblem(
       const cols: number[] = []
       for (let i = 0; i < m; i++) {
         linearizeRow(x, i, scratch)
-        for (const c of scratch.cols) cols.push(c)
+        for (let c = 0; c < scratch.size!; c++) cols.push(scratch.cols[c])
         rowPtr[i + 1] = cols.length
       }
       out = { m, rowPtr, rowCol: Int32Array.from(cols), rowVal: new Float64Array(cols.length), rhs: new Float64Array(m) }
@@ -164,8 +163,10 @@ export function buildPlaneProblem(
       const misclosure = linearizeRow(x, i, scratch)
       const w = 1 / rows[i].sigma
       const coef = scratch.coef
+      const size = scratch.size!
+      if (size !== rowPtr[i + 1] - rowPtr[i]) throw new Error(`row ${i}: its pattern changed between iterations`)
       let o = rowPtr[i]
-      for (let c = 0; c < coef.length; c++, o++) rowVal[o] = coef[c] * w
+      for (let c = 0; c < size; c++, o++) rowVal[o] = coef[c] * w
       rhs[i] = misclosure * w
     }
     return out
