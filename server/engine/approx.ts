@@ -70,6 +70,12 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
   for (const d of input.directions) setStation[d.set] = d.at
 
   if (coords.size === 0 && input.seedIfEmpty) seed(input, coords, orientation)
+  if (input.stations.every((st) => coords.has(st))) {
+    // every station already placed (given, or fitted from a local frame): only the sets to orient
+    orientSets(input, coords, orientation)
+    for (let s = 0; s < input.setCount; s++) if (Number.isNaN(orientation[s])) orientation[s] = 0
+    return { coords, orientation, unplaced: [] }
+  }
 
   const byStation = indexByStation(input)
   // ---- large networks: only sets not yet oriented are looked at, and only
@@ -77,28 +83,78 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
   const sets = new OrientationQueue(input)
   const neighbours = new Map<string, string[]>()
   for (const [st, o] of byStation) {
-    const nb = new Set<string>()
-    for (const d of o.directions) nb.add(d.at === st ? d.to : d.at)
-    for (const g of o.angles) for (const x of [g.at, g.from, g.to]) if (x !== st) nb.add(x)
-    for (const d of o.distances) nb.add(d.at === st ? d.to : d.at)
-    for (const z of o.azimuths) nb.add(z.at === st ? z.to : z.at)
-    neighbours.set(st, [...nb])
+    // a handful per station: a linear search dedupes without a Set per station
+    const nb: string[] = []
+    const add = (x: string) => {
+      if (x !== st && !nb.includes(x)) nb.push(x)
+    }
+    for (const d of o.directions) add(d.at === st ? d.to : d.at)
+    for (const g of o.angles) {
+      add(g.at)
+      add(g.from)
+      add(g.to)
+    }
+    for (const d of o.distances) add(d.at === st ? d.to : d.at)
+    for (const z of o.azimuths) add(z.at === st ? z.to : z.at)
+    neighbours.set(st, nb)
   }
-  const reachable = (st: string) => (neighbours.get(st) ?? []).some((nb) => coords.has(nb))
-  // ---- end large networks
-  let allowAmbiguous = false
-  for (let guard = 0; guard < 10 * input.stations.length + 10; guard++) {
-    let progress = sets.orient(coords, orientation)
-    for (const st of input.stations) {
-      if (coords.has(st) || !reachable(st)) continue
-      const p = place(st, byStation.get(st) ?? EMPTY, coords, orientation, allowAmbiguous)
-      if (p) {
-        coords.set(st, p)
-        progress = true
-        allowAmbiguous = false
+  // Stations are tried in input order, pass after pass, as before; but only the
+  // frontier (unplaced stations with a placed neighbour) is visited: a station
+  // placed in a pass puts its later neighbours into this pass and its earlier
+  // ones into the next, exactly the stations the full scan would have found
+  // reachable — so the placements are the same, at a cost per pass of the
+  // frontier instead of the whole network.
+  const stations = input.stations
+  const n = stations.length
+  const indexOf = new Map(stations.map((st, i) => [st, i]))
+  const placed = new Uint8Array(n)
+  const inFrontier = new Uint8Array(n)
+  let placedCount = 0
+  let next: number[] = []
+  const neighbourIdx: Int32Array[] = stations.map((st) => Int32Array.from((neighbours.get(st) ?? []).map((nb) => indexOf.get(nb) ?? -1).filter((j) => j >= 0)))
+  for (let i = 0; i < n; i++) if (coords.has(stations[i])) {
+    placed[i] = 1
+    placedCount++
+  }
+  // stations placed before the passes (known, seeded) and not in the list may still have neighbours in it
+  for (const st of coords.keys()) {
+    for (const nb of neighbours.get(st) ?? []) {
+      const j = indexOf.get(nb)
+      if (j !== undefined && !placed[j] && !inFrontier[j]) {
+        inFrontier[j] = 1
+        next.push(j)
       }
     }
-    if (input.stations.every((s) => coords.has(s))) break
+  }
+  const heap = new MinHeap()
+  let allowAmbiguous = false
+  for (let guard = 0; guard < 10 * n + 10; guard++) {
+    let progress = sets.orient(coords, orientation)
+    for (const j of next) heap.push(j)
+    next = []
+    while (heap.size > 0) {
+      const i = heap.pop()
+      if (placed[i]) continue
+      const st = stations[i]
+      const p = place(st, byStation.get(st) ?? EMPTY, coords, orientation, allowAmbiguous)
+      if (!p) {
+        next.push(i)
+        continue
+      }
+      coords.set(st, p)
+      sets.touch(st)
+      placed[i] = 1
+      placedCount++
+      progress = true
+      allowAmbiguous = false
+      for (const j of neighbourIdx[i]) {
+        if (placed[j] || inFrontier[j]) continue
+        inFrontier[j] = 1
+        if (j > i) heap.push(j)
+        else next.push(j)
+      }
+    }
+    if (placedCount === n) break
     if (!progress) {
       if (allowAmbiguous) break
       allowAmbiguous = true
@@ -224,20 +280,42 @@ function seed(input: PlaneApproxInput, coords: Map<string, XY>, orientation: Flo
   if (line) coords.set(line.at === best ? line.to : line.at, { e: 0, n: line.value })
 }
 
-/** orientSets for the sets still unoriented only: same result, without rereading every direction each pass. */
+/**
+ * orientSets for the sets still unoriented only, and of those only the ones
+ * with a direction to or from a station placed since they were last looked at
+ * (the others cannot have changed): same result, without rereading every
+ * direction each pass.
+ */
 class OrientationQueue {
   private readonly bySet = new Map<number, ApproxDirection[]>()
+  private readonly setsOf = new Map<string, number[]>()
+  private dirty = new Set<number>()
   constructor(input: PlaneApproxInput) {
     for (const d of input.directions) {
       const l = this.bySet.get(d.set)
       if (l) l.push(d)
       else this.bySet.set(d.set, [d])
+      for (const st of [d.at, d.to]) {
+        const s = this.setsOf.get(st)
+        if (!s) this.setsOf.set(st, [d.set])
+        else if (s[s.length - 1] !== d.set) s.push(d.set)
+      }
     }
+    this.dirty = new Set(this.bySet.keys())
+  }
+
+  /** a station was placed: its sets are worth another look */
+  touch(station: string): void {
+    for (const set of this.setsOf.get(station) ?? []) if (this.bySet.has(set)) this.dirty.add(set)
   }
 
   orient(coords: Map<string, XY>, orientation: Float64Array): boolean {
     let progress = false
-    for (const [set, dirs] of this.bySet) {
+    const look = this.dirty
+    this.dirty = new Set()
+    for (const set of look) {
+      const dirs = this.bySet.get(set)
+      if (!dirs) continue
       if (!Number.isNaN(orientation[set])) {
         this.bySet.delete(set)
         continue
@@ -261,6 +339,45 @@ class OrientationQueue {
       }
     }
     return progress
+  }
+}
+
+/** Binary min-heap of station indices (the stations of one pass, in input order). */
+class MinHeap {
+  private a: number[] = []
+  get size(): number {
+    return this.a.length
+  }
+  push(v: number): void {
+    const a = this.a
+    let i = a.length
+    a.push(v)
+    while (i > 0) {
+      const p = (i - 1) >> 1
+      if (a[p] <= v) break
+      a[i] = a[p]
+      i = p
+    }
+    a[i] = v
+  }
+  pop(): number {
+    const a = this.a
+    const top = a[0]
+    const last = a.pop()!
+    if (a.length > 0) {
+      let i = 0
+      for (;;) {
+        const l = 2 * i + 1
+        if (l >= a.length) break
+        const r = l + 1
+        const c = r < a.length && a[r] < a[l] ? r : l
+        if (a[c] >= last) break
+        a[i] = a[c]
+        i = c
+      }
+      a[i] = last
+    }
+    return top
   }
 }
 
