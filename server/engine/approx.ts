@@ -295,13 +295,16 @@ class OrientationQueue {
       const l = this.bySet.get(d.set)
       if (l) l.push(d)
       else this.bySet.set(d.set, [d])
-      for (const st of [d.at, d.to]) {
-        const s = this.setsOf.get(st)
-        if (!s) this.setsOf.set(st, [d.set])
-        else if (s[s.length - 1] !== d.set) s.push(d.set)
-      }
+      this.note(d.at, d.set)
+      this.note(d.to, d.set)
     }
     this.dirty = new Set(this.bySet.keys())
+  }
+
+  private note(station: string, set: number): void {
+    const s = this.setsOf.get(station)
+    if (!s) this.setsOf.set(station, [set])
+    else if (s[s.length - 1] !== set) s.push(set)
   }
 
   /** a station was placed: its sets are worth another look */
@@ -417,9 +420,20 @@ function indexByStation(input: PlaneApproxInput): Map<string, StationObs> {
     get(d.to).directions.push(d)
     if (d.at !== d.to) get(d.at).directions.push(d)
   }
-  for (const g of input.angles) for (const s of new Set([g.at, g.from, g.to])) get(s).angles.push(g)
-  for (const d of input.distances) for (const s of new Set([d.at, d.to])) get(s).distances.push(d)
-  for (const z of input.azimuths) for (const s of new Set([z.at, z.to])) get(s).azimuths.push(z)
+  // each row once per distinct station it touches (no Set per row: this runs for every row of a large network)
+  for (const g of input.angles) {
+    get(g.at).angles.push(g)
+    if (g.from !== g.at) get(g.from).angles.push(g)
+    if (g.to !== g.at && g.to !== g.from) get(g.to).angles.push(g)
+  }
+  for (const d of input.distances) {
+    get(d.at).distances.push(d)
+    if (d.to !== d.at) get(d.to).distances.push(d)
+  }
+  for (const z of input.azimuths) {
+    get(z.at).azimuths.push(z)
+    if (z.to !== z.at) get(z.to).azimuths.push(z)
+  }
   return m
 }
 
@@ -474,7 +488,11 @@ function place(
   // free station / resection from this station's own direction sets
   const own = input.directions.filter((d) => d.at === st && coords.has(d.to))
   const bySet = new Map<number, ApproxDirection[]>()
-  for (const d of own) bySet.set(d.set, [...(bySet.get(d.set) ?? []), d])
+  for (const d of own) {
+    const l = bySet.get(d.set)
+    if (l) l.push(d)
+    else bySet.set(d.set, [d])
+  }
   for (const dirs of bySet.values()) {
     const targets = new Set(dirs.map((d) => d.to))
     const withDist = dirs.filter((d) => circles.some((c) => c.cName === d.to))

@@ -156,6 +156,38 @@ export function localMdbEffect(
   return Math.sqrt(worst)
 }
 
+/**
+ * localMdbEffect with the row's block of Qxx already read (block[p·n + q] =
+ * Qxx(cols[p], cols[q]), n = cols.length): the same sums, no further look-ups.
+ */
+export function localMdbEffectOfBlock(
+  block: Float64Array,
+  cols: ArrayLike<number>,
+  ac: ArrayLike<number>,
+  k: number,
+  stationOf: Int32Array,
+): number {
+  let worst = 0
+  const n = cols.length
+  for (let a = 0; a < n; a++) {
+    const st = stationOf[cols[a]]
+    if (st < 0) continue
+    // the first coordinate column of this station in the row carries the station
+    let firstOfStation = true
+    for (let b = 0; b < a; b++) if (stationOf[cols[b]] === st) firstOfStation = false
+    if (!firstOfStation) continue
+    let s2 = 0
+    for (let c = 0; c < n; c++) {
+      if (stationOf[cols[c]] !== st) continue
+      let dx = 0
+      for (let p = 0; p < n; p++) dx += block[c * n + p] * ac[p]
+      s2 += (dx * k) ** 2
+    }
+    if (s2 > worst) worst = s2
+  }
+  return Math.sqrt(worst)
+}
+
 export class Cofactor extends CofactorMatrix {
   private readonly f: QrFactorization
   /** caller's column → pivot position */
