@@ -77,6 +77,39 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
     return { coords, orientation, unplaced: [] }
   }
 
+  const neighbours = placeByRules(input, coords, orientation)
+  if (!input.noLocalFrame && coords.size >= 2 && input.stations.some((s) => !coords.has(s))) {
+    // stalled (e.g. no set sees a known point): build each connected piece of the
+    // network that still has unplaced stations in a local frame of its own, from a
+    // seed inside that piece, and fit it onto the piece's placed stations; then
+    // carry on from there. (One seed for the whole network reached one piece
+    // only, so a second piece with its own control stayed unplaced.)
+    let fitted = false
+    for (const piece of pieces(input.stations, neighbours)) {
+      if (piece.every((s) => coords.has(s))) continue
+      const placed = piece.filter((s) => coords.has(s))
+      if (placed.length < 2) continue
+      const local = approximatePlane({ ...restrictTo(input, piece), known: new Map(), seedIfEmpty: true, noLocalFrame: true })
+      const common = placed.filter((s) => local.coords.has(s))
+      if (common.length < 2) continue
+      const t = fitRigid(common.map((s) => ({ x: local.coords.get(s)!, p: coords.get(s)! })))
+      for (const [s, xy] of local.coords) if (!coords.has(s)) coords.set(s, t(xy))
+      fitted = true
+    }
+    if (fitted) return approximatePlane({ ...input, known: coords, noLocalFrame: true })
+  }
+  orientSets(input, coords, orientation)
+  for (let s = 0; s < input.setCount; s++) if (Number.isNaN(orientation[s])) orientation[s] = 0
+  return { coords, orientation, unplaced: input.stations.filter((s) => !coords.has(s)) }
+}
+
+/**
+ * The construction passes (orientation of sets, polar points, intersections,
+ * free stations, resections) until nothing more can be placed. Returns the
+ * station graph. Apart from approximatePlane so that neither is one large
+ * function for the JIT to compile.
+ */
+function placeByRules(input: PlaneApproxInput, coords: Map<string, XY>, orientation: Float64Array): Map<string, string[]> {
   const byStation = indexByStation(input)
   // ---- large networks: only sets not yet oriented are looked at, and only
   // stations with a placed neighbour are tried (the result is unchanged)
@@ -160,29 +193,7 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
       allowAmbiguous = true
     }
   }
-  if (!input.noLocalFrame && coords.size >= 2 && input.stations.some((s) => !coords.has(s))) {
-    // stalled (e.g. no set sees a known point): build each connected piece of the
-    // network that still has unplaced stations in a local frame of its own, from a
-    // seed inside that piece, and fit it onto the piece's placed stations; then
-    // carry on from there. (One seed for the whole network reached one piece
-    // only, so a second piece with its own control stayed unplaced.)
-    let fitted = false
-    for (const piece of pieces(input.stations, neighbours)) {
-      if (piece.every((s) => coords.has(s))) continue
-      const placed = piece.filter((s) => coords.has(s))
-      if (placed.length < 2) continue
-      const local = approximatePlane({ ...restrictTo(input, piece), known: new Map(), seedIfEmpty: true, noLocalFrame: true })
-      const common = placed.filter((s) => local.coords.has(s))
-      if (common.length < 2) continue
-      const t = fitRigid(common.map((s) => ({ x: local.coords.get(s)!, p: coords.get(s)! })))
-      for (const [s, xy] of local.coords) if (!coords.has(s)) coords.set(s, t(xy))
-      fitted = true
-    }
-    if (fitted) return approximatePlane({ ...input, known: coords, noLocalFrame: true })
-  }
-  orientSets(input, coords, orientation)
-  for (let s = 0; s < input.setCount; s++) if (Number.isNaN(orientation[s])) orientation[s] = 0
-  return { coords, orientation, unplaced: input.stations.filter((s) => !coords.has(s)) }
+  return neighbours
 }
 
 /** Connected pieces of the station graph (stations joined by any observation), each in input order. */

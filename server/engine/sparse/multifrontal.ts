@@ -112,40 +112,10 @@ export function factorizeSparse(
       rowSrc = new Int32Array(size)
       rowSub = new Int32Array(size)
     }
-    // lead column of each row (first column that can be non-zero)
-    let r = 0
-    for (let t = rPtr[s]; t < rPtr[s + 1]; t++) {
-      const i = rIdx[t]
-      let lead = nc
-      for (let q = rowPtr[i]; q < rowPtr[i + 1]; q++) {
-        const l = loc[posOf[rowCol[q]]]
-        if (l < lead) lead = l
-      }
-      rowLead[r] = lead
-      rowSrc[r] = -1
-      rowSub[r] = i
-      r++
-    }
-    for (let c = childHead[s]; c >= 0; c = childNext[c]) {
-      const cf0 = fPtr[c] + npiv[c]
-      for (let t = 0; t < cRowsOf[c]; t++) {
-        rowLead[r] = loc[fcol[cf0 + cLead[cLeadOff[c] + t]]]
-        rowSrc[r] = c
-        rowSub[r] = t
-        r++
-      }
-    }
-    // counting sort of the rows by lead column
     if (cntBuf.length < nc + 2) cntBuf = new Int32Array(2 * (nc + 2))
-    const cnt = cntBuf.subarray(0, nc + 2)
-    cnt.fill(0)
-    for (let t = 0; t < nr; t++) cnt[rowLead[t] + 1]++
-    for (let j = 0; j <= nc; j++) cnt[j + 1] += cnt[j]
-    // stair[j] = rows whose lead ≤ j = cnt[j + 1]
     if (stairBuf.length < nc + 1) stairBuf = new Int32Array(2 * (nc + 1))
     const stair = stairBuf
-    stair.set(cnt.subarray(1, nc + 2))
-    for (let t = 0; t < nr; t++) rowOrder[cnt[rowLead[t]]++] = t
+    orderFrontRows(s, nc, nr, rPtr, rIdx, rowPtr, rowCol, posOf, loc, childHead, childNext, fPtr, npiv, fcol, cRowsOf, cLead, cLeadOff, rowLead, rowSrc, rowSub, rowOrder, cntBuf, stair)
     const ld = nr // column-major leading dimension
     const width = nc + 1 // + right-hand side
     const size = ld * width
@@ -204,6 +174,65 @@ export function factorizeSparse(
   let b = rank
   for (let p = 0; p < u; p++) perm[live[p] ? a++ : b++] = sym.colAt[p]
   return { sym, u, rank, rv, qtb, live, residualSq, perm }
+}
+
+/**
+ * The rows of front s — its observations, then its children's contribution rows
+ * — with the lead column of each (the first that can be non-zero), sorted by
+ * lead (counting sort into rowOrder); stair[j] = number of rows whose lead ≤ j.
+ */
+function orderFrontRows(
+  s: number,
+  nc: number,
+  nr: number,
+  rPtr: Int32Array,
+  rIdx: Int32Array,
+  rowPtr: Int32Array,
+  rowCol: Int32Array,
+  posOf: Int32Array,
+  loc: Int32Array,
+  childHead: Int32Array,
+  childNext: Int32Array,
+  fPtr: Int32Array,
+  npiv: Int32Array,
+  fcol: Int32Array,
+  cRowsOf: Int32Array,
+  cLead: Int32Array,
+  cLeadOff: Int32Array,
+  rowLead: Int32Array,
+  rowSrc: Int32Array,
+  rowSub: Int32Array,
+  rowOrder: Int32Array,
+  cnt: Int32Array,
+  stair: Int32Array,
+): void {
+  let r = 0
+  for (let t = rPtr[s]; t < rPtr[s + 1]; t++) {
+    const i = rIdx[t]
+    let lead = nc
+    for (let q = rowPtr[i]; q < rowPtr[i + 1]; q++) {
+      const l = loc[posOf[rowCol[q]]]
+      if (l < lead) lead = l
+    }
+    rowLead[r] = lead
+    rowSrc[r] = -1
+    rowSub[r] = i
+    r++
+  }
+  for (let c = childHead[s]; c >= 0; c = childNext[c]) {
+    const cf0 = fPtr[c] + npiv[c]
+    for (let t = 0; t < cRowsOf[c]; t++) {
+      rowLead[r] = loc[fcol[cf0 + cLead[cLeadOff[c] + t]]]
+      rowSrc[r] = c
+      rowSub[r] = t
+      r++
+    }
+  }
+  for (let j = 0; j < nc + 2; j++) cnt[j] = 0
+  for (let t = 0; t < nr; t++) cnt[rowLead[t] + 1]++
+  for (let j = 0; j <= nc; j++) cnt[j + 1] += cnt[j]
+  for (let j = 0; j <= nc; j++) stair[j] = cnt[j + 1]
+  for (let t = 0; t < nr; t++) rowOrder[cnt[rowLead[t]]++] = t
 }
 
 /** Observation rows and children's contribution rows into the zeroed front, in staircase order. */
