@@ -227,17 +227,46 @@ export function buildPlaneProblem(
   }
 }
 
-/** Cuthill–McKee ordering of the station graph (bandwidth reduction, less fill in QR). */
+/**
+ * Cuthill–McKee ordering of the station graph (bandwidth reduction, less fill in
+ * QR): components from their lowest-degree station, breadth first, neighbours by
+ * degree then index. Adjacency in typed arrays (a large network has 10⁵ edges).
+ */
 export function cuthillMcKee(n: number, edges: number[][]): number[] {
-  const adj: Set<number>[] = Array.from({ length: n }, () => new Set())
+  // distinct neighbours: CSR from both directions, then deduplicated per station
+  const deg0 = new Int32Array(n + 1)
   for (const [a, b] of edges) {
     if (a === b) continue
-    adj[a].add(b)
-    adj[b].add(a)
+    deg0[a + 1]++
+    deg0[b + 1]++
   }
+  for (let i = 0; i < n; i++) deg0[i + 1] += deg0[i]
+  const raw = new Int32Array(deg0[n])
+  const fill = deg0.slice(0, n)
+  for (const [a, b] of edges) {
+    if (a === b) continue
+    raw[fill[a]++] = b
+    raw[fill[b]++] = a
+  }
+  const ptr = new Int32Array(n + 1)
+  const adj = new Int32Array(raw.length)
+  const mark = new Int32Array(n).fill(-1)
+  let o = 0
+  for (let v = 0; v < n; v++) {
+    for (let t = deg0[v]; t < deg0[v + 1]; t++) {
+      const w = raw[t]
+      if (mark[w] === v) continue
+      mark[w] = v
+      adj[o++] = w
+    }
+    ptr[v + 1] = o
+  }
+  const degree = (v: number) => ptr[v + 1] - ptr[v]
+  const byDegreeThenIndex = (a: number, b: number) => degree(a) - degree(b) || a - b
   const seen = new Uint8Array(n)
   const order: number[] = []
-  const byDegree = Array.from({ length: n }, (_, i) => i).sort((a, b) => adj[a].size - adj[b].size || a - b)
+  const byDegree = Array.from({ length: n }, (_, i) => i).sort(byDegreeThenIndex)
+  const next: number[] = []
   for (const start of byDegree) {
     if (seen[start]) continue
     seen[start] = 1
@@ -245,7 +274,9 @@ export function cuthillMcKee(n: number, edges: number[][]): number[] {
     for (let h = 0; h < queue.length; h++) {
       const v = queue[h]
       order.push(v)
-      const next = [...adj[v]].filter((w) => !seen[w]).sort((a, b) => adj[a].size - adj[b].size || a - b)
+      next.length = 0
+      for (let t = ptr[v]; t < ptr[v + 1]; t++) if (!seen[adj[t]]) next.push(adj[t])
+      next.sort(byDegreeThenIndex)
       for (const w of next) {
         seen[w] = 1
         queue.push(w)
