@@ -13,7 +13,7 @@
 // which is R·Z = R⁻ᵀ read row by row, only ever reaches entries inside the
 // envelope, so its cost is Σ over envelope entries of the row lengths of R
 // (≈ u·b² for bandwidth b) instead of u³ for the full matrix.
-// Source: Takahashi, K., Fagan, J. & Chen, M.-S. (1973) Formation of a sparse
+// Source: Takahashi, K., Fagan, J. & Chin, M.-S. (1973) Formation of a sparse
 // bus impedance matrix and its application to short circuit study, Proc. 8th
 // PICA Conference, Minneapolis, 63–69 (the recursion on the factor's pattern);
 // the envelope closure argument is Erisman, A.M. & Tinney, W.F. (1975) On

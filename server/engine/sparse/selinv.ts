@@ -13,7 +13,7 @@
 // basic solution's generalized inverse, as in the dense path); a free network's
 // S-transformation is applied on top by the shared CofactorMatrix.
 //
-// Sources: Takahashi, K., Fagan, J. & Chen, M.-S. (1973) Formation of a sparse
+// Sources: Takahashi, K., Fagan, J. & Chin, M.-S. (1973) Formation of a sparse
 // bus impedance matrix and its application to short circuit study, Proc. 8th PICA
 // Conference, 63–69; Erisman, A.M. & Tinney, W.F. (1975) On computing certain
 // elements of the inverse of a sparse matrix, Comm. ACM 18(3), 177–179;
