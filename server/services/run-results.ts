@@ -13,7 +13,7 @@ import type { Tx } from '../db/client'
 import { chunked, copyBool, copyInto, copyNumber, copyStat, copyText } from '../db/copy'
 import type { Adjustment } from '../db/schema'
 import { METRES_PER } from '../engine/io/units'
-import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary, NetworkSummary, ObservationResult, RelativeResult, StationResult } from '../engine/types'
+import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary, NetworkSummary, ObservationResult, RelativeResult, StationResult, VectorTest } from '../engine/types'
 import { describeTolerance, type ToleranceSpec } from './accuracy'
 import { safeCellSql } from './csv'
 
@@ -97,7 +97,7 @@ export function buildSummary(r: AdjustmentResult, tolerance: (ToleranceSpec & { 
 // ── storing ─────────────────────────────────────────────────────────────────
 
 const STATION_COLUMNS = 'firm_id, adjustment_id, name, kind, fixed, east, north, height, sd_east, sd_north, sd_height, semi_major, semi_minor, azimuth_deg, semi_major95, semi_minor95, controlled_east, controlled_north, controlled_height'
-const OBSERVATION_COLUMNS = 'firm_id, adjustment_id, observation_id, line, kind, component, at, "from", "to", observed, adjusted, value_unit, residual, sigma, residual_unit, redundancy, w, tau, mdb, mdb_effect, flagged, tau_flagged, weak, excluded, remark, combined_factor, elevation_factor, scale_factor'
+const OBSERVATION_COLUMNS = 'firm_id, adjustment_id, observation_id, line, kind, component, at, "from", "to", observed, adjusted, value_unit, residual, sigma, residual_unit, redundancy, w, tau, mdb, mdb_effect, flagged, tau_flagged, weak, excluded, remark, combined_factor, elevation_factor, scale_factor, vector_statistic, vector_critical, vector_distribution, vector_flagged, residual_e, residual_n, residual_u'
 const RELATIVE_COLUMNS = 'firm_id, adjustment_id, from_station, to_station, distance, semi_major, semi_minor, azimuth_deg, semi_major95, sd_distance, allowable, passes'
 
 export interface RelativeCheck { rel: RelativeResult; check: { semiMajor95: number; allowable: number | null; passes: boolean | null } }
@@ -121,11 +121,19 @@ export async function storeResults(tx: Tx, firmId: number, runId: number, r: Adj
     + copyText(o.at) + '\t' + copyText(o.from) + '\t' + copyText(o.to) + '\t' + copyNumber(o.observed) + '\t' + copyStat(o.adjusted) + '\t' + o.valueUnit + '\t'
     + copyStat(o.residual) + '\t' + copyStat(o.sigma) + '\t' + o.residualUnit + '\t' + copyStat(o.redundancy) + '\t' + copyStat(o.w) + '\t' + copyStat(o.tau) + '\t'
     + copyStat(o.mdb) + '\t' + copyStat(o.mdbEffect) + '\t' + copyBool(o.flagged) + '\t' + copyBool(o.tauFlagged) + '\t' + copyBool(o.weak) + '\t' + copyBool(o.excluded) + '\t'
-    + copyText(o.remark) + '\t' + copyStat(o.combinedFactor) + '\t' + copyStat(o.elevationFactor) + '\t' + copyStat(o.scaleFactor) + '\n'))
+    + copyText(o.remark) + '\t' + copyStat(o.combinedFactor) + '\t' + copyStat(o.elevationFactor) + '\t' + copyStat(o.scaleFactor) + '\t'
+    + vectorCells(o.vectorTest) + '\n'))
   await copyInto(tx, 'relative_precisions', RELATIVE_COLUMNS, chunked(rel, ({ rel: p, check }) =>
     head + copyText(p.from) + '\t' + copyText(p.to) + '\t' + copyNumber(p.distance) + '\t' + copyNumber(p.semiMajor) + '\t' + copyNumber(p.semiMinor) + '\t'
     + copyNumber(p.azimuthDeg) + '\t' + copyNumber(check.semiMajor95) + '\t' + copyStat(p.sdDistance) + '\t' + copyStat(check.allowable) + '\t' + copyBool(check.passes) + '\n'))
   return Math.round(performance.now() - t0)
+}
+
+/** The seven vector-test cells of a gnss_baseline component row (NULL on every other row). */
+function vectorCells(t: VectorTest | undefined): string {
+  if (!t) return '\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N'
+  return copyStat(t.statistic) + '\t' + copyStat(t.critical) + '\t' + copyText(t.distribution) + '\t' + copyBool(t.flagged) + '\t'
+    + copyStat(t.residualEnu[0]) + '\t' + copyStat(t.residualEnu[1]) + '\t' + copyStat(t.residualEnu[2])
 }
 
 // ── rows back into the engine's shapes ──────────────────────────────────────
@@ -149,11 +157,22 @@ export function stationOf(s: StationRow): StationResult {
 
 const OBSERVATION_SELECT = sql.raw(`observation_id as "id", line, kind, component, at, "from", "to", observed, adjusted, value_unit as "valueUnit",
   residual, sigma, residual_unit as "residualUnit", redundancy, w, flagged, tau, tau_flagged as "tauFlagged", mdb, mdb_effect as "mdbEffect",
-  excluded, weak, remark, combined_factor as "combinedFactor", elevation_factor as "elevationFactor", scale_factor as "scaleFactor"`)
-type ObservationRow = Omit<ObservationResult, 'combinedFactor' | 'elevationFactor' | 'scaleFactor'> & { combinedFactor: number | null; elevationFactor: number | null; scaleFactor: number | null }
+  excluded, weak, remark, combined_factor as "combinedFactor", elevation_factor as "elevationFactor", scale_factor as "scaleFactor",
+  vector_statistic as "vStatistic", vector_critical as "vCritical", vector_distribution as "vDistribution", vector_flagged as "vFlagged",
+  residual_e as "vE", residual_n as "vN", residual_u as "vU"`)
+type ObservationRow = Omit<ObservationResult, 'combinedFactor' | 'elevationFactor' | 'scaleFactor' | 'vectorTest'> & {
+  combinedFactor: number | null; elevationFactor: number | null; scaleFactor: number | null
+  vStatistic: number | null; vCritical: number | null; vDistribution: string | null; vFlagged: boolean | null; vE: number | null; vN: number | null; vU: number | null
+}
 export function observationOf(o: ObservationRow): ObservationResult {
-  const { combinedFactor, elevationFactor, scaleFactor, ...rest } = o
-  return { ...rest, ...(combinedFactor !== null ? { combinedFactor } : {}), ...(elevationFactor !== null ? { elevationFactor } : {}), ...(scaleFactor !== null ? { scaleFactor } : {}) }
+  const { combinedFactor, elevationFactor, scaleFactor, vStatistic, vCritical, vDistribution, vFlagged, vE, vN, vU, ...rest } = o
+  const vectorTest: VectorTest | null = vStatistic !== null && vCritical !== null
+    ? { statistic: vStatistic, critical: vCritical, distribution: vDistribution === 'F' ? 'F' : 'chi2', flagged: vFlagged === true, residualEnu: [vE ?? Number.NaN, vN ?? Number.NaN, vU ?? Number.NaN] }
+    : null
+  return {
+    ...rest, ...(combinedFactor !== null ? { combinedFactor } : {}), ...(elevationFactor !== null ? { elevationFactor } : {}), ...(scaleFactor !== null ? { scaleFactor } : {}),
+    ...(vectorTest ? { vectorTest } : {}),
+  }
 }
 
 const RELATIVE_SELECT = sql.raw(`from_station as "from", to_station as "to", distance, semi_major as "semiMajor", semi_minor as "semiMinor",
