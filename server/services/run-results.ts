@@ -7,7 +7,7 @@
 import { PassThrough, type Readable } from 'node:stream'
 import { sql, type SQL } from 'drizzle-orm'
 import { to as copyTo } from 'pg-copy-streams'
-import type { CompareQuery, ObservationPageQuery, RelativePageQuery, StationPageQuery } from '../../shared/schemas/run-results'
+import type { CompareQuery, ObservationPageQuery, RelativePageQuery, StationPageQuery, VectorPageQuery } from '../../shared/schemas/run-results'
 import { useDb, usePool } from '../db/client'
 import type { Tx } from '../db/client'
 import { chunked, copyBool, copyInto, copyNumber, copyStat, copyText } from '../db/copy'
@@ -240,6 +240,62 @@ export function pageObservations(firmId: number, runId: number, known: number | 
   return paged('observation_results', OBSERVATION_SELECT, where, orderBy(q.sort, OBSERVATION_SORT_SQL), q, observationOf, known)
 }
 
+/** One GNSS vector of a run with its whole-vector test (the three component rows folded into one). */
+export interface VectorRow {
+  id: number | null
+  line: number
+  at: string
+  to: string
+  /** observed ΔX ΔY ΔZ (m) */
+  observed: [number | null, number | null, number | null]
+  /** residuals of ΔX ΔY ΔZ (m) and their w */
+  residual: [number | null, number | null, number | null]
+  w: [number | null, number | null, number | null]
+  excluded: boolean
+  remark: string | null
+  /** null when the vector was not tested (excluded, or no redundancy) */
+  test: VectorTest | null
+}
+
+const VECTOR_SELECT = sql.raw(`observation_id as "id", min(line) as "line", at, "to", bool_or(excluded) as "excluded", max(remark) as "remark",
+  max(observed) filter (where component = 'dx') as ox, max(observed) filter (where component = 'dy') as oy, max(observed) filter (where component = 'dz') as oz,
+  max(residual) filter (where component = 'dx') as vx, max(residual) filter (where component = 'dy') as vy, max(residual) filter (where component = 'dz') as vz,
+  max(w) filter (where component = 'dx') as wx, max(w) filter (where component = 'dy') as wy, max(w) filter (where component = 'dz') as wz,
+  max(vector_statistic) as "statistic", max(vector_critical) as "critical", max(vector_distribution) as "distribution", bool_or(vector_flagged) as "flagged",
+  max(residual_e) as "e", max(residual_n) as "n", max(residual_u) as "u"`)
+const VECTOR_SORT_SQL: Record<string, string> = {
+  order: 'min(id)', line: 'min(line)', at: 'at', ratio: 'max(vector_statistic) / nullif(max(vector_critical), 0)',
+}
+type VectorSqlRow = {
+  id: number | null; line: number; at: string; to: string; excluded: boolean; remark: string | null
+  ox: number | null; oy: number | null; oz: number | null; vx: number | null; vy: number | null; vz: number | null; wx: number | null; wy: number | null; wz: number | null
+  statistic: number | null; critical: number | null; distribution: string | null; flagged: boolean | null; e: number | null; n: number | null; u: number | null
+}
+function vectorOf(r: VectorSqlRow): VectorRow {
+  return {
+    id: r.id, line: r.line, at: r.at, to: r.to, excluded: r.excluded, remark: r.remark,
+    observed: [r.ox, r.oy, r.oz], residual: [r.vx, r.vy, r.vz], w: [r.wx, r.wy, r.wz],
+    test: r.statistic !== null && r.critical !== null
+      ? { statistic: r.statistic, critical: r.critical, distribution: r.distribution === 'F' ? 'F' : 'chi2', flagged: r.flagged === true, residualEnu: [r.e ?? Number.NaN, r.n ?? Number.NaN, r.u ?? Number.NaN] }
+      : null,
+  }
+}
+/** The run's GNSS vectors by page, one row per vector; worst test first by default. */
+export async function pageVectors(firmId: number, runId: number, q: VectorPageQuery): Promise<Page<VectorRow>> {
+  const db = useDb()
+  const where = [runScope(firmId, runId), sql`kind = 'gnss_baseline'`]
+  if (q.q) where.push(sql`(${contains('at', q.q)} or ${contains('"to"', q.q)})`)
+  const having = q.flagged === undefined ? sql`true` : q.flagged ? sql`coalesce(bool_or(vector_flagged), false) and not bool_or(excluded)` : sql`not (coalesce(bool_or(vector_flagged), false) and not bool_or(excluded))`
+  const cond = sql.join(where, sql` and `)
+  const desc = q.sort.startsWith('-')
+  const order = sql.raw(`${VECTOR_SORT_SQL[desc ? q.sort.slice(1) : q.sort] ?? 'min(id)'} ${desc ? 'desc' : 'asc'} nulls last, min(id) asc`)
+  const [rows, count] = await Promise.all([
+    db.execute(sql`select ${VECTOR_SELECT} from observation_results where ${cond} group by observation_id, at, "to" having ${having} order by ${order} limit ${q.size} offset ${(q.page - 1) * q.size}`),
+    db.execute<{ n: number }>(sql`select count(*)::int as n from (select 1 from observation_results where ${cond} group by observation_id, at, "to" having ${having}) v`),
+  ])
+  return { page: q.page, size: q.size, total: count.rows[0]?.n ?? 0, sort: q.sort, rows: (rows.rows as unknown as VectorSqlRow[]).map(vectorOf) }
+}
+
 const RELATIVE_SORT_SQL: Record<string, string> = {
   order: 'id', from: 'from_station', to: 'to_station', distance: 'distance', semiMajor95: 'semi_major95', ratio: 'semi_major95 / nullif(allowable, 0)',
 }
@@ -282,10 +338,12 @@ export async function mapData(firmId: number, runId: number) {
     db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null; ce: boolean; cn: boolean; ch: boolean }>(sql`
       select name, kind, fixed, east, north, semi_major95 as a, semi_minor95 as b, azimuth_deg as az, controlled_east as ce, controlled_north as cn, controlled_height as ch
       from adjusted_stations where ${runScope(firmId, runId)} and east is not null and north is not null order by id`),
-    db.execute<{ p: string; q: string; used: number; excl: number; rating: number }>(sql`
+    // GNSS vectors get their own line per pair (gnss = true), so the map can draw them apart from total-station lines
+    db.execute<{ p: string; q: string; used: number; excl: number; rating: number; gnss: boolean }>(sql`
       select least(at, "to") as p, greatest(at, "to") as q, count(*) filter (where not excluded)::int as used, count(*) filter (where excluded)::int as excl,
-        max(case when ${sql.raw(FAILS)} then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating
-      from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2`),
+        max(case when ${sql.raw(FAILS)} or (vector_flagged and not excluded) then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating,
+        kind = 'gnss_baseline' as gnss
+      from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2, 6`),
   ])
   const index = new Map<string, number>()
   const stations = { name: [] as string[], east: [] as number[], north: [] as number[], kind: [] as number[], a: [] as (number | null)[], b: [] as (number | null)[], az: [] as (number | null)[] }
@@ -301,7 +359,8 @@ export async function mapData(firmId: number, runId: number) {
     stations.b.push(s.fixed || s.b === null ? null : round(s.b, 5))
     stations.az.push(s.fixed || s.az === null ? null : round(s.az, 1))
   })
-  const lines = { from: [] as number[], to: [] as number[], rating: [] as number[], used: [] as number[], excluded: [] as number[] }
+  // vector[i] = 1 for a GNSS vector line; its used/excluded count component rows (three per vector)
+  const lines = { from: [] as number[], to: [] as number[], rating: [] as number[], used: [] as number[], excluded: [] as number[], vector: [] as number[] }
   for (const l of ln.rows) {
     const i = index.get(l.p)
     const j = index.get(l.q)
@@ -311,6 +370,7 @@ export async function mapData(firmId: number, runId: number) {
     lines.rating.push(l.rating)
     lines.used.push(l.used)
     lines.excluded.push(l.excl)
+    lines.vector.push(l.gnss ? 1 : 0)
   }
   return { stations, lines }
 }
