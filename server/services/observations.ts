@@ -429,7 +429,7 @@ type LengthOf = (a: string, b: string) => number | null
 function sigmaFor(o: ObservationRow, profile: InstrumentProfile | null, lengthOf: LengthOf): { value: number | null; source: ObservationDto['sigmaSource'] } {
   if (o.sigma !== null) return { value: o.sigma, source: 'file' }
   if (!profile) return { value: null, source: 'none' }
-  const value = aprioriSigma({ ...o, set: o.setName, sigma: null }, { profile, length: lengthOf })
+  const value = aprioriSigma({ ...o, set: o.setName, sigma: null, vector: o.vector ?? undefined }, { profile, length: lengthOf })
   return value === null ? { value: null, source: 'none' } : { value, source: 'profile' }
 }
 

@@ -150,7 +150,7 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
     // a vector carries its own σX σY σZ (o.vector); no profile weights it
     if (sigma === null && !o.vector && pid !== mainProfileId && pid !== null) {
       // the engine's own σ function, with this set's profile and the lengths known before the run
-      sigma = aprioriSigma({ ...o, set: o.setName, sigma: null }, { profile: profiles.get(pid)!, length: lengthOf })
+      sigma = aprioriSigma({ ...o, set: o.setName, sigma: null, vector: o.vector ?? undefined }, { profile: profiles.get(pid)!, length: lengthOf })
       if (sigma === null) warnings.push(`line ${o.line} of set ${o.setId}: σ taken from the run's main instrument profile (no length known to apply its own)`)
     }
     return {

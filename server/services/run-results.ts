@@ -482,11 +482,15 @@ export async function csvStream(run: Adjustment, project: { name: string; units:
       case when semi_major is null then null else round(azimuth_deg::numeric, 2)::text end, ${fixed('semi_major95', 5)}, ${fixed('semi_minor95', 5)}
       from adjusted_stations where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
   } else {
-    header = 'line,kind,at,from,to,residual,residual_unit,redundancy,w,tau,mdb,flagged,weak,excluded'
+    // component and the whole-vector test come last, so the columns before them read as they always did
+    header = 'line,kind,at,from,to,residual,residual_unit,redundancy,w,tau,mdb,flagged,weak,excluded,component,vector_statistic,vector_critical,vector_flagged,vector_residual_e_mm,vector_residual_n_mm,vector_residual_u_mm'
     const nat = `* ${NATURAL}`
     query = `select line, kind, ${safeCellSql('at')}, ${safeCellSql('"from"')}, ${safeCellSql('"to"')}, ${fixed('residual', 2, nat)}, case when residual_unit = 'm' then 'mm' else 'arcsec' end,
       round(redundancy::numeric, 3)::text, round(w::numeric, 2)::text, round(tau::numeric, 2)::text, ${fixed('mdb', 2, nat)},
-      case when flagged then 'yes' else 'no' end, case when weak then 'yes' else 'no' end, case when excluded then 'yes' else 'no' end
+      case when flagged then 'yes' else 'no' end, case when weak then 'yes' else 'no' end, case when excluded then 'yes' else 'no' end,
+      component, round(vector_statistic::numeric, 2)::text, round(vector_critical::numeric, 2)::text,
+      case when vector_flagged is null then null when vector_flagged then 'yes' else 'no' end,
+      round((residual_e * 1000)::numeric, 2)::text, round((residual_n * 1000)::numeric, 2)::text, round((residual_u * 1000)::numeric, 2)::text
       from observation_results where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
   }
   const head = [`# Tiepoint run ${run.number} of project "${project.name.replace(/[\r\n]+/g, ' ').replace(/"/g, "'")}"; input SHA-256 ${run.inputHash}`,
