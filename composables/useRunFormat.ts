@@ -19,7 +19,8 @@ export const WATCH_W = 2
 
 export function rateObservation(o: RunObservation): Rating {
   if (o.excluded) return 'pass'
-  if (o.flagged || o.tauFlagged) return 'fail'
+  // a GNSS vector is tested whole: each of its three rows fails when the vector does
+  if (o.flagged || o.tauFlagged || o.vectorTest?.flagged) return 'fail'
   if ((o.w !== null && Math.abs(o.w) > WATCH_W) || o.weak) return 'watch'
   return 'pass'
 }

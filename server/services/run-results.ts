@@ -224,8 +224,8 @@ const OBSERVATION_SORT_SQL: Record<string, string> = {
   mdb: `mdb * ${NATURAL}`, kind: 'kind::text', at: 'at',
 }
 /** The residual table's rating in SQL (rateObservation in composables/useRunFormat.ts). */
-const FAILS = `(not excluded and (flagged or tau_flagged))`
-const WATCH = `(not excluded and not (flagged or tau_flagged) and (coalesce(abs(w), 0) > 2 or weak))`
+const FAILS = `(not excluded and (flagged or tau_flagged or coalesce(vector_flagged, false)))`
+const WATCH = `(not excluded and not (flagged or tau_flagged or coalesce(vector_flagged, false)) and (coalesce(abs(w), 0) > 2 or weak))`
 export function pageObservations(firmId: number, runId: number, known: number | undefined, q: ObservationPageQuery): Promise<Page<ObservationResult>> {
   const where = [runScope(firmId, runId)]
   if (q.q) where.push(sql`(${contains('at', q.q)} or ${contains('"to"', q.q)} or ${contains('coalesce("from", \'\')', q.q)})`)
@@ -341,7 +341,7 @@ export async function mapData(firmId: number, runId: number) {
     // GNSS vectors get their own line per pair (gnss = true), so the map can draw them apart from total-station lines
     db.execute<{ p: string; q: string; used: number; excl: number; rating: number; gnss: boolean }>(sql`
       select least(at, "to") as p, greatest(at, "to") as q, count(*) filter (where not excluded)::int as used, count(*) filter (where excluded)::int as excl,
-        max(case when ${sql.raw(FAILS)} or (vector_flagged and not excluded) then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating,
+        max(case when ${sql.raw(FAILS)} then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating,
         kind = 'gnss_baseline' as gnss
       from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2, 6`),
   ])
