@@ -8,7 +8,7 @@ import { and, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { closeDb, useDb } from '../../server/db/client'
-import { adjustments, observationResults } from '../../server/db/schema'
+import { adjustments, observationResults, observations } from '../../server/db/schema'
 import { launch, newPage, shot, signIn } from '../support/browser'
 import { as, DEMO, runDone } from '../support/http'
 import { DEMO_CSV, projectWithNetwork } from '../api/adjustments-fixture'
@@ -25,8 +25,13 @@ beforeAll(async () => {
   if (q.status !== 202) throw new Error(`queue: ${q.status} ${JSON.stringify(q.body)}`)
   await runDone(chief, `${api}/adjustments/${q.body.number}/status`, 90_000)
   const [run] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, fx.projectId), eq(adjustments.number, q.body.number)))
+  // the vector's own observation row, so the report can offer to exclude it
+  const [obs] = await useDb().insert(observations).values({
+    firmId: fx.firmId, projectId: fx.projectId, setId: fx.setId, line: 900, kind: 'gnss_baseline', at: 'CP1', from: null, to: 'CP2', value: 1774.0,
+    unit: 'm', vector: { d: [1168.528, 1333.454, -2.1], sigma: [0.003, 0.003, 0.003], correlation: null },
+  }).returning()
   const row = (component: 'dx' | 'dy' | 'dz', observed: number, residual: number) => ({
-    firmId: run!.firmId, adjustmentId: run!.id, observationId: null, line: 900, kind: 'gnss_baseline' as const, component, at: 'CP1', from: null, to: 'CP2',
+    firmId: run!.firmId, adjustmentId: run!.id, observationId: obs!.id, line: 900, kind: 'gnss_baseline' as const, component, at: 'CP1', from: null, to: 'CP2',
     observed, adjusted: observed + residual, valueUnit: 'm', residual, sigma: 0.003, residualUnit: 'm', redundancy: 0.6, w: residual / 0.003,
     vectorStatistic: 21.7, vectorCritical: 16.27, vectorDistribution: 'chi2', vectorFlagged: true, residualE: 0.0151, residualN: -0.0042, residualU: 0.0203,
   })
