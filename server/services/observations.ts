@@ -253,6 +253,11 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
   if (control.length > 0) refuse({ ok: false, errors: control, warnings: read.warnings })
   const vectors = vectorsInLocalPlane(project, read, format)
   if (vectors.length > 0) refuse({ ok: false, errors: vectors, warnings: read.warnings })
+  const firstVector = read.observations.find((o) => o.kind === 'gnss_baseline')
+  if (firstVector && project.geoidSeparationM === 0) {
+    // 0 is the setting's default: say so once, since a forgotten N shifts every height by N
+    read.warnings.push({ line: firstVector.line, column: 'kind', message: 'the project\'s geoid separation N is 0 m (the default): vectors tie heights through ellipsoidal heights h = H + N, so set the site\'s N in the project settings before adjusting' })
+  }
 
   const names = new Set<string>()
   for (const o of read.observations) { names.add(o.at); names.add(o.to); if (o.from) names.add(o.from) }

@@ -96,6 +96,15 @@ describe('vectors into a georeferenced project', () => {
   })
 })
 
+describe('vectors in a georeferenced project whose N was never set', () => {
+  it('are stored, with one warning on the first vector line that N is still 0 m', async () => {
+    const r0 = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS no N ${Date.now()}`, crs: 'EPSG:32633', units: 'm' })
+    const r = await chief.post(`${base(r0.body.id)}/observation-sets`, fileForm('vectors.csv', CSV))
+    expect(r.status).toBe(201)
+    expect(r.body.warnings).toEqual([expect.objectContaining({ line: 3, column: 'kind', message: expect.stringMatching(/geoid separation N is 0 m/) })])
+  })
+})
+
 describe('vectors in a local-plane project', () => {
   it('are refused at upload with line and column, saying a projected CRS and N are needed; nothing is written', async () => {
     const r0 = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS local ${Date.now()}`, crs: 'local', units: 'm' })
@@ -166,20 +175,21 @@ describe('a run whose results hold vector rows', () => {
     expect((await chief.get(`${fx.base}/adjustments/${fx.runNumber}/vectors?flagged=1`)).body.total).toBe(1)
     const lines = (await chief.get(`${fx.base}/adjustments/${fx.runNumber}/overview`)).body.lines
     expect(lines.rating[lines.vector.indexOf(1)]).toBe(2)
-    await useDb().update(observationResults).set({ vectorFlagged: false }).where(and(eq(observationResults.adjustmentId, runId), eq(observationResults.kind, 'gnss_baseline')))
+    // its three rows fail in the residual table's rating filter, though no component's w is flagged
+    expect((await chief.get(`${fx.base}/adjustments/${fx.runNumber}/observations?kind=gnss_baseline&rating=fail`)).body.total).toBe(3)
   })
 
-  it('the residual CSV carries the component and the vector test after the usual columns', async () => {
+  it('the residual CSV carries the component and the vector test after the usual columns (the vector flagged above)', async () => {
     const res = await chief.raw(`${fx.base}/adjustments/${fx.runNumber}/export/residuals.csv`)
     expect(res.status).toBe(200)
     const rows = Papa.parse<Record<string, string>>(await res.text(), { header: true, comments: '#', skipEmptyLines: true }).data
     const v = rows.filter((x) => x.kind === 'gnss_baseline')
     expect(v.map((x) => x.component)).toEqual(['dx', 'dy', 'dz'])
-    expect(v[0]).toMatchObject({ vector_statistic: '14.20', vector_critical: '16.27', vector_flagged: 'no', vector_residual_e_mm: '2.10', vector_residual_n_mm: '-3.40', vector_residual_u_mm: '10.20' })
+    expect(v[0]).toMatchObject({ vector_statistic: '14.20', vector_critical: '16.27', vector_flagged: 'yes', vector_residual_e_mm: '2.10', vector_residual_n_mm: '-3.40', vector_residual_u_mm: '10.20' })
     expect(rows.find((x) => x.kind !== 'gnss_baseline')!.vector_statistic).toBe('')
   })
 
-  it('sign-off, its accuracy check and the release files (CSV, LandXML, PDF) work for the run', async () => {
+  it('sign-off, its accuracy check and the release files (CSV, LandXML, PDF) work for the run; the PDF lists the flagged vector once', async () => {
     const s = await surveyor.post(`${fx.base}/adjustments/${fx.runNumber}/signoffs`, { statement: 'Certified for the GNSS test (test).', password: 'tiepoint-demo', acknowledgeFailedTests: true })
     expect(s.status, JSON.stringify(s.body)).toBe(201)
     expect(s.body.stations.length).toBeGreaterThan(1)
@@ -200,6 +210,8 @@ describe('a run whose results hold vector rows', () => {
       if (f.format === 'pdf') {
         const { text } = await extractText(await getDocumentProxy(new Uint8Array(bytes)), { mergePages: true })
         expect(text).toContain(s.body.sha256)
+        // the flagged vector the signer accepted is listed once, not once per component
+        expect(text.match(/gnss baseline/g) ?? []).toHaveLength(1)
       }
     }
   })
