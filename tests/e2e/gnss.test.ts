@@ -16,6 +16,7 @@ import { DEMO_CSV, projectWithNetwork } from '../api/adjustments-fixture'
 let browser: Browser
 let page: Page
 let base: string
+let georeferenced: string
 
 beforeAll(async () => {
   const fx = await projectWithNetwork(DEMO.firm, 'GNSS report e2e', DEMO_CSV)
@@ -37,6 +38,8 @@ beforeAll(async () => {
   })
   await useDb().insert(observationResults).values([row('dx', 1168.528, 0.009), row('dy', 1333.454, -0.004), row('dz', -2.1, 0.018)])
   base = `/f/${DEMO.firm}/projects/${fx.projectId}/runs/${q.body.number}`
+  const g = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS grid e2e ${Date.now()}`, crs: 'EPSG:32633', units: 'm' })
+  georeferenced = `/f/${DEMO.firm}/projects/${g.body.id}`
   browser = await launch()
   page = await newPage(browser)
   await signIn(page, DEMO.chief)
@@ -65,5 +68,20 @@ describe('GNSS vectors in the run report', () => {
     expect(await legend.innerText()).toContain('GNSS vector (1)')
     expect(await page.getByTestId('network-map').getAttribute('data-vectors')).toBe('1')
     await shot(page, 'run-gnss-vectors')
+  })
+
+  it('the typed-in grid takes a vector in three-number fields and stores it', async () => {
+    await page.goto(`${georeferenced}/observations`)
+    await page.getByRole('button', { name: 'Open grid' }).click()
+    await page.getByLabel('Row 1 kind').selectOption('gnss_baseline')
+    await page.getByLabel('Row 1 Instrument at').fill('W01')
+    await page.getByLabel('Row 1 Target').fill('W02')
+    const fields: [string, string][] = [['ΔX m', '-1755.7500'], ['ΔY m', '1963.3372'], ['ΔZ m', '884.3970'], ['σX mm', '3.96'], ['σY mm', '2.63'], ['σZ mm', '5.09'], ['ρXY', '0.2367'], ['ρXZ', '0.6756'], ['ρYZ', '0.2659']]
+    for (const [label, value] of fields) await page.getByLabel(`Row 1 ${label}`, { exact: true }).fill(value)
+    await page.getByRole('button', { name: 'Save typed-in observations' }).click()
+    await page.getByText('1 observation saved as a typed-in set.').waitFor({ timeout: 20_000 })
+    const cell = page.locator('[data-testid="observation-table"] tbody tr').first()
+    await cell.getByText('ΔX −1755.7500').waitFor({ timeout: 20_000 })
+    expect(await cell.innerText()).toContain('ρXY 0.237')
   })
 })
