@@ -74,8 +74,8 @@ describe('GNSS vectors in the run report', () => {
     await page.goto(`${georeferenced}/observations`)
     await page.getByRole('button', { name: 'Open grid' }).click()
     await page.getByLabel('Row 1 kind').selectOption('gnss_baseline')
-    await page.getByLabel('Row 1 Instrument at').fill('W01')
-    await page.getByLabel('Row 1 Target').fill('W02')
+    await page.getByLabel('Row 1 Instrument at', { exact: true }).fill('W01')
+    await page.getByLabel('Row 1 Target', { exact: true }).fill('W02')
     const fields: [string, string][] = [['ΔX m', '-1755.7500'], ['ΔY m', '1963.3372'], ['ΔZ m', '884.3970'], ['σX mm', '3.96'], ['σY mm', '2.63'], ['σZ mm', '5.09'], ['ρXY', '0.2367'], ['ρXZ', '0.6756'], ['ρYZ', '0.2659']]
     for (const [label, value] of fields) await page.getByLabel(`Row 1 ${label}`, { exact: true }).fill(value)
     await page.getByRole('button', { name: 'Save typed-in observations' }).click()
