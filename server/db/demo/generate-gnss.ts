@@ -74,8 +74,8 @@ const dms = (rad: number) => {
   return `${d} ${String(m).padStart(2, '0')} ${s.toFixed(1).padStart(4, '0')}`
 }
 
-export function generateGnssDemo(): string {
-  const normal = prng(SEED)
+/** The invented true positions (grid E, N and height H) the file was measured from. */
+export function gnssDemoStations(): TruthStation[] {
   const [e0, n0] = proj4(PROJ).forward([14.62, 54.41])
   const rel: [string, number, number, number][] = [
     ['W01', 0, 0, 12.418],
@@ -86,7 +86,12 @@ export function generateGnssDemo(): string {
     ['T3', 2210, -760, 5.388],
     ['T4', 3140, -880, 7.915],
   ]
-  const st: TruthStation[] = rel.map(([name, de, dn, h]) => ({ name, east: Math.round((e0! + de) * 1000) / 1000, north: Math.round((n0! + dn) * 1000) / 1000, height: h }))
+  return rel.map(([name, de, dn, h]) => ({ name, east: Math.round((e0! + de) * 1000) / 1000, north: Math.round((n0! + dn) * 1000) / 1000, height: h }))
+}
+
+export function generateGnssDemo(): string {
+  const normal = prng(SEED)
+  const st = gnssDemoStations()
   const opt = { proj4: PROJ, ...GRS80, geoidSeparation: GNSS_DEMO.geoidSeparationM, refractionK: 0.13, sigma: { distance: DISTANCE_M, direction: (DIRECTION_ARCSEC / 3600) * D2R, zenith: (ZENITH_ARCSEC / 3600) * D2R } }
 
   const lines: string[] = [

@@ -4,7 +4,8 @@
 // check of the invented data against its own geometry, not against the engine.
 import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
-import { generateGnssDemo } from '../../../server/db/demo/generate-gnss'
+import { generateGnssDemo, gnssDemoStations } from '../../../server/db/demo/generate-gnss'
+import { adjustNetwork } from '../../../server/engine/index'
 import { GNSS_DEMO } from '../../../server/db/demo/gnss-project'
 import { readObservationCsv } from '../../../server/engine/io/csv'
 import { findCrs } from '../../../shared/crs'
@@ -48,5 +49,22 @@ describe('GNSS demo network', () => {
   it('the project settings name a projected CRS the app offers, on the GRS80 ellipsoid the vectors were made on', () => {
     expect(findCrs(GNSS_DEMO.crs)?.proj4).toMatch(/\+ellps=GRS80/)
     expect(csv).toContain(`N = ${GNSS_DEMO.geoidSeparationM} m`)
+  })
+
+  it('the combined 3D adjustment recovers the invented true positions within 3σ, and the global test passes (the data are consistent)', () => {
+    const out = adjustNetwork({
+      controls: r.controls, observations: r.observations,
+      projection: { proj4: findCrs(GNSS_DEMO.crs)!.proj4, geoidSeparationM: GNSS_DEMO.geoidSeparationM }, refraction: { k: 0.13, sigmaK: 0.05 },
+    })
+    if (!out.ok) throw new Error(out.reason)
+    expect(out.result.globalTest.passed).toBe(true)
+    const truth = new Map(gnssDemoStations().map((s) => [s.name, s]))
+    for (const s of out.result.stations.filter((x) => !x.fixed)) {
+      const t = truth.get(s.name)!
+      expect(Math.abs(s.east! - t.east)).toBeLessThan(3 * s.sdEast! + 1e-4)
+      expect(Math.abs(s.north! - t.north)).toBeLessThan(3 * s.sdNorth! + 1e-4)
+      expect(Math.abs(s.height! - t.height)).toBeLessThan(3 * s.sdHeight! + 1e-4)
+    }
+    expect(out.result.observations.filter((o) => o.kind === 'gnss_baseline').every((o) => o.vectorTest && !o.vectorTest.flagged)).toBe(true)
   })
 })
