@@ -14,6 +14,8 @@ import { adjustments, observationResults, observations, projects } from '../../s
 import { readLandXml } from '../../server/engine/io/landxml'
 import { as, DEMO, type Client } from '../support/http'
 import { counts, fileForm } from './fielddata-helpers'
+import { readFileSync } from 'node:fs'
+import { runDone } from '../support/http'
 import { finishedRun } from './signoffs-fixture'
 
 let chief: Client, other: Client, surveyor: Client
@@ -233,5 +235,88 @@ describe('a run whose results hold vector rows', () => {
     expect(after!.excluded).toBe(true)
     // a foreign firm cannot exclude it
     expect((await other.post(`/api/firms/${DEMO.otherFirm}/projects/${fx.projectId}/adjustments/${fx.runNumber}/exclude`, { observationId: v.id })).status).toBe(404)
+  })
+})
+
+describe('a real 3D run of the GNSS demo file (the combined adjustment)', () => {
+  const demo = readFileSync('server/db/demo/demo-gnss.csv')
+  let api: string
+  let number: number
+  beforeAll(async () => {
+    const r = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS 3D run ${Date.now()}`, crs: 'EPSG:25833', units: 'm' })
+    api = base(r.body.id)
+    await chief.patch(api, { geoidSeparationM: 44.87 })
+    const tol = await chief.post(`/api/firms/${DEMO.firm}/tolerance-profiles`, { kind: 'custom', name: `Loose GNSS rule ${r.body.id}`, mm: 100, ppm: 100, source: 'invented rule for tests' })
+    await chief.patch(api, { toleranceProfileId: tol.body.id })
+    const up = await chief.post(`${api}/observation-sets`, fileForm('demo-gnss.csv', demo))
+    if (up.status !== 201) throw new Error(`upload: ${up.status} ${JSON.stringify(up.body)}`)
+    const q = await chief.post(`${api}/adjustments`, {})
+    if (q.status !== 202) throw new Error(`queue: ${q.status} ${JSON.stringify(q.body)}`)
+    number = q.body.number
+    await runDone(chief, `${api}/adjustments/${number}/status`, 120_000)
+  })
+
+  it('stores one vector row per file vector, each tested, agreeing with its three component rows', async () => {
+    const v = await chief.get(`${api}/adjustments/${number}/vectors?sort=line`)
+    expect(v.body.total).toBe(6) // six gnss_baseline rows in the file (counted by hand)
+    expect(v.body.rows.map((x: any) => x.line)).toEqual([6, 7, 8, 9, 10, 11])
+    const comps = await chief.get(`${api}/adjustments/${number}/observations?kind=gnss_baseline&sort=line&size=50`)
+    expect(comps.body.total).toBe(18)
+    for (const x of v.body.rows) {
+      expect(x.test).not.toBeNull()
+      // one α0, one distribution and one redundancy for the run: the same critical value for every vector (property)
+      expect(x.test.critical).toBe(v.body.rows[0].test.critical)
+      const rows = comps.body.rows.filter((o: any) => o.line === x.line)
+      expect(rows.map((o: any) => o.component).sort()).toEqual(['dx', 'dy', 'dz'])
+      for (const o of rows) expect(o.vectorTest).toEqual(x.test)
+      expect(x.residual).toEqual(['dx', 'dy', 'dz'].map((c) => rows.find((o: any) => o.component === c).residual))
+    }
+    const lines = (await chief.get(`${api}/adjustments/${number}/overview`)).body.lines
+    expect(lines.vector.filter((f: number) => f === 1)).toHaveLength(6)
+  })
+
+  it('signs off, and every release format (CSV, GeoJSON, LandXML, PDF) is made from the 3D run', async () => {
+    const s = await surveyor.post(`${api}/adjustments/${number}/signoffs`, { statement: 'Certified for the GNSS demo (test).', password: 'tiepoint-demo', acknowledgeFailedTests: true })
+    expect(s.status, JSON.stringify(s.body)).toBe(201)
+    const names = s.body.stations.map((x: any) => x.name)
+    expect(names.length).toBeGreaterThan(0)
+    const rel = await chief.post(`${api}/releases`, { signoffId: s.body.id })
+    expect(rel.status, JSON.stringify(rel.body)).toBe(201)
+    expect(rel.body.files.map((f: any) => f.format)).toEqual(['csv', 'geojson', 'landxml', 'pdf'])
+    const list = (await chief.get(`${api}/releases`)).body.find((x: any) => x.id === rel.body.id)
+    for (const f of list.files) {
+      const res = await chief.raw(f.url)
+      expect(res.status).toBe(200)
+      const bytes = Buffer.from(await res.arrayBuffer())
+      if (f.format === 'geojson') {
+        const gj = JSON.parse(bytes.toString('utf8'))
+        expect(gj.features.map((x: any) => x.properties.name)).toEqual(names)
+        // the site was invented near 14.6° E, 54.4° N (server/db/demo/generate-gnss.ts)
+        for (const ft of gj.features) {
+          expect(Math.abs(ft.geometry.coordinates[0] - 14.65)).toBeLessThan(0.1)
+          expect(Math.abs(ft.geometry.coordinates[1] - 54.41)).toBeLessThan(0.1)
+        }
+      }
+      if (f.format === 'csv') {
+        const rows = Papa.parse<Record<string, string>>(bytes.toString('utf8'), { header: true, comments: '#', skipEmptyLines: true }).data
+        expect(rows.map((x) => x.name)).toEqual(names)
+      }
+      if (f.format === 'landxml') expect(readLandXml(bytes.toString('utf8')).ok).toBe(true)
+      if (f.format === 'pdf') {
+        const { text } = await extractText(await getDocumentProxy(new Uint8Array(bytes)), { mergePages: true })
+        expect(text).toContain(s.body.sha256)
+      }
+    }
+  })
+
+  it('excluding a vector from the real run excludes that one observation and the next run still adjusts in 3D', async () => {
+    const v = (await chief.get(`${api}/adjustments/${number}/vectors?sort=line`)).body.rows.find((x: any) => x.line === 11)
+    const r = await chief.post(`${api}/adjustments/${number}/exclude`, { observationId: v.id })
+    expect(r.status).toBe(202)
+    await runDone(chief, `${api}/adjustments/${r.body.number}/status`, 120_000)
+    const next = (await chief.get(`${api}/adjustments/${r.body.number}/vectors?sort=line`)).body.rows
+    const out = next.find((x: any) => x.line === 11)
+    expect(out.excluded).toBe(true)
+    expect(next.filter((x: any) => !x.excluded)).toHaveLength(5)
   })
 })
