@@ -1,17 +1,14 @@
-// The run report with GNSS vectors, in the browser: the vectors section lists
-// each vector with its test and the map's legend names the vectors. Until the
-// 3D adjustment is on main, a real run of the demo network gets one vector's
-// three result rows written into its tables the way the worker's COPY writes
-// them (values invented; χ²(3) critical 16.27 at α0 = 0.001 from the
-// NIST/SEMATECH e-Handbook §1.3.6.7.4).
-import { and, eq } from 'drizzle-orm'
+// The run report with GNSS vectors, in the browser: the seeded second demo
+// project (server/db/demo/demo-gnss.csv, six vectors tied to a traverse) is
+// adjusted by the worker in 3D; its report lists each vector with its test and
+// the map's legend names the vectors. Then a vector is typed into the grid of
+// a georeferenced project.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { closeDb, useDb } from '../../server/db/client'
-import { adjustments, observationResults, observations } from '../../server/db/schema'
+import { closeDb } from '../../server/db/client'
+import { GNSS_DEMO } from '../../server/db/demo/gnss-project'
 import { launch, newPage, shot, signIn } from '../support/browser'
 import { as, DEMO, runDone } from '../support/http'
-import { DEMO_CSV, projectWithNetwork } from '../api/adjustments-fixture'
 
 let browser: Browser
 let page: Page
@@ -19,25 +16,14 @@ let base: string
 let georeferenced: string
 
 beforeAll(async () => {
-  const fx = await projectWithNetwork(DEMO.firm, 'GNSS report e2e', DEMO_CSV)
   const chief = await as(DEMO.chief)
-  const api = `/api/firms/${DEMO.firm}/projects/${fx.projectId}`
-  const q = await chief.post(`${api}/adjustments`, {})
-  if (q.status !== 202) throw new Error(`queue: ${q.status} ${JSON.stringify(q.body)}`)
-  await runDone(chief, `${api}/adjustments/${q.body.number}/status`, 90_000)
-  const [run] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, fx.projectId), eq(adjustments.number, q.body.number)))
-  // the vector's own observation row, so the report can offer to exclude it
-  const [obs] = await useDb().insert(observations).values({
-    firmId: fx.firmId, projectId: fx.projectId, setId: fx.setId, line: 900, kind: 'gnss_baseline', at: 'CP1', from: null, to: 'CP2', value: 1774.0,
-    unit: 'm', vector: { d: [1168.528, 1333.454, -2.1], sigma: [0.003, 0.003, 0.003], correlation: null },
-  }).returning()
-  const row = (component: 'dx' | 'dy' | 'dz', observed: number, residual: number) => ({
-    firmId: run!.firmId, adjustmentId: run!.id, observationId: obs!.id, line: 900, kind: 'gnss_baseline' as const, component, at: 'CP1', from: null, to: 'CP2',
-    observed, adjusted: observed + residual, valueUnit: 'm', residual, sigma: 0.003, residualUnit: 'm', redundancy: 0.6, w: residual / 0.003,
-    vectorStatistic: 21.7, vectorCritical: 16.27, vectorDistribution: 'chi2', vectorFlagged: true, residualE: 0.0151, residualN: -0.0042, residualU: 0.0203,
-  })
-  await useDb().insert(observationResults).values([row('dx', 1168.528, 0.009), row('dy', 1333.454, -0.004), row('dz', -2.1, 0.018)])
-  base = `/f/${DEMO.firm}/projects/${fx.projectId}/runs/${q.body.number}`
+  const projects = await chief.get(`/api/firms/${DEMO.firm}/projects`)
+  const demo = projects.body.find((p: { name: string }) => p.name === GNSS_DEMO.name)
+  if (!demo) throw new Error('the seeded GNSS demo project is missing')
+  const api = `/api/firms/${DEMO.firm}/projects/${demo.id}`
+  // the seed queued run 1; the worker adjusts it in 3D
+  await runDone(chief, `${api}/adjustments/1/status`, 120_000)
+  base = `/f/${DEMO.firm}/projects/${demo.id}/runs/1`
   const g = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS grid e2e ${Date.now()}`, crs: 'EPSG:32633', units: 'm' })
   georeferenced = `/f/${DEMO.firm}/projects/${g.body.id}`
   browser = await launch()
@@ -50,23 +36,22 @@ afterAll(async () => {
 })
 
 describe('GNSS vectors in the run report', () => {
-  it('lists the vector with its test and residual in E/N/U, and the map legend shows vectors', async () => {
+  it('lists the six vectors with their tests and residuals in E/N/U, and the map legend shows vectors', async () => {
     await page.goto(base)
     const table = page.getByTestId('vector-table')
     await table.waitFor({ timeout: 30_000 })
     const rows = table.locator('tbody tr[data-line]')
-    expect(await rows.count()).toBe(1)
-    const text = await rows.first().innerText()
-    expect(text).toContain('CP1 → CP2')
-    expect(text).toContain('21.70')
-    expect(text).toContain('16.27')
-    expect(text).toContain('✕ flagged')
-    expect(text).toContain('15.1') // residual east, mm
-    expect(await rows.first().getByRole('button', { name: /Exclude vector CP1 to CP2/ }).count()).toBe(1)
+    expect(await rows.count()).toBe(6) // six gnss_baseline rows in the demo file
+    const w01w02 = table.locator('tbody tr[data-line="6"]')
+    const text = await w01w02.innerText()
+    expect(text).toContain('W01 → W02')
+    expect(text).toContain('−1755.7500') // observed ΔX as in the file
+    expect(text).toMatch(/✓ passes|✕ flagged/)
+    expect(await w01w02.getByRole('button', { name: /Exclude vector W01 to W02/ }).count()).toBe(1)
     const legend = page.getByTestId('legend-vectors')
     await legend.waitFor({ timeout: 30_000 })
-    expect(await legend.innerText()).toContain('GNSS vector (1)')
-    expect(await page.getByTestId('network-map').getAttribute('data-vectors')).toBe('1')
+    expect(await legend.innerText()).toContain('GNSS vector (6)')
+    expect(await page.getByTestId('network-map').getAttribute('data-vectors')).toBe('6')
     await shot(page, 'run-gnss-vectors')
   })
 
