@@ -131,10 +131,10 @@ describe('a run whose results hold vector rows', () => {
   const test = { vectorStatistic: 14.2, vectorCritical: 16.27, vectorDistribution: 'chi2', vectorFlagged: false, residualE: 0.0021, residualN: -0.0034, residualU: 0.0102 }
 
   beforeAll(async () => {
-    // A real run of the (local-plane) demo network; its result tables then get a
-    // vector's rows. Until the 3D adjustment is on main no run computes vectors,
-    // and a projected CRS set after the run would supersede it, so GeoJSON (not
-    // made for a local plane) is not part of this release.
+    // A real run of the (local-plane) demo network whose result tables then get
+    // a vector's rows with chosen values — a flagged vector, say, which the
+    // consistent demo data never gives. GeoJSON (not made for a local plane) is
+    // checked on the real 3D run below.
     fx = await finishedRun(chief, 'GNSS results')
     const [run] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, fx.projectId), eq(adjustments.number, fx.runNumber)))
     runId = run!.id
