@@ -11,6 +11,7 @@ import proj4 from 'proj4'
 import PDFDocument from 'pdfkit'
 import { XMLBuilder } from 'fast-xml-parser'
 import { METRES_PER } from '../engine/io/units'
+import { CHART, VERDICT } from '../../shared/palette'
 import type { AccuracyCheck } from './accuracy-check'
 import type { FlaggedObservation, NetworkDrawing, RunSummaryDto, SignedStation } from './signoffs'
 import { sha256Hex } from './passwords'
@@ -326,6 +327,40 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     })
   }
   const style = (w: Weight, s: number, colour = '#0f172a') => { weight = w; size = s; doc.fillColor(colour) }
+  const widthOf = (text: string) => fontRuns(text).reduce((sum, r) => sum + doc.font(`${weight}-${r.subset}`).fontSize(size).widthOfString(r.text), 0)
+  /**
+   * σ̂ as σ with a circumflex drawn over it: pdfSafe drops U+0302, which no
+   * font file we ship places on σ. The hat sits just above the x-height of the
+   * Greek file's σ, centred on the letter, at the text's size and colour.
+   */
+  const hatOver = (x0: number, x1: number, y: number) => {
+    const font = (doc as unknown as { _font: { ascender: number; font?: { xHeight?: number; unitsPerEm?: number } } })._font
+    const baseline = y + (font.ascender / 1000) * size
+    // IBM Plex Sans: x-height 516 of 1000 units, read from the font when fontkit exposes it
+    const xHeight = font.font?.xHeight && font.font.unitsPerEm ? font.font.xHeight / font.font.unitsPerEm : 0.516
+    const top = baseline - xHeight * size
+    const cx = (x0 + x1) / 2
+    doc.save().lineWidth(0.08 * size).lineJoin('miter').strokeColor('#0f172a')
+      .moveTo(cx - 0.2 * size, top - 0.1 * size).lineTo(cx, top - 0.3 * size).lineTo(cx + 0.2 * size, top - 0.1 * size).stroke().restore()
+  }
+  /** `label: value` on one line where the label names σ̂ once */
+  const hatLine = (label: string, value: string) => {
+    const [before = '', after = ''] = label.split('σ\u0302')
+    if (doc.y + 14 > bottom()) doc.addPage()
+    const y = doc.y
+    let x = left
+    const put = (t: string) => { cell(t, x, y, width, 'left'); x += widthOf(t) }
+    style('bold', 9)
+    put(before)
+    const sx = x
+    put('σ')
+    hatOver(sx, x, y)
+    put(`${after}: `)
+    style('body', 9)
+    put(value)
+    doc.x = left
+    doc.y = y + doc.currentLineHeight(true)
+  }
   const heading = (t: string) => {
     if (doc.y + 40 > bottom()) doc.addPage()
     doc.moveDown(0.8)
@@ -388,7 +423,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   heading('Adjustment')
   line('Run', `${r.number}${r.finishedAt ? `, finished ${r.finishedAt.slice(0, 19).replace('T', ' ')} UTC` : ''}`)
   if (r.counts) line('Observations, unknowns, redundancy', `${r.counts.n}, ${r.counts.u}, ${r.counts.r}`)
-  if (r.sigma0 !== null) line('A-posteriori standard deviation of unit weight σ0', r.sigma0.toFixed(3))
+  if (r.sigma0 !== null) hatLine('A-posteriori standard deviation of unit weight σ\u03020', r.sigma0.toFixed(3))
   if (r.globalTest) {
     const g = r.globalTest
     line('Global test (χ²)', `${g.passed === null ? 'not applicable (no redundancy)' : g.passed ? 'passed' : 'FAILED'}: statistic ${g.statistic.toFixed(2)}, acceptance interval ${g.lower.toFixed(2)} to ${g.upper.toFixed(2)}`)
@@ -435,7 +470,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   const acknowledged = (c as AccuracyCheck & { acknowledgedFailedTests?: string[] }).acknowledgedFailedTests ?? []
   if (acknowledged.length) {
     doc.moveDown(0.3)
-    style('bold', 9, '#b45309')
+    style('bold', 9, VERDICT.watch)
     write(`The signer acknowledged that run ${r.number} ${acknowledged.join(' and ')}, and signed regardless under their own responsibility.`, { x: left })
     style('body', 9)
     const flagged = input.flagged ?? []
@@ -496,7 +531,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     const maxA = Math.max(0, ...net.stations.map((s) => s.semiMajor95 ?? 0))
     const factor = maxA > 0 ? nice((0.06 * width) / scale / maxA) : 0
     if (factor > 0) {
-      doc.lineWidth(0.6).strokeColor('#0072B2')
+      doc.lineWidth(0.6).strokeColor(CHART.newStation)
       for (const s of net.stations) {
         if (s.fixed || !s.semiMajor95 || s.semiMinor95 === null || s.azimuthDeg === null) continue
         doc.save().translate(px(s.east), py(s.north)).rotate(s.azimuthDeg - 90)
