@@ -12,6 +12,7 @@ import PDFDocument from 'pdfkit'
 import { XMLBuilder } from 'fast-xml-parser'
 import { METRES_PER } from '../engine/io/units'
 import { CHART, VERDICT } from '../../shared/palette'
+import { naturalSortBy } from '../../shared/natural-sort'
 import type { AccuracyCheck } from './accuracy-check'
 import type { FlaggedObservation, NetworkDrawing, RunSummaryDto, SignedStation } from './signoffs'
 import { sha256Hex } from './passwords'
@@ -70,6 +71,15 @@ export function pdfSafe(text: string): string {
   return text.replace(/≤/g, 'at most').replace(/≥/g, 'at least').replace(/√/g, 'sqrt').replace(/\u0302/g, '')
 }
 
+/**
+ * The signed stations as every file lists them: in natural order of their
+ * names (KF2 before KF10). The sign-off keeps its own canonical order for its
+ * SHA-256 (server/services/signoffs.ts), which this does not touch.
+ */
+export function signedInOrder(input: DeliverableInput): SignedStation[] {
+  return naturalSortBy(input.signoff.stations, (s) => s.name)
+}
+
 export function fileBase(input: DeliverableInput): string {
   const slug = input.project.name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 40) || 'project'
   return `${slug}-release-${input.release.id}`
@@ -80,7 +90,7 @@ export function fileBase(input: DeliverableInput): string {
 /** Header comment lines (`#`), then one row per signed station, values in the project's units. */
 export function buildCsv(input: DeliverableInput): string {
   const u = input.project.units
-  const rows = input.signoff.stations.map((s) => ({
+  const rows = signedInOrder(input).map((s) => ({
     name: s.name,
     kind: s.kind,
     [`east_${u}`]: fmt(toUnits(s.east, u)),
@@ -125,7 +135,7 @@ export function toWgs84(definition: string, eastM: number, northM: number): [num
 export function buildGeoJson(input: DeliverableInput): string | null {
   const def = input.project.crsDefinition
   if (input.project.crs === 'local' || !def) return null
-  const features = input.signoff.stations.map((s) => {
+  const features = signedInOrder(input).map((s) => {
     const [lon, lat] = toWgs84(def, s.east, s.north)
     return {
       type: 'Feature' as const,
@@ -197,7 +207,7 @@ export function buildLandXml(input: DeliverableInput): string {
       Application: { '@_name': 'Tiepoint', '@_manufacturer': 'Tiepoint', '@_version': '1' },
       CgPoints: {
         '@_name': `Sign-off ${input.signoff.id} by ${input.signoff.signerName}`,
-        CgPoint: input.signoff.stations.map((s) => ({
+        CgPoint: signedInOrder(input).map((s) => ({
           '@_name': s.name,
           '@_pntSurv': 'control',
           '@_desc': `${s.kind}; sd E/N/H ${[s.sdEast, s.sdNorth, s.sdHeight].map((v) => fmt(toUnits(v, u))).join('/')} ${u}`,
@@ -433,16 +443,17 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   heading('Signed coordinates')
   const pu = u === 'm' ? 'mm' : u
   const prec = (v: number | null) => (v === null ? '—' : u === 'm' ? (v * 1000).toFixed(1) : fmt(toUnits(v, u)))
+  const signed = signedInOrder(input)
   table([
     { title: 'Station', width: 56, align: 'left' }, { title: 'Status', width: 36, align: 'left' },
     { title: `East (${u})`, width: 62 }, { title: `North (${u})`, width: 64 }, { title: `Height (${u})`, width: 50 },
     { title: `σE (${pu})`, width: 36 }, { title: `σN (${pu})`, width: 36 }, { title: `σH (${pu})`, width: 36 },
     { title: `a95 (${pu})`, width: 40 }, { title: `b95 (${pu})`, width: 40 }, { title: 'az (°)', width: 59 },
-  ], input.signoff.stations.map((s) => [
+  ], signed.map((s) => [
     s.name, s.fixed ? 'held' : s.kind === 'control' ? 'control' : 'new',
     fmt(toUnits(s.east, u)), fmt(toUnits(s.north, u)), s.height === null ? '—' : fmt(toUnits(s.height, u)),
     prec(s.sdEast), prec(s.sdNorth), prec(s.sdHeight), prec(s.semiMajor95), prec(s.semiMinor95), s.azimuthDeg === null ? '—' : s.azimuthDeg.toFixed(1),
-  ]), (i) => input.signoff.stations[i]!.fixed)
+  ]), (i) => signed[i]!.fixed)
   doc.moveDown(0.3)
   style('body', 7.5, '#475569')
   write('Held: control held fixed in the adjustment (printed in bold; its σ is zero by definition). σ: standard deviation (1σ). a95, b95: semi-axes of the absolute error ellipse at 95 % confidence; az: azimuth of a95 clockwise from grid north.', { x: left })
