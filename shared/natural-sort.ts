@@ -1,6 +1,6 @@
 // Natural order of station names: digit runs compare by their value, so KF2
 // comes before KF10 and P9 before P10. The same order as PostgreSQL's
-// "tiepoint_natural" collation (migration 0006: ICU root locale with numeric
+// "tiepoint_natural" collation (migration 0007: ICU root locale with numeric
 // ordering), so a list sorted in SQL and one sorted here agree; names that
 // collate equal (KF02, KF2) fall back to their code units, as PostgreSQL's
 // deterministic collations do.

@@ -41,6 +41,8 @@ export const CHART = {
   lineFail: GRAPHIC.fail,
   control: SLATE[900],
   newStation: TIDE[700],
+  /** GNSS baseline vectors: a violet no verdict uses */
+  vector: '#6d28d9',
   highlight: TIDE[500],
   grid: SLATE[200],
   /** the map's background and the fill of stations not held */

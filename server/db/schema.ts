@@ -375,6 +375,18 @@ export const observationResults = pgTable('observation_results', {
   combinedFactor: doublePrecision(),
   elevationFactor: doublePrecision(),
   scaleFactor: doublePrecision(),
+  /**
+   * gnss_baseline component rows: the test of the whole vector (the same on its
+   * three rows) — statistic, critical value and its distribution, flag — and
+   * the residual vector in local east/north/up at `at` (m)
+   */
+  vectorStatistic: doublePrecision(),
+  vectorCritical: doublePrecision(),
+  vectorDistribution: text(),
+  vectorFlagged: boolean(),
+  residualE: doublePrecision(),
+  residualN: doublePrecision(),
+  residualU: doublePrecision(),
 }, (t) => [runResultKey('observation_results_run_fk', t), index('observation_results_firm_run').on(t.firmId, t.adjustmentId)])
 
 export const relativePrecisions = pgTable('relative_precisions', {

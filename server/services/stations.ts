@@ -59,7 +59,7 @@ export function stationDto(s: Station, observationCount?: number): StationDto {
   }
 }
 
-/** a station-name column in natural order, KF2 before KF10 (migration 0006, shared/natural-sort.ts) */
+/** a station-name column in natural order, KF2 before KF10 (migration 0007, shared/natural-sort.ts) */
 export const natural = (column: AnyColumn) => sql`${column} collate ${sql.identifier(NATURAL_COLLATION)}`
 
 export async function listStations(ctx: FirmContext, project: Project): Promise<StationDto[]> {
