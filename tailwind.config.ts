@@ -1,8 +1,10 @@
 // Tiepoint design tokens: a neutral slate base, one brand colour of our own
 // (a deep teal we call "tide"), and a separate colour-blind-safe scale for test
 // results (blue = pass, amber = watch, vermilion = fail; Okabe–Ito hues),
-// always paired with a word or icon in the UI.
+// always paired with a word or icon in the UI. The values live in
+// shared/palette.ts, which the map and the histogram read too.
 import type { Config } from 'tailwindcss'
+import { TIDE, VERDICT } from './shared/palette'
 
 export default {
   content: ['./components/**/*.vue', './pages/**/*.vue', './layouts/**/*.vue', './app.vue', './error.vue', './composables/**/*.ts'],
@@ -12,14 +14,11 @@ export default {
         sans: ['"IBM Plex Sans"', 'system-ui', 'sans-serif'],
       },
       colors: {
-        tide: {
-          50: '#effaf9', 100: '#d6f1ee', 200: '#aee2dd', 300: '#7ccbc5', 400: '#4aaea9',
-          500: '#2f918d', 600: '#237473', 700: '#1f5d5d', 800: '#1c4b4c', 900: '#193f40',
-        },
+        tide: { ...TIDE },
         verdict: {
-          pass: '#0072B2', 'pass-bg': '#e6f1f8',
-          watch: '#B07A00', 'watch-bg': '#fdf3dc',
-          fail: '#D55E00', 'fail-bg': '#fbebe0',
+          pass: VERDICT.pass, 'pass-bg': VERDICT.passBg,
+          watch: VERDICT.watch, 'watch-bg': VERDICT.watchBg,
+          fail: VERDICT.fail, 'fail-bg': VERDICT.failBg,
         },
       },
       fontSize: {

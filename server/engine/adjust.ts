@@ -47,7 +47,7 @@ import type {
 } from './types'
 
 export const DEFAULT_SETTINGS: AdjustSettings = {
-  datum: 'as-given',
+  datum: 'as-stored',
   scaling: 'a-posteriori',
   confidence: 0.95,
   alpha: 0.05,

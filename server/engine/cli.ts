@@ -6,7 +6,7 @@
 //
 // Options carry the same meaning as a project's settings:
 //   --json
-//   --profile "a=2,b=2,dir=3,zen=4,ci=1,ct=1.5,lev=2" | --profile FILE.json   (./profile)
+//   --profile "distanceMm=2,distancePpm=2,directionArcsec=3" | --profile FILE.json   (./profile; short keys a, b, dir, … also work)
 //   --crs EPSG:<code>            a projected CRS of the bundled list (shared/crs.ts)
 //   --proj4 "<definition>"       or any projected CRS by its proj4 definition
 //   --geoid-separation METRES    N for the whole network (ellipsoidal = height + N)

@@ -16,9 +16,10 @@ export function validateSettings(s: AdjustSettings): AdjustSettings {
   prob(s.alpha0, 'alpha0')
   prob(s.beta0, 'beta0')
   if (!(Number.isInteger(s.maxIterations) && s.maxIterations >= 1)) fail('input', 'setting maxIterations must be a positive integer')
-  if (s.datum !== 'as-given' && s.datum !== 'free') fail('input', `setting datum must be 'as-given' or 'free'`)
+  if (s.datum !== 'as-stored' && s.datum !== 'as-given' && s.datum !== 'free') fail('input', `setting datum must be 'as-stored' or 'free'`)
   if (s.scaling !== 'a-posteriori' && s.scaling !== 'a-priori') fail('input', `setting scaling must be 'a-posteriori' or 'a-priori'`)
-  return s
+  // one word for people: the former 'as-given' reads as 'as-stored' from here on
+  return s.datum === 'as-given' ? { ...s, datum: 'as-stored' } : s
 }
 
 export function validateProfile(p: InstrumentProfile): void {

@@ -125,7 +125,7 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
     // three translations as an exact datum defect
     const other = input.observations.find((o) => !o.excluded && o.kind !== 'gnss_baseline' && o.kind !== 'slope_distance')
     if (other) {
-      fail('input', `line ${other.line}, column kind: a free 3D network takes GNSS baselines and slope distances only — a ${other.kind.replace('_', ' ')} is measured against the ellipsoid normal, which a free translation turns; hold one station in E, N and H instead (datum 'as-given')`)
+      fail('input', `line ${other.line}, column kind: a free 3D network takes GNSS baselines and slope distances only — a ${other.kind.replace('_', ' ')} is measured against the ellipsoid normal, which a free translation turns; hold one station in E, N and H instead (datum 'as-stored')`)
     }
   }
   const ell: Ellipsoid = { a: proj.a, es: proj.es }

@@ -1,13 +1,14 @@
-// The instrument profile as the command line takes it: a short list of
-// key=value pairs ("a=2,b=2,dir=3,zen=4,ci=1,ct=1.5,lev=2") or the path of a
-// JSON file holding one object with the same keys (short or full field names).
+// The instrument profile as the command line takes it: key=value pairs
+// ("distanceMm=2,distancePpm=2,directionArcsec=3") or the path of a JSON file
+// holding one object. The names are the API's own instrument-profile fields;
+// the short keys (a, b, dir, zen, ci, ct, lev) are still accepted.
 // Unnamed fields keep DEFAULT_PROFILE's value. Units are those of the profile:
 // mm, ppm, arcseconds, mm/√km.
 
 import { DEFAULT_PROFILE } from './sigma'
 import type { InstrumentProfile } from './types'
 
-/** short key → InstrumentProfile field */
+/** short key (still accepted) → InstrumentProfile field, the name to use */
 export const PROFILE_KEYS: Record<string, keyof InstrumentProfile> = {
   a: 'distanceMm',
   b: 'distancePpm',
@@ -28,7 +29,7 @@ export type ProfileParse = { ok: true; profile: InstrumentProfile } | { ok: fals
  */
 export function parseProfileArg(arg: string, readFile: (path: string) => string): ProfileParse {
   const text = arg.trim()
-  if (!text) return { ok: false, message: '--profile: give key=value pairs (a, b, dir, zen, ci, ct, lev) or a JSON file' }
+  if (!text) return { ok: false, message: `--profile: give key=value pairs (${[...FIELDS].join(', ')}) or a JSON file` }
   let entries: [string, unknown][]
   if (/^[A-Za-z]+\s*=/.test(text)) {
     entries = []
@@ -58,7 +59,7 @@ export function parseProfileArg(arg: string, readFile: (path: string) => string)
   const seen = new Set<string>()
   for (const [key, value] of entries) {
     const field = PROFILE_KEYS[key] ?? (FIELDS.has(key) ? (key as keyof InstrumentProfile) : undefined)
-    if (!field) return { ok: false, message: `--profile, field ${key}: unknown (use ${Object.keys(PROFILE_KEYS).join(', ')})` }
+    if (!field) return { ok: false, message: `--profile, field ${key}: unknown (use ${[...FIELDS].join(', ')}; short keys ${Object.keys(PROFILE_KEYS).join(', ')} also work)` }
     if (seen.has(field)) return { ok: false, message: `--profile, field ${key}: given twice` }
     seen.add(field)
     if (typeof value !== 'number' || !Number.isFinite(value) || value < 0) {

@@ -7,6 +7,13 @@ import type { AdjustmentResult, NetworkSummary, ObservationResult } from './type
 const f = (v: number | null | undefined, d: number, w = 0): string =>
   (v === null || v === undefined || !Number.isFinite(v) ? '—' : v.toFixed(d)).padStart(w)
 
+/** The datum in the words the app uses for the same run setting. */
+export const DATUM_WORDS: Record<AdjustmentResult['settings']['datum'], string> = {
+  'as-stored': 'control as stored (fixed where its σ is blank, weighted where given)',
+  'as-given': 'control as stored (fixed where its σ is blank, weighted where given)',
+  free: 'free network (inner constraints on all stations)',
+}
+
 export const CAUTION =
   'Caution: these coordinates must be checked against local regulations and licensed practice before use.'
 
@@ -26,7 +33,7 @@ export function formatReport(result: AdjustmentResult): string {
   const weak = result.observations.filter((o) => o.weak && !o.excluded && o.redundancy !== null)
   out.push(`Flagged observations: ${flagged.length}; weakly checked (r_i < ${result.settings.weakRedundancy}): ${weak.length}.`)
   out.push('')
-  out.push(`Settings: datum ${result.settings.datum}, scaling ${result.settings.scaling}, α = ${result.settings.alpha}, α0 = ${result.settings.alpha0}, β0 = ${result.settings.beta0}`)
+  out.push(`Settings: datum ${DATUM_WORDS[result.settings.datum]}, scaling ${result.settings.scaling}, α = ${result.settings.alpha}, α0 = ${result.settings.alpha0}, β0 = ${result.settings.beta0}`)
   out.push(`Iterations ${result.iterations}; observations n = ${result.counts.n}, unknowns u = ${result.counts.u}, redundancy r = ${result.counts.r}`)
   const gr = result.gridReduction
   const n3 = result.network3d

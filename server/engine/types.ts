@@ -92,8 +92,13 @@ export type ReadResult =
 // ---- adjustment engine: settings and results ----------------------------------
 
 export interface AdjustSettings {
-  /** 'as-given': control held fixed or weighted as read; 'free': inner constraints on all stations */
-  datum: 'as-given' | 'free'
+  /**
+   * 'as-stored': control held as stored with it (fixed when its σ is blank,
+   * weighted otherwise), the same words as the app's run setting; 'free': inner
+   * constraints on all stations. 'as-given' is the former name of 'as-stored',
+   * still accepted (validateSettings turns it into 'as-stored').
+   */
+  datum: 'as-stored' | 'free' | 'as-given'
   /** scale precisions by the a-posteriori σ̂0² (default) or by the a-priori σ0 = 1 */
   scaling: 'a-posteriori' | 'a-priori'
   confidence: number

@@ -12,6 +12,8 @@ import PDFDocument from 'pdfkit'
 import { XMLBuilder } from 'fast-xml-parser'
 import { METRES_PER } from '../engine/io/units'
 import { formatPrecision, precisionScale, type PrecisionUnit } from '../../shared/precision'
+import { CHART, VERDICT } from '../../shared/palette'
+import { naturalSortBy } from '../../shared/natural-sort'
 import type { AccuracyCheck } from './accuracy-check'
 import type { FlaggedObservation, NetworkDrawing, RunSummaryDto, SignedStation } from './signoffs'
 import { sha256Hex } from './passwords'
@@ -70,6 +72,15 @@ export function pdfSafe(text: string): string {
   return text.replace(/≤/g, 'at most').replace(/≥/g, 'at least').replace(/√/g, 'sqrt').replace(/\u0302/g, '')
 }
 
+/**
+ * The signed stations as every file lists them: in natural order of their
+ * names (KF2 before KF10). The sign-off keeps its own canonical order for its
+ * SHA-256 (server/services/signoffs.ts), which this does not touch.
+ */
+export function signedInOrder(input: DeliverableInput): SignedStation[] {
+  return naturalSortBy(input.signoff.stations, (s) => s.name)
+}
+
 export function fileBase(input: DeliverableInput): string {
   const slug = input.project.name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 40) || 'project'
   return `${slug}-release-${input.release.id}`
@@ -83,7 +94,7 @@ export function buildCsv(input: DeliverableInput): string {
   const ps = precisionScale(u, input.project.precisionUnit)
   // one decimal more than on screen: the file is for further computation
   const prec = (v: number | null) => (v === null ? '' : formatPrecision(v, ps, ps.decimals + 1))
-  const rows = input.signoff.stations.map((s) => ({
+  const rows = signedInOrder(input).map((s) => ({
     name: s.name,
     kind: s.kind,
     [`east_${u}`]: fmt(toUnits(s.east, u)),
@@ -128,7 +139,7 @@ export function toWgs84(definition: string, eastM: number, northM: number): [num
 export function buildGeoJson(input: DeliverableInput): string | null {
   const def = input.project.crsDefinition
   if (input.project.crs === 'local' || !def) return null
-  const features = input.signoff.stations.map((s) => {
+  const features = signedInOrder(input).map((s) => {
     const [lon, lat] = toWgs84(def, s.east, s.north)
     return {
       type: 'Feature' as const,
@@ -200,7 +211,7 @@ export function buildLandXml(input: DeliverableInput): string {
       Application: { '@_name': 'Tiepoint', '@_manufacturer': 'Tiepoint', '@_version': '1' },
       CgPoints: {
         '@_name': `Sign-off ${input.signoff.id} by ${input.signoff.signerName}`,
-        CgPoint: input.signoff.stations.map((s) => ({
+        CgPoint: signedInOrder(input).map((s) => ({
           '@_name': s.name,
           '@_pntSurv': 'control',
           '@_desc': `${s.kind}; sd E/N/H ${[s.sdEast, s.sdNorth, s.sdHeight].map((v) => fmt(toUnits(v, u))).join('/')} ${u}`,
@@ -330,6 +341,40 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     })
   }
   const style = (w: Weight, s: number, colour = '#0f172a') => { weight = w; size = s; doc.fillColor(colour) }
+  const widthOf = (text: string) => fontRuns(text).reduce((sum, r) => sum + doc.font(`${weight}-${r.subset}`).fontSize(size).widthOfString(r.text), 0)
+  /**
+   * σ̂ as σ with a circumflex drawn over it: pdfSafe drops U+0302, which no
+   * font file we ship places on σ. The hat sits just above the x-height of the
+   * Greek file's σ, centred on the letter, at the text's size and colour.
+   */
+  const hatOver = (x0: number, x1: number, y: number) => {
+    const font = (doc as unknown as { _font: { ascender: number; font?: { xHeight?: number; unitsPerEm?: number } } })._font
+    const baseline = y + (font.ascender / 1000) * size
+    // IBM Plex Sans: x-height 516 of 1000 units, read from the font when fontkit exposes it
+    const xHeight = font.font?.xHeight && font.font.unitsPerEm ? font.font.xHeight / font.font.unitsPerEm : 0.516
+    const top = baseline - xHeight * size
+    const cx = (x0 + x1) / 2
+    doc.save().lineWidth(0.08 * size).lineJoin('miter').strokeColor('#0f172a')
+      .moveTo(cx - 0.2 * size, top - 0.1 * size).lineTo(cx, top - 0.3 * size).lineTo(cx + 0.2 * size, top - 0.1 * size).stroke().restore()
+  }
+  /** `label: value` on one line where the label names σ̂ once */
+  const hatLine = (label: string, value: string) => {
+    const [before = '', after = ''] = label.split('σ\u0302')
+    if (doc.y + 14 > bottom()) doc.addPage()
+    const y = doc.y
+    let x = left
+    const put = (t: string) => { cell(t, x, y, width, 'left'); x += widthOf(t) }
+    style('bold', 9)
+    put(before)
+    const sx = x
+    put('σ')
+    hatOver(sx, x, y)
+    put(`${after}: `)
+    style('body', 9)
+    put(value)
+    doc.x = left
+    doc.y = y + doc.currentLineHeight(true)
+  }
   const heading = (t: string) => {
     if (doc.y + 40 > bottom()) doc.addPage()
     doc.moveDown(0.8)
@@ -393,7 +438,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   heading('Adjustment')
   line('Run', `${r.number}${r.finishedAt ? `, finished ${r.finishedAt.slice(0, 19).replace('T', ' ')} UTC` : ''}`)
   if (r.counts) line('Observations, unknowns, redundancy', `${r.counts.n}, ${r.counts.u}, ${r.counts.r}`)
-  if (r.sigma0 !== null) line('A-posteriori standard deviation of unit weight σ0', r.sigma0.toFixed(3))
+  if (r.sigma0 !== null) hatLine('A-posteriori standard deviation of unit weight σ\u03020', r.sigma0.toFixed(3))
   if (r.globalTest) {
     const g = r.globalTest
     line('Global test (χ²)', `${g.passed === null ? 'not applicable (no redundancy)' : g.passed ? 'passed' : 'FAILED'}: statistic ${g.statistic.toFixed(2)}, acceptance interval ${g.lower.toFixed(2)} to ${g.upper.toFixed(2)}`)
@@ -403,16 +448,17 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   heading('Signed coordinates')
   const pu = ps.label
   const prec = (v: number | null) => formatPrecision(v, ps)
+  const signed = signedInOrder(input)
   table([
     { title: 'Station', width: 56, align: 'left' }, { title: 'Status', width: 36, align: 'left' },
     { title: `East (${u})`, width: 62 }, { title: `North (${u})`, width: 64 }, { title: `Height (${u})`, width: 50 },
     { title: `σE (${pu})`, width: 36 }, { title: `σN (${pu})`, width: 36 }, { title: `σH (${pu})`, width: 36 },
     { title: `a95 (${pu})`, width: 40 }, { title: `b95 (${pu})`, width: 40 }, { title: 'az (°)', width: 59 },
-  ], input.signoff.stations.map((s) => [
+  ], signed.map((s) => [
     s.name, s.fixed ? 'held' : s.kind === 'control' ? 'control' : 'new',
     fmt(toUnits(s.east, u)), fmt(toUnits(s.north, u)), s.height === null ? '—' : fmt(toUnits(s.height, u)),
     prec(s.sdEast), prec(s.sdNorth), prec(s.sdHeight), prec(s.semiMajor95), prec(s.semiMinor95), s.azimuthDeg === null ? '—' : s.azimuthDeg.toFixed(1),
-  ]), (i) => input.signoff.stations[i]!.fixed)
+  ]), (i) => signed[i]!.fixed)
   doc.moveDown(0.3)
   style('body', 7.5, '#475569')
   write('Held: control held fixed in the adjustment (printed in bold; its σ is zero by definition). σ: standard deviation (1σ). a95, b95: semi-axes of the absolute error ellipse at 95 % confidence; az: azimuth of a95 clockwise from grid north.', { x: left })
@@ -440,7 +486,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   const acknowledged = (c as AccuracyCheck & { acknowledgedFailedTests?: string[] }).acknowledgedFailedTests ?? []
   if (acknowledged.length) {
     doc.moveDown(0.3)
-    style('bold', 9, '#b45309')
+    style('bold', 9, VERDICT.watch)
     write(`The signer acknowledged that run ${r.number} ${acknowledged.join(' and ')}, and signed regardless under their own responsibility.`, { x: left })
     style('body', 9)
     const flagged = input.flagged ?? []
@@ -501,7 +547,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     const maxA = Math.max(0, ...net.stations.map((s) => s.semiMajor95 ?? 0))
     const factor = maxA > 0 ? nice((0.06 * width) / scale / maxA) : 0
     if (factor > 0) {
-      doc.lineWidth(0.6).strokeColor('#0072B2')
+      doc.lineWidth(0.6).strokeColor(CHART.newStation)
       for (const s of net.stations) {
         if (s.fixed || !s.semiMajor95 || s.semiMinor95 === null || s.azimuthDeg === null) continue
         doc.save().translate(px(s.east), py(s.north)).rotate(s.azimuthDeg - 90)

@@ -22,7 +22,7 @@ import type { ObservationRow, ObservationSetRow, Project } from '../db/schema'
 import { DomainError, notFound } from '../utils/errors'
 import type { FirmContext } from '../utils/guard'
 import { audit } from './audit'
-import { applyControls, ensureStations } from './stations'
+import { applyControls, ensureStations, natural } from './stations'
 
 /** Upload limits (also shown on the page). */
 export const MAX_UPLOAD_BYTES = 20 * 1024 * 1024
@@ -495,7 +495,7 @@ export async function listObservations(ctx: FirmContext, project: Project, q: Ob
     where.push(match!)
   }
   const sortCol = {
-    line: observations.line, kind: observations.kind, at: observations.at, from: observations.from, to: observations.to,
+    line: observations.line, kind: observations.kind, at: natural(observations.at), from: natural(observations.from), to: natural(observations.to),
     value: observations.value, excluded: observations.excluded, set: observations.setId,
   }[q.sort]
   const order = q.dir === 'desc' ? desc(sortCol) : asc(sortCol)

@@ -223,7 +223,7 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
   }
   return {
     input: { controls, observations: records, ...(mainProfile ? { profile: mainProfile } : {}), approximate, ...(projection ? { projection } : {}), refraction, projectHeightM },
-    engineSettings: { datum: settings.datum === 'free' ? 'free' : 'as-given', scaling: settings.scaling, confidence: settings.confidence },
+    engineSettings: { datum: settings.datum === 'free' ? 'free' : 'as-stored', scaling: settings.scaling, confidence: settings.confidence },
     settings: resolved,
     tolerance,
     stationKinds: new Map(stationRows.map((s) => [s.name, s.kind])),

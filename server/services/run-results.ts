@@ -17,6 +17,7 @@ import { precisionScale, type PrecisionUnit } from '../../shared/precision'
 import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary, NetworkSummary, ObservationResult, RelativeResult, StationResult, VectorTest } from '../engine/types'
 import { describeTolerance, type ToleranceSpec } from './accuracy'
 import { safeCellSql } from './csv'
+import { NATURAL_COLLATION } from '../../shared/natural-sort'
 
 // ── the summary ─────────────────────────────────────────────────────────────
 
@@ -205,10 +206,13 @@ async function paged<T>(table: string, select: SQL, where: SQL[], order: SQL, q:
   return { page: q.page, size: q.size, total: count.rows[0]?.n ?? 0, sort: q.sort, rows: rows.rows.map(map) }
 }
 
+/** a station-name column in natural order (KF2 before KF10): migration 0007, shared/natural-sort.ts */
+const NAME = (column: string) => `${column} collate "${NATURAL_COLLATION}"`
+
 const runScope = (firmId: number, runId: number) => sql`firm_id = ${firmId} and adjustment_id = ${runId}`
 
 const STATION_SORT_SQL: Record<string, string> = {
-  order: 'id', name: 'name', east: 'east', north: 'north', height: 'height', sdEast: 'sd_east', sdNorth: 'sd_north', sdHeight: 'sd_height', semiMajor95: 'semi_major95',
+  order: 'id', name: NAME('name'), east: 'east', north: 'north', height: 'height', sdEast: 'sd_east', sdNorth: 'sd_north', sdHeight: 'sd_height', semiMajor95: 'semi_major95',
 }
 export function pageStations(firmId: number, runId: number, known: number | undefined, q: StationPageQuery): Promise<Page<StationResult>> {
   const where = [runScope(firmId, runId)]
@@ -222,7 +226,7 @@ export function pageStations(firmId: number, runId: number, known: number | unde
 const NATURAL = `case when residual_unit = 'm' then 1000 else 1 end`
 const OBSERVATION_SORT_SQL: Record<string, string> = {
   order: 'id', line: 'line', absW: 'abs(w)', w: 'w', tau: 'abs(tau)', redundancy: 'redundancy', absResidual: `abs(residual) * ${NATURAL}`,
-  mdb: `mdb * ${NATURAL}`, kind: 'kind::text', at: 'at',
+  mdb: `mdb * ${NATURAL}`, kind: 'kind::text', at: NAME('at'),
 }
 /** The residual table's rating in SQL (rateObservation in composables/useRunFormat.ts). */
 const FAILS = `(not excluded and (flagged or tau_flagged or coalesce(vector_flagged, false)))`
@@ -298,7 +302,7 @@ export async function pageVectors(firmId: number, runId: number, q: VectorPageQu
 }
 
 const RELATIVE_SORT_SQL: Record<string, string> = {
-  order: 'id', from: 'from_station', to: 'to_station', distance: 'distance', semiMajor95: 'semi_major95', ratio: 'semi_major95 / nullif(allowable, 0)',
+  order: 'id', from: NAME('from_station'), to: NAME('to_station'), distance: 'distance', semiMajor95: 'semi_major95', ratio: 'semi_major95 / nullif(allowable, 0)',
 }
 export function pageRelative(firmId: number, runId: number, known: number | undefined, q: RelativePageQuery): Promise<Page<RelativeRow>> {
   const where = [runScope(firmId, runId)]
@@ -426,7 +430,7 @@ export async function compareRuns(firmId: number, a: Adjustment, b: Adjustment, 
       from (select * from adjusted_stations where ${runScope(firmId, a.id)}) x
       full join (select * from adjusted_stations where ${runScope(firmId, b.id)}) y on x.name = y.name)
     select *, sqrt("dE" * "dE" + "dN" * "dN") as horiz, count(*) over ()::int as total from pairs
-    order by horiz desc nulls last, name limit ${q.size} offset ${offset}`)
+    order by horiz desc nulls last, name collate "tiepoint_natural" limit ${q.size} offset ${offset}`)
   const changed = (pred: string) => {
     const onlyIn = (p: Adjustment, other: Adjustment) => db.execute<ChangedObservation & { total: number }>(sql`
       select x.observation_id as id, x.line, x.kind, x.component, x.at, x."from", x."to", count(*) over ()::int as total
@@ -485,7 +489,7 @@ export async function csvStream(run: Adjustment, project: { name: string; units:
     query = `select ${safeCellSql('name')}, kind, case when fixed then 'fixed' else '' end, ${fixed('east', 4)}, ${fixed('north', 4)}, ${fixed('height', 4)},
       ${prec('sd_east')}, ${prec('sd_north')}, ${prec('sd_height')}, ${prec('semi_major')}, ${prec('semi_minor')},
       case when semi_major is null then null else round(azimuth_deg::numeric, 2)::text end, ${prec('semi_major95')}, ${prec('semi_minor95')}
-      from adjusted_stations where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
+      from adjusted_stations where firm_id = ${firmId} and adjustment_id = ${runId} order by name collate "${NATURAL_COLLATION}", id`
   } else {
     // component and the whole-vector test come last, so the columns before them read as they always did
     header = 'line,kind,at,from,to,residual,residual_unit,redundancy,w,tau,mdb,flagged,weak,excluded,component,vector_statistic,vector_critical,vector_flagged,vector_residual_e_mm,vector_residual_n_mm,vector_residual_u_mm'

@@ -5,6 +5,7 @@
 // list plus the run's input hash. It is never changed (a database trigger
 // refuses UPDATE and DELETE); when the inputs change later it is shown as
 // superseded, never edited.
+import { naturalSortBy } from '../../shared/natural-sort'
 import { and, desc, eq, gt, inArray, sql } from 'drizzle-orm'
 import type { SignoffCreate } from '../../shared/schemas/signoffs'
 import type { AdjustmentResult, StationResult } from '../engine/types'
@@ -64,6 +65,7 @@ export function canonicalJson(value: unknown, key = ''): string {
 
 /** The sign-off hash: SHA-256 over the canonical signed list and the run's input hash. */
 export function signoffHash(signed: SignedStation[], inputHash: string): string {
+  // code-unit order, not natural: every sign-off's hash was computed over this order and must verify forever
   const sorted = [...signed].sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0))
   return sha256Hex(canonicalJson({ inputHash, stations: sorted }))
 }
@@ -195,8 +197,7 @@ export async function previewSignoff(ctx: FirmContext, project: Project, runNumb
   return {
     run: runSummary(run),
     check,
-    stations: result.stations
-      .filter((s) => s.east !== null && s.north !== null)
+    stations: naturalSortBy(result.stations.filter((s) => s.east !== null && s.north !== null), (s) => s.name)
       .map((s) => ({ ...toSignedStation(s), passes: !failing.has(s.name), selectedByDefault: defaults.includes(s.name) })),
     defaultStations: defaults,
     testWarnings: failedTests(result),
@@ -230,7 +231,8 @@ function signoffDto(s: Signoff, runNumber: number, state: { superseded: boolean;
     licenceNumber: s.licenceNumber,
     licenceJurisdiction: s.licenceJurisdiction,
     statement: s.statement,
-    stations: s.stations as unknown as SignedStation[],
+    // listed in natural order; the record keeps the canonical order its SHA-256 was computed over
+    stations: naturalSortBy(s.stations as unknown as SignedStation[], (x) => x.name),
     accuracyCheck: s.accuracyCheck as unknown as AccuracyCheck,
     inputHash: s.inputHash,
     sha256: s.sha256,

@@ -2,7 +2,8 @@
 // every observation with it), import control coordinates from a CSV, and the
 // helpers an upload uses to create referenced stations and set control values.
 // Everything is stored in metres; the app shows project units.
-import { and, asc, eq, sql } from 'drizzle-orm'
+import { and, asc, eq, sql, type AnyColumn } from 'drizzle-orm'
+import { NATURAL_COLLATION } from '../../shared/natural-sort'
 import Papa from 'papaparse'
 import type { StationCreate, StationUpdate } from '../../shared/schemas/fielddata'
 import { METRES_PER, clip, parseNumber } from '../engine/io/units'
@@ -58,6 +59,9 @@ export function stationDto(s: Station, observationCount?: number): StationDto {
   }
 }
 
+/** a station-name column in natural order, KF2 before KF10 (migration 0007, shared/natural-sort.ts) */
+export const natural = (column: AnyColumn) => sql`${column} collate ${sql.identifier(NATURAL_COLLATION)}`
+
 export async function listStations(ctx: FirmContext, project: Project): Promise<StationDto[]> {
   const rows = await useDb().select({
     station: stations,
@@ -66,7 +70,7 @@ export async function listStations(ctx: FirmContext, project: Project): Promise<
       and (o.at = "stations"."name" or o.to = "stations"."name" or o."from" = "stations"."name"))`,
   }).from(stations)
     .where(and(eq(stations.firmId, ctx.firm.id), eq(stations.projectId, project.id)))
-    .orderBy(asc(stations.name))
+    .orderBy(natural(stations.name), asc(stations.id))
   return rows.map((r) => stationDto(r.station, r.n))
 }
 

@@ -1,5 +1,6 @@
 // Shapes of an adjustment run that the server sends and the pages read.
-import type { InstrumentProfile, ObservationResult, StationResult } from '../../server/engine/types'
+import type { RunSettings } from '../schemas/adjustments'
+import type { AdjustmentResult, AdjustSettings, GridReductionSummary, InstrumentProfile, NetworkSummary, ObservationResult, RelativeResult, StationResult } from '../../server/engine/types'
 
 /** Where the a-priori σ of a set's observations came from. */
 export type WeightingSource = 'own profile' | 'main profile' | 'built-in default'
@@ -40,6 +41,34 @@ export interface RunSummary {
   chance?: { tested: number; expectedFlags: number }
   warnings: string[]
   weighting?: RunWeighting[]
+  /** observations in use that fail data snooping or the τ test (runs stored before it was recorded lack it) */
+  flaggedAny?: number
+  /** per network when a run holds both a plane and a height network */
+  plane?: NetworkSummary | null
+  height?: NetworkSummary | null
+  /** the engine's settings as used */
+  settings?: AdjustSettings
+  gridReduction?: GridReductionSummary | null
+  refraction?: AdjustmentResult['refraction'] | null
+  /** rows stored: stations, observation results and relative precisions */
+  rows?: { stations: number; observations: number; relative: number }
+  engineMs?: number
+}
+
+/** The settings a run was queued with (shared/schemas/adjustments.ts), as stored on the run; older runs may lack newer fields. */
+export type RunSettingsDto = Partial<RunSettings> & Record<string, unknown>
+
+/** One pair of the relative precision list. */
+export type RunRelative = Pick<RelativeResult, 'from' | 'to' | 'distance' | 'semiMajor' | 'semiMinor' | 'azimuthDeg'> & { semiMajor95: number; allowable: number | null; passes: boolean | null }
+
+/** GET …/adjustments/:number/overview — what the map and the two histograms draw (server/services/run-results.ts mapData, distributions). */
+export interface RunOverview {
+  stations: { name: string[]; east: number[]; north: number[]; kind: number[]; a: (number | null)[]; b: (number | null)[]; az: (number | null)[] }
+  lines: { from: number[]; to: number[]; rating: number[]; used: number[]; excluded: number[] }
+  distributions: {
+    w: { from: number; width: number; counts: number[] }
+    redundancy: { edges: number[]; counts: number[] }
+  }
 }
 
 export type RunStatus = 'queued' | 'running' | 'done' | 'failed'
@@ -49,14 +78,14 @@ export interface RunDto {
   number: number
   status: RunStatus
   attempts: number
-  settings: Record<string, unknown>
+  settings: RunSettingsDto
   inputHash: string
   createdAt: string
   startedAt: string | null
   finishedAt: string | null
   createdBy: string | null
   errorText: string | null
-  summary: Record<string, unknown> | null
+  summary: RunSummary | null
   /** per observation set: the profile that weighted it, or the built-in default; null for runs queued before it was recorded */
   weighting: RunWeighting[] | null
   warnings: string[]
@@ -65,7 +94,9 @@ export interface RunDto {
   result: Record<string, unknown> | null
   stations: StationResult[]
   observations: ObservationResult[]
-  relative: { from: string; to: string; distance: number; semiMajor: number; semiMinor: number; azimuthDeg: number; semiMajor95: number; allowable: number | null; passes: boolean | null }[]
+  relative: RunRelative[]
+  /** rows in each list; the arrays above hold only the first page */
+  totals: { stations: number; observations: number; relative: number }
 }
 
 /** GET …/adjustments — one row of the runs list. */
@@ -81,5 +112,5 @@ export interface RunListItem {
   flagged: number | null
   errorText: string | null
   inputHash: string
-  settings: Record<string, unknown>
+  settings: RunSettingsDto
 }

@@ -64,6 +64,22 @@ describe('stations', () => {
     expect(audit.map((a) => a.action)).toContain('station.rename')
     expect((audit.find((a) => a.action === 'station.rename')!.before as { name: string }).name).toBe('OLD')
   })
+
+  it('lists stations and sorts observations by station in natural order (KF2 before KF10), in SQL', async () => {
+    const p = await freshProject(chief, 'Natural order')
+    const text = [HEADER,
+      'horizontal_distance,KF10,,KF2,25.0,m,2,,,,,',
+      'horizontal_distance,KF2,,KF1,30.0,m,2,,,,,',
+      'horizontal_distance,KF1,,KF10,31.0,m,2,,,,,',
+      'horizontal_distance,KF9,,KF1,32.0,m,2,,,,,'].join('\n')
+    expect((await chief.post(`${base(p)}/observation-sets`, fileForm('n.csv', text))).status).toBe(201)
+    const st = await chief.get(`${base(p)}/stations`)
+    expect(st.body.map((s: { name: string }) => s.name)).toEqual(['KF1', 'KF2', 'KF9', 'KF10'])
+    const byAt = await chief.get(`${base(p)}/observations?sort=at&dir=asc`)
+    expect(byAt.body.rows.map((o: { at: string }) => o.at)).toEqual(['KF1', 'KF2', 'KF9', 'KF10'])
+    const byToDesc = await chief.get(`${base(p)}/observations?sort=to&dir=desc`)
+    expect(byToDesc.body.rows.map((o: { to: string }) => o.to)).toEqual(['KF10', 'KF2', 'KF1', 'KF1'])
+  })
 })
 
 describe('control import', () => {

@@ -36,7 +36,7 @@ export function inventResult(stations: number): AdjustmentResult {
       }
     }
   }
-  const settings = { datum: 'as-given', scaling: 'a-posteriori', confidence: 0.95, alpha: 0.05, alpha0: 0.001, beta0: 0.8, maxIterations: 10, weakRedundancy: 0.2 } as const
+  const settings = { datum: 'as-stored', scaling: 'a-posteriori', confidence: 0.95, alpha: 0.05, alpha0: 0.001, beta0: 0.8, maxIterations: 10, weakRedundancy: 0.2 } as const
   const n = obs.length
   const u = 2 * (st.length - 4) + st.length
   return {

@@ -30,20 +30,20 @@ function watchConsole(page: Page): string[] {
 }
 
 const firm = `/f/${DEMO.firm}`
-const projectTabs = () => [project, `${project}/stations`, `${project}/observations`, `${project}/runs`, `${project}/runs/1`, `${project}/signoff`, `${project}/releases`]
+const projectTabs = () => [project, `${project}/stations`, `${project}/observations`, `${project}/runs`, `${project}/runs/1`, `${project}/compare`, `${project}/signoff`, `${project}/releases`]
 const cases: [string, string, () => string[]][] = [
   ['owner', DEMO.owner, () => [firm, `${firm}/format`, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, `${firm}/audit`, `${firm}/mailbox`, `${firm}/projects/new`, '/profile', ...projectTabs()]],
-  ['party chief', DEMO.chief, () => [firm, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, `${firm}/projects/new`, '/profile', ...projectTabs()]],
-  ['field crew', DEMO.crew, () => [firm, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, '/profile', ...projectTabs()]],
-  ['licensed surveyor', DEMO.surveyor, () => [firm, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, `${firm}/audit`, '/profile', ...projectTabs()]],
+  ['party chief', DEMO.chief, () => [firm, `${firm}/format`, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, `${firm}/projects/new`, '/profile', ...projectTabs()]],
+  ['field crew', DEMO.crew, () => [firm, `${firm}/format`, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, '/profile', ...projectTabs()]],
+  ['licensed surveyor', DEMO.surveyor, () => [firm, `${firm}/format`, `${firm}/members`, `${firm}/instruments`, `${firm}/tolerances`, `${firm}/audit`, '/profile', ...projectTabs()]],
   ['client', DEMO.client, () => ['/client', firm, '/profile', `${project}/releases`]],
 ]
 
 describe('no console errors on any page', () => {
-  it('signed out: sign-in and forgotten password', async () => {
+  it('signed out: sign-in, forgotten password, and an invitation and a reset link that are not valid', async () => {
     const page = await newPage(browser)
     const errors = watchConsole(page)
-    for (const path of ['/signin', '/forgot']) {
+    for (const path of ['/signin', '/forgot', '/invite/not-a-real-token', '/reset/not-a-real-token']) {
       await page.goto(path)
       await page.waitForLoadState('networkidle')
     }

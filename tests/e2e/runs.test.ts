@@ -99,4 +99,21 @@ describe('runs in the browser', () => {
     await shot(small, 'runs-4-list-390')
     await small.context().close()
   })
+
+  it('the run report at 390 px: every result table fits its card, and "Show every column" brings the rest back', async () => {
+    const small = await newPage(browser, 390, 800)
+    await signIn(small, DEMO.chief)
+    await small.goto(`${base}/runs/2`)
+    const residuals = small.getByTestId('residual-table')
+    await residuals.locator('tbody tr').first().waitFor()
+    // a table wider than its scroll box would hide columns behind a sideways scroll
+    const overflow = (id: string) => small.getByTestId(id).evaluate((t) => t.scrollWidth - t.parentElement!.clientWidth)
+    for (const id of ['residual-table', 'station-table', 'relative-table']) expect(await overflow(id), id).toBeLessThanOrEqual(0)
+    const mdb = residuals.getByRole('columnheader', { name: 'MDB' })
+    expect(await mdb.isVisible()).toBe(false)
+    await residuals.locator('xpath=ancestor::div[contains(@class, "table-frame")]').getByRole('button', { name: 'Show every column' }).click()
+    await expect.poll(() => mdb.isVisible()).toBe(true)
+    await shot(small, 'runs-5-report-390')
+    await small.context().close()
+  })
 })

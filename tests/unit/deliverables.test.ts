@@ -211,6 +211,22 @@ describe('PDF report', () => {
   })
 })
 
+describe('order of the signed stations', () => {
+  // the sign-off stores its list in code-unit order (KF10 before KF2); every file lists it naturally
+  const unordered = input('local', 'm', [st('KF10', 1000, 5000, 50), st('KF2', 1010, 5010, 51), st('KF1', 1020, 5020, 52)])
+  it('CSV, LandXML and PDF list KF1, KF2, KF10 (natural order)', async () => {
+    const csv = Papa.parse<string[]>(buildCsv(unordered).split('\r\n').filter((l) => l && !l.startsWith('#')).join('\n')).data
+    expect(csv.slice(1).map((r) => r[0])).toEqual(['KF1', 'KF2', 'KF10'])
+    expect([...buildLandXml(unordered).matchAll(/<CgPoint\s[^>]*\bname="([^"]+)"/g)].map((m) => m[1])).toEqual(['KF1', 'KF2', 'KF10'])
+    const { text } = await extractText(await getDocumentProxy(new Uint8Array(await buildPdf(unordered))), { mergePages: true })
+    const flat = text.replace(/\s+/g, ' ')
+    expect(flat.indexOf('KF2 new')).toBeGreaterThan(flat.indexOf('KF1 new'))
+    expect(flat.indexOf('KF10 new')).toBeGreaterThan(flat.indexOf('KF2 new'))
+    // the σ̂0 line is printed (its hat is drawn, not a character)
+    expect(flat).toContain('unit weight σ0: 1.042')
+  })
+})
+
 describe('all deliverables', () => {
   it('records the SHA-256 of each file and leaves GeoJSON out for a local project', async () => {
     const files = await buildDeliverables(local)

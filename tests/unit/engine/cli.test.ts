@@ -49,6 +49,8 @@ describe('npm run adjust (server/engine/cli.ts)', () => {
     expect(r.err).toBe('')
     expect(r.code).toBe(0)
     expect(r.out).toContain('must be checked against local regulations and licensed practice')
+    // the datum in the app's words (one vocabulary for the run setting)
+    expect(r.out).toContain('Settings: datum control as stored (fixed where its σ is blank, weighted where given)')
   })
   it('--json prints one object with the contract fields of docs/engine.md', () => {
     const r = run(good, '--json')

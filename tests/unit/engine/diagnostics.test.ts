@@ -3,6 +3,19 @@ import { describe, expect, it } from 'vitest'
 import { adjustNetwork, formatReport } from '../../../server/engine/index'
 import { ARC, fixed, gridNetwork, obs } from './helpers'
 
+describe('datum setting words', () => {
+  it("the former 'as-given' is still accepted and reads as 'as-stored', with the same solution", () => {
+    const net = gridNetwork(3, 7)
+    const now = adjustNetwork(net, { datum: 'as-stored' })
+    const old = adjustNetwork(net, { datum: 'as-given' })
+    expect(now.ok && old.ok).toBe(true)
+    if (!now.ok || !old.ok) return
+    expect(old.result.settings.datum).toBe('as-stored')
+    expect(old.result.stations.map((x) => x.east)).toEqual(now.result.stations.map((x) => x.east))
+    expect(adjustNetwork(net, { datum: 'held' as never }).ok).toBe(false)
+  })
+})
+
 describe('data snooping on an invented network with a planted blunder', () => {
   const net = gridNetwork(4, 2024)
   const target = net.observations.findIndex((o) => o.kind === 'horizontal_distance' && o.at === 'P1_1' && o.to === 'P2_2')
@@ -86,7 +99,7 @@ describe('unsolvable networks give typed failures naming the cause', () => {
       expect(r.reason).toMatch(/^no fixed orientation: hold an azimuth or a second point/)
     }
   })
-  it('no control at all, datum as given', () => {
+  it('no control at all, datum as stored', () => {
     const r = adjustNetwork({ controls: [], observations: base })
     expect(!r.ok && r.code === 'singular' && /no control/.test(r.reason)).toBe(true)
   })

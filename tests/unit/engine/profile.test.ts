@@ -39,6 +39,14 @@ describe('parseProfileArg', () => {
     expect(r.ok).toBe(false)
     if (!r.ok) expect(r.message).toMatch(message)
   })
+  it('names the API field names first when a key is unknown, short keys after', () => {
+    const r = parseProfileArg('speed=3', noFile)
+    expect(!r.ok && r.message).toMatch(/unknown \(use distanceMm, distancePpm, directionArcsec, zenithArcsec, centeringInstrumentMm, centeringTargetMm, levellingMmPerSqrtKm; short keys a, b, dir, zen, ci, ct, lev also work\)/)
+  })
+  it('takes the API field names as key=value pairs', () => {
+    const r = parseProfileArg('distanceMm=1.5,directionArcsec=2,levellingMmPerSqrtKm=0.7', noFile)
+    expect(r.ok && r.profile).toEqual({ ...DEFAULT_PROFILE, distanceMm: 1.5, directionArcsec: 2, levellingMmPerSqrtKm: 0.7 })
+  })
   it('a JSON file that is not one object is refused', () => {
     const r = parseProfileArg('p.json', () => '[1, 2]')
     expect(!r.ok && r.message).toMatch(/must hold one JSON object/)
