@@ -335,7 +335,9 @@ export const adjustedStations = pgTable('adjusted_stations', {
   controlledEast: boolean().notNull().default(false),
   controlledNorth: boolean().notNull().default(false),
   controlledHeight: boolean().notNull().default(false),
-}, (t) => [runResultKey('adjusted_stations_run_fk', t), index('adjusted_stations_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('adjusted_stations_run_fk', t), 
+  // one run's rows in stored order: the paged tables' default order and the CSV read it without a sort
+  index('adjusted_stations_run_order').on(t.firmId, t.adjustmentId, t.id)])
 
 export const observationResults = pgTable('observation_results', {
   id: id(),
@@ -375,7 +377,11 @@ export const observationResults = pgTable('observation_results', {
   combinedFactor: doublePrecision(),
   elevationFactor: doublePrecision(),
   scaleFactor: doublePrecision(),
-}, (t) => [runResultKey('observation_results_run_fk', t), index('observation_results_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('observation_results_run_fk', t), 
+  index('observation_results_run_order').on(t.firmId, t.adjustmentId, t.id),
+  // the residual table's default order (largest |w| first, as pageObservations sorts): the run report's
+  // first page is read from the index instead of sorting every observation of the run
+  index('observation_results_run_abs_w').on(t.firmId, t.adjustmentId, sql`abs(${t.w}) desc nulls last`, t.id)])
 
 export const relativePrecisions = pgTable('relative_precisions', {
   id: id(),
@@ -391,7 +397,8 @@ export const relativePrecisions = pgTable('relative_precisions', {
   sdDistance: doublePrecision(),
   allowable: doublePrecision(),
   passes: boolean(),
-}, (t) => [runResultKey('relative_precisions_run_fk', t), index('relative_precisions_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('relative_precisions_run_fk', t), 
+  index('relative_precisions_run_order').on(t.firmId, t.adjustmentId, t.id)])
 
 // ── sign-off, release, audit ────────────────────────────────────────────────
 

@@ -16,6 +16,7 @@ import { METRES_PER } from '../engine/io/units'
 import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary, NetworkSummary, ObservationResult, RelativeResult, StationResult } from '../engine/types'
 import { describeTolerance, type ToleranceSpec } from './accuracy'
 import { safeCellSql } from './csv'
+import { packMap, type MapLineIn, type MapStationIn, type PackedMap } from '../../shared/map-overview'
 
 // ── the summary ─────────────────────────────────────────────────────────────
 
@@ -249,51 +250,36 @@ export async function distributions(firmId: number, runId: number) {
   return { w: { from: -5, width: 0.5, counts: wBins }, redundancy: { edges: [0, 0.1, 0.2, 0.4, 0.6, 0.8, 1], counts: rBins } }
 }
 
-const round = (v: number, d: number) => Math.round(v * 10 ** d) / 10 ** d
-
 /**
- * Everything the map draws, as parallel arrays (a 10,000-station run is a
- * few hundred KB, not megabytes of objects): stations with their ellipse at
- * the run's confidence, and one line per connected pair with its worst
- * rating (0 pass, 1 watch, 2 fail) and observation counts.
+ * Everything the map draws, packed (shared/map-overview.ts): stations with
+ * their ellipse at the run's confidence, and one line per connected pair
+ * with its worst rating (0 pass, 1 watch, 2 fail). A 10,000-station run with
+ * 30,000 lines is a few hundred KB.
  */
-export async function mapData(firmId: number, runId: number) {
+export async function mapData(firmId: number, runId: number): Promise<PackedMap> {
   const db = useDb()
   const [st, ln] = await Promise.all([
-    db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null; ce: boolean; cn: boolean; ch: boolean }>(sql`
-      select name, kind, fixed, east, north, semi_major95 as a, semi_minor95 as b, azimuth_deg as az, controlled_east as ce, controlled_north as cn, controlled_height as ch
+    db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null }>(sql`
+      select name, kind, fixed, east, north, semi_major95 as a, semi_minor95 as b, azimuth_deg as az
       from adjusted_stations where ${runScope(firmId, runId)} and east is not null and north is not null order by id`),
-    db.execute<{ p: string; q: string; used: number; excl: number; rating: number }>(sql`
-      select least(at, "to") as p, greatest(at, "to") as q, count(*) filter (where not excluded)::int as used, count(*) filter (where excluded)::int as excl,
+    db.execute<{ p: string; q: string; rating: number }>(sql`
+      select least(at, "to") as p, greatest(at, "to") as q,
         max(case when ${sql.raw(FAILS)} then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating
       from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2`),
   ])
   const index = new Map<string, number>()
-  const stations = { name: [] as string[], east: [] as number[], north: [] as number[], kind: [] as number[], a: [] as (number | null)[], b: [] as (number | null)[], az: [] as (number | null)[] }
-  st.rows.forEach((s, i) => {
+  const stations: MapStationIn[] = st.rows.map((s, i) => {
     index.set(s.name, i)
-    stations.name.push(s.name)
-    // drawn, not quoted: positions to the millimetre, axes to 0.01 mm, azimuths to 0.1°, keep the payload small
-    stations.east.push(round(s.east, 3))
-    stations.north.push(round(s.north, 3))
-    // 0 new, 1 control held fixed, 2 control weighted or free
-    stations.kind.push(s.kind !== 'control' ? 0 : s.fixed ? 1 : 2)
-    stations.a.push(s.fixed || s.a === null ? null : round(s.a, 5))
-    stations.b.push(s.fixed || s.b === null ? null : round(s.b, 5))
-    stations.az.push(s.fixed || s.az === null ? null : round(s.az, 1))
+    // 0 new, 1 control held fixed, 2 control weighted or free; held stations draw no ellipse
+    return { name: s.name, east: s.east, north: s.north, kind: s.kind !== 'control' ? 0 : s.fixed ? 1 : 2, a: s.fixed ? null : s.a, b: s.fixed ? null : s.b, az: s.az }
   })
-  const lines = { from: [] as number[], to: [] as number[], rating: [] as number[], used: [] as number[], excluded: [] as number[] }
+  const lines: MapLineIn[] = []
   for (const l of ln.rows) {
     const i = index.get(l.p)
     const j = index.get(l.q)
-    if (i === undefined || j === undefined) continue
-    lines.from.push(i)
-    lines.to.push(j)
-    lines.rating.push(l.rating)
-    lines.used.push(l.used)
-    lines.excluded.push(l.excl)
+    if (i !== undefined && j !== undefined) lines.push({ from: i, to: j, rating: l.rating })
   }
-  return { stations, lines }
+  return packMap(stations, lines)
 }
 
 // ── whole lists, for the sign-off and its accuracy check ────────────────────
