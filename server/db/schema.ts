@@ -17,6 +17,7 @@ import {
   jsonb,
   pgEnum,
   pgTable,
+  primaryKey,
   text,
   timestamp,
   uniqueIndex,
@@ -382,6 +383,19 @@ export const observationResults = pgTable('observation_results', {
   // the residual table's default order (largest |w| first, as pageObservations sorts): the run report's
   // first page is read from the index instead of sorting every observation of the run
   index('observation_results_run_abs_w').on(t.firmId, t.adjustmentId, sql`abs(${t.w}) desc nulls last`, t.id)])
+
+/**
+ * The run page's overview (the packed map and the histograms, see
+ * shared/map-overview.ts) as the JSON text the route sends, made once in the
+ * transaction that stores the run's results: they never change afterwards,
+ * and grouping 100,000 observations into lines on every page view would not
+ * be quick.
+ */
+export const runOverviews = pgTable('run_overviews', {
+  firmId: integer().notNull(),
+  adjustmentId: integer().notNull(),
+  body: text().notNull(),
+}, (t) => [primaryKey({ name: 'run_overviews_pk', columns: [t.firmId, t.adjustmentId] }), runResultKey('run_overviews_run_fk', t)])
 
 export const relativePrecisions = pgTable('relative_precisions', {
   id: id(),

@@ -58,6 +58,8 @@ export interface RunSummary {
   engineMs: number
   /** time to store the three result tables (COPY), ms */
   storeMs?: number
+  /** time to compute and keep the run page's overview (map and histograms), ms */
+  overviewMs?: number
   /** refraction coefficient k and its σ the run used */
   refraction: AdjustmentResult['refraction'] | null
   warnings: string[]
@@ -235,8 +237,7 @@ export function pageRelative(firmId: number, runId: number, known: number | unde
 // ── overviews computed in SQL (histograms, redundancy bins, the map) ────────
 
 /** Counts of w in 0.5-wide bins from −5 to 5 (outermost bins collect the rest) and of rᵢ in the redundancy report's bins. */
-export async function distributions(firmId: number, runId: number) {
-  const db = useDb()
+export async function distributions(firmId: number, runId: number, db: Pick<Tx, 'execute'> = useDb()) {
   const [w, r] = await Promise.all([
     db.execute<{ bin: number; n: number }>(sql`select least(greatest(floor((w + 5) / 0.5), 0), 19)::int as bin, count(*)::int as n
       from observation_results where ${runScope(firmId, runId)} and not excluded and w is not null group by 1`),
@@ -256,8 +257,7 @@ export async function distributions(firmId: number, runId: number) {
  * with its worst rating (0 pass, 1 watch, 2 fail). A 10,000-station run with
  * 30,000 lines is a few hundred KB.
  */
-export async function mapData(firmId: number, runId: number): Promise<PackedMap> {
-  const db = useDb()
+export async function mapData(firmId: number, runId: number, db: Pick<Tx, 'execute'> = useDb()): Promise<PackedMap> {
   const [st, ln] = await Promise.all([
     db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null }>(sql`
       select name, kind, fixed, east, north, semi_major95 as a, semi_minor95 as b, azimuth_deg as az
@@ -280,6 +280,26 @@ export async function mapData(firmId: number, runId: number): Promise<PackedMap>
     if (i !== undefined && j !== undefined) lines.push({ from: i, to: j, rating: l.rating })
   }
   return packMap(stations, lines)
+}
+
+/** The run page's overview: the packed map and the histograms. */
+export async function computeOverview(firmId: number, runId: number, db: Pick<Tx, 'execute'> = useDb()) {
+  const [map, dist] = await Promise.all([mapData(firmId, runId, db), distributions(firmId, runId, db)])
+  return { ...map, distributions: dist }
+}
+
+/** Computes the overview of results just stored (same transaction) and keeps its JSON text in run_overviews. Returns the time taken in ms. */
+export async function storeOverview(tx: Tx, firmId: number, runId: number): Promise<number> {
+  const t0 = performance.now()
+  const body = JSON.stringify(await computeOverview(firmId, runId, tx))
+  await tx.execute(sql`insert into run_overviews (firm_id, adjustment_id, body) values (${firmId}, ${runId}, ${body})`)
+  return Math.round(performance.now() - t0)
+}
+
+/** The overview's JSON text: as stored with the run, or computed for a run stored before overviews were kept. */
+export async function overviewJson(firmId: number, runId: number): Promise<string> {
+  const res = await useDb().execute<{ body: string }>(sql`select body from run_overviews where firm_id = ${firmId} and adjustment_id = ${runId}`)
+  return res.rows[0]?.body ?? JSON.stringify(await computeOverview(firmId, runId))
 }
 
 // ── whole lists, for the sign-off and its accuracy check ────────────────────

@@ -5,7 +5,7 @@
 // run GET, the first page of each table and the map/histogram overview are
 // fetched, and the run page is loaded in headless Chromium (Debian's
 // /usr/bin/chromium through playwright-core), timing the verdict, the first
-// table page and the map drawn. Last, a ~10 MB LandXML file through the
+// table page and the map drawn, and its sign-off page. Last, a ~10 MB LandXML file through the
 // upload route with the app process's peak RSS during it.
 // Targets (issue 12, printed beside the figures, never asserted): the run
 // page within 2 s, storing the run's results (COPY) < 5 s, the 10 MB upload
@@ -81,6 +81,8 @@ async function apiPath(chief: Client) {
   }
   const overview = await timed(chief, `${run}/overview`)
   console.log(`  overview (map + histograms): ${overview.ms.toFixed(0)} ms, ${kib(overview.bytes)}`)
+  const preview = await timed(chief, `${project}/signoffs/preview?run=${post.body.number}`)
+  console.log(`  sign-off preview (summary, check, control points, first page of stations): ${preview.ms.toFixed(0)} ms, ${kib(preview.bytes)} (HTTP ${preview.status})`)
   console.log(`  upload → run done → first page of the run report: ${(tUpload + tDone + first.ms).toFixed(0)} ms`)
   return run.replace(`/api/firms/${DEMO.firm}/projects/`, `/f/${DEMO.firm}/projects/`).replace('/adjustments/', '/runs/')
 }
@@ -105,10 +107,29 @@ async function runPage(pagePath: string) {
       const map = performance.now() - t0
       const info = await page.evaluate(() => {
         const m = document.querySelector<HTMLElement>('[data-testid="network-map"]')
-        return { stations: m?.dataset.stations, lines: m?.dataset.lines, nodes: document.getElementsByTagName('*').length }
+        const nav = performance.getEntriesByType('navigation')[0] as PerformanceNavigationTiming | undefined
+        const ov = performance.getEntriesByType('resource').find((r) => r.name.endsWith('/overview')) as PerformanceResourceTiming | undefined
+        const drawn = performance.getEntriesByName('tiepoint-map-drawn')[0]
+        const ms = (v: number | undefined) => (v === undefined ? '?' : v.toFixed(0))
+        return {
+          stations: m?.dataset.stations, lines: m?.dataset.lines, nodes: document.getElementsByTagName('*').length,
+          // in the page's own clock, from navigation start
+          timeline: `HTML ${ms(nav?.responseEnd)} ms, DOMContentLoaded ${ms(nav?.domContentLoadedEventEnd)} ms, overview request ${ms(ov?.startTime)}–${ms(ov?.responseEnd)} ms (${ov ? (ov.encodedBodySize / 1024).toFixed(0) : '?'} KiB), map built and drawn ${ms(drawn?.startTime)}–${ms(drawn ? drawn.startTime + drawn.duration : undefined)} ms`,
+        }
       })
       console.log(`  run page, ${label} (headless Chromium): verdict visible ${verdict.toFixed(0)} ms, first table page ${table.toFixed(0)} ms, map drawn ${map.toFixed(0)} ms (target 2,000 ms); map ${info.stations} stations, ${info.lines} lines; ${info.nodes.toLocaleString('en')} DOM elements; load average ${load()}`)
+      console.log(`    in the page: ${info.timeline}`)
     }
+    // the sign-off page of the same run: the preview is one page of stations, the control points and counts
+    const t1 = performance.now()
+    await page.goto(pagePath.replace(/\/runs\/(\d+)$/, '/signoff?run=$1'), { waitUntil: 'commit', timeout: 120_000 })
+    await page.locator('[data-testid="signoff-stations"] tbody tr').first().waitFor({ timeout: 120_000 })
+    const signoff = performance.now() - t1
+    const rows = await page.locator('[data-testid="signoff-stations"] tbody tr').count()
+    const checkRows = await page.locator('[data-testid="accuracy-table"] tbody tr').count()
+    console.log(`  sign-off page of the run: stations table shown ${signoff.toFixed(0)} ms; ${rows} station rows, ${checkRows} accuracy-check rows in the DOM; load average ${load()}`)
+    await page.goto(pagePath, { waitUntil: 'commit', timeout: 120_000 })
+    await page.locator('[data-testid="network-map"] canvas').first().waitFor({ timeout: 120_000 })
     // a pan and a zoom once it is up: the time to redraw
     const box = await page.getByTestId('network-map').boundingBox()
     if (box) {
