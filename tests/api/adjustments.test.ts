@@ -5,7 +5,8 @@ import { DEMO_PROJECT_HEIGHT_M } from '../../server/db/demo/generate'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
-import { adjustedStations, adjustments, mailboxMessages, observationResults, observationSets, observations, projects, toleranceProfiles } from '../../server/db/schema'
+import { adjustedStations, adjustments, mailboxMessages, observationResults, observationSets, observations, projects, runOverviews, toleranceProfiles } from '../../server/db/schema'
+import { computeOverview } from '../../server/services/run-results'
 import { adjustNetwork } from '../../server/engine/index'
 import { as, DEMO, type Client } from '../support/http'
 import { BLUNDER, DEMO_CSV, projectWithNetwork, readCsv, waitForRun } from './adjustments-fixture'
@@ -254,6 +255,16 @@ describe('a run on the demo network', () => {
     expect(run.totals.observations).toBeGreaterThan(run.observations.length - 1)
     expect(run).toHaveProperty('weighting')
     expect(run.result.observations.map((o: any) => o.line)).toEqual(run.observations.map((o: any) => o.line))
+  })
+
+  it('the overview is kept with the run when it is stored, and equals one computed afresh from the result tables', async () => {
+    const [first] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, fx.projectId), eq(adjustments.number, 1)))
+    const [row] = await useDb().select().from(runOverviews).where(and(eq(runOverviews.firmId, first!.firmId), eq(runOverviews.adjustmentId, first!.id)))
+    expect(row, 'no overview kept for run 1').toBeDefined()
+    const res = await chief.raw(`${runPath(1)}/overview`)
+    expect(res.headers.get('content-type')).toMatch(/^application\/json/)
+    expect(await res.text()).toBe(row!.body)
+    expect(JSON.parse(row!.body)).toEqual(await computeOverview(row!.firmId, row!.adjustmentId))
   })
 
   it('the overview gives the map every station and connected pair, and the w histogram counts every used w', async () => {

@@ -107,7 +107,8 @@ async function runPage(pagePath: string) {
       const map = performance.now() - t0
       const info = await page.evaluate(() => {
         const m = document.querySelector<HTMLElement>('[data-testid="network-map"]')
-        const nav = performance.getEntriesByType('navigation')[0] as PerformanceNavigationTiming | undefined
+        // the browser's timeline (this type-checks against Node's performance, which has no navigation entries)
+        const nav = (performance.getEntriesByType as (t: string) => unknown[])('navigation')[0] as PerformanceNavigationTiming | undefined
         const ov = performance.getEntriesByType('resource').find((r) => r.name.endsWith('/overview')) as PerformanceResourceTiming | undefined
         const drawn = performance.getEntriesByName('tiepoint-map-drawn')[0]
         const ms = (v: number | undefined) => (v === undefined ? '?' : v.toFixed(0))
