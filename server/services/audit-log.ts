@@ -24,6 +24,9 @@ export interface AuditEntryDto {
   userEmail: string | null
   beforeHash: string | null
   afterHash: string | null
+  /** the hash chain (server/services/audit.ts): the previous entry's hash and this entry's */
+  prevHash: string | null
+  rowHash: string | null
   after: unknown
 }
 
@@ -52,7 +55,7 @@ export async function listAudit(ctx: FirmContext, q: AuditQuery): Promise<{ entr
     entries: rows.map(({ a, userName, userEmail, projectName }) => ({
       id: a.id, at: a.at.toISOString(), action: a.action, entityType: a.entityType, entityId: a.entityId,
       projectId: a.projectId, projectName: projectName ?? null, userId: a.userId, userName: userName ?? null, userEmail: userEmail ?? null,
-      beforeHash: a.beforeHash, afterHash: a.afterHash, after: a.after,
+      beforeHash: a.beforeHash, afterHash: a.afterHash, prevHash: a.prevHash, rowHash: a.rowHash, after: a.after,
     })),
     total,
     actions: actions.map((x) => x.action),
@@ -71,6 +74,7 @@ export async function auditCsv(ctx: FirmContext, q: AuditQuery): Promise<string>
   return Papa.unparse(safeRows(all.map((e) => ({
     at: e.at, action: e.action, user: e.userEmail ?? '', entity_type: e.entityType, entity_id: e.entityId ?? '',
     project_id: e.projectId ?? '', project: e.projectName ?? '', before_sha256: e.beforeHash ?? '', after_sha256: e.afterHash ?? '',
+    prev_hash: e.prevHash ?? '', row_hash: e.rowHash ?? '',
     details: e.after === null || e.after === undefined ? '' : JSON.stringify(e.after),
   }))), { newline: '\r\n' }) + '\r\n'
 }

@@ -8,7 +8,7 @@ import { and, eq } from 'drizzle-orm'
 import Papa from 'papaparse'
 import { extractText, getDocumentProxy } from 'unpdf'
 import { closeDb, useDb } from '../../server/db/client'
-import { adjustments, downloads, memberships, passwordResets, projectAccess, users } from '../../server/db/schema'
+import { adjustments, auditLog, downloads, memberships, passwordResets, projectAccess, users } from '../../server/db/schema'
 import { readLandXml } from '../../server/engine/io/landxml'
 import { notifyRunFailed } from '../../server/services/notifications'
 import { smtpPort } from '../support/env'
@@ -188,6 +188,12 @@ describe('audit log', () => {
     const rows = Papa.parse<Record<string, string>>(await csv.text(), { header: true, skipEmptyLines: true }).data
     expect(rows.some((x) => x.entity_id === String(signoff.id) && x.user === DEMO.surveyor)).toBe(true)
     expect(rows.every((x) => x.action === 'signoff.create')).toBe(true)
+    // the export carries the hash chain, so a kept copy anchors the log outside the database
+    const [stored] = await useDb().select().from(auditLog).where(and(eq(auditLog.action, 'signoff.create'), eq(auditLog.entityId, String(signoff.id))))
+    const exported = rows.find((x) => x.entity_id === String(signoff.id))!
+    expect(exported.row_hash).toMatch(/^[0-9a-f]{64}$/)
+    expect(exported.row_hash).toBe(stored!.rowHash)
+    expect(exported.prev_hash).toBe(stored!.prevHash ?? '')
   })
 })
 
