@@ -146,16 +146,21 @@ export async function findDoneRun(ctx: FirmContext, project: Project, number: nu
   return run
 }
 
+/** Rows the run stored, from its summary: an unfiltered page then needs no count over 100,000 rows. */
+const storedRows = (run: Adjustment) => (run.summary as unknown as RunSummary).rows
+
 export async function runStations(ctx: FirmContext, project: Project, number: number, q: StationPageQuery) {
-  return pageStations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
+  const run = await findDoneRun(ctx, project, number)
+  return pageStations(ctx.firm.id, run.id, storedRows(run)?.stations, q)
 }
 export async function runObservations(ctx: FirmContext, project: Project, number: number, q: ObservationPageQuery) {
-  return pageObservations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
+  const run = await findDoneRun(ctx, project, number)
+  return pageObservations(ctx.firm.id, run.id, storedRows(run)?.observations, q)
 }
 export async function runRelative(ctx: FirmContext, project: Project, number: number, q: RelativePageQuery) {
-  return pageRelative(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
+  const run = await findDoneRun(ctx, project, number)
+  return pageRelative(ctx.firm.id, run.id, storedRows(run)?.relative, q)
 }
-/** What the map and the two histograms draw, computed in SQL. */
 /** The overview's JSON text (docs/api.md): kept with the run when it was stored. */
 export async function runOverview(ctx: FirmContext, project: Project, number: number): Promise<string> {
   const run = await findDoneRun(ctx, project, number)

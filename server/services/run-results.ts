@@ -236,14 +236,25 @@ export function pageRelative(firmId: number, runId: number, known: number | unde
 
 // ── overviews computed in SQL (histograms, redundancy bins, the map) ────────
 
+/**
+ * Runs the queries side by side on the pool, one after the other on a
+ * transaction (one connection: pg would queue them anyway, and warns).
+ */
+async function allOn<T extends readonly (() => Promise<unknown>)[]>(db: Pick<Tx, 'execute'>, queries: T): Promise<{ -readonly [K in keyof T]: Awaited<ReturnType<T[K]>> }> {
+  if (db === useDb()) return Promise.all(queries.map((q) => q())) as never
+  const out: unknown[] = []
+  for (const q of queries) out.push(await q())
+  return out as never
+}
+
 /** Counts of w in 0.5-wide bins from −5 to 5 (outermost bins collect the rest) and of rᵢ in the redundancy report's bins. */
 export async function distributions(firmId: number, runId: number, db: Pick<Tx, 'execute'> = useDb()) {
-  const [w, r] = await Promise.all([
-    db.execute<{ bin: number; n: number }>(sql`select least(greatest(floor((w + 5) / 0.5), 0), 19)::int as bin, count(*)::int as n
+  const [w, r] = await allOn(db, [
+    () => db.execute<{ bin: number; n: number }>(sql`select least(greatest(floor((w + 5) / 0.5), 0), 19)::int as bin, count(*)::int as n
       from observation_results where ${runScope(firmId, runId)} and not excluded and w is not null group by 1`),
-    db.execute<{ bin: number; n: number }>(sql`select width_bucket(redundancy, array[0, 0.1, 0.2, 0.4, 0.6, 0.8, 1.0001]::float8[])::int as bin, count(*)::int as n
+    () => db.execute<{ bin: number; n: number }>(sql`select width_bucket(redundancy, array[0, 0.1, 0.2, 0.4, 0.6, 0.8, 1.0001]::float8[])::int as bin, count(*)::int as n
       from observation_results where ${runScope(firmId, runId)} and not excluded and redundancy is not null group by 1`),
-  ])
+  ] as const)
   const wBins = Array.from({ length: 20 }, () => 0)
   for (const row of w.rows) wBins[row.bin] = row.n
   const rBins = Array.from({ length: 6 }, () => 0)
@@ -258,15 +269,15 @@ export async function distributions(firmId: number, runId: number, db: Pick<Tx, 
  * 30,000 lines is a few hundred KB.
  */
 export async function mapData(firmId: number, runId: number, db: Pick<Tx, 'execute'> = useDb()): Promise<PackedMap> {
-  const [st, ln] = await Promise.all([
-    db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null }>(sql`
+  const [st, ln] = await allOn(db, [
+    () => db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null }>(sql`
       select name, kind, fixed, east, north, semi_major95 as a, semi_minor95 as b, azimuth_deg as az
       from adjusted_stations where ${runScope(firmId, runId)} and east is not null and north is not null order by id`),
-    db.execute<{ p: string; q: string; rating: number }>(sql`
+    () => db.execute<{ p: string; q: string; rating: number }>(sql`
       select least(at, "to") as p, greatest(at, "to") as q,
         max(case when ${sql.raw(FAILS)} then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating
       from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2`),
-  ])
+  ] as const)
   const index = new Map<string, number>()
   const stations: MapStationIn[] = st.rows.map((s, i) => {
     index.set(s.name, i)
@@ -284,7 +295,7 @@ export async function mapData(firmId: number, runId: number, db: Pick<Tx, 'execu
 
 /** The run page's overview: the packed map and the histograms. */
 export async function computeOverview(firmId: number, runId: number, db: Pick<Tx, 'execute'> = useDb()) {
-  const [map, dist] = await Promise.all([mapData(firmId, runId, db), distributions(firmId, runId, db)])
+  const [map, dist] = await allOn(db, [() => mapData(firmId, runId, db), () => distributions(firmId, runId, db)] as const)
   return { ...map, distributions: dist }
 }
 

@@ -105,21 +105,23 @@ async function runPage(pagePath: string) {
       await page.locator('[data-testid="network-map"] canvas').first().waitFor({ timeout: 120_000 })
       await page.evaluate(twoFrames)
       const map = performance.now() - t0
+      // no named helpers inside: tsx would wrap them in a __name() the page does not have
       const info = await page.evaluate(() => {
         const m = document.querySelector<HTMLElement>('[data-testid="network-map"]')
         // the browser's timeline (this type-checks against Node's performance, which has no navigation entries)
         const nav = (performance.getEntriesByType as (t: string) => unknown[])('navigation')[0] as PerformanceNavigationTiming | undefined
         const ov = performance.getEntriesByType('resource').find((r) => r.name.endsWith('/overview')) as PerformanceResourceTiming | undefined
         const drawn = performance.getEntriesByName('tiepoint-map-drawn')[0]
-        const ms = (v: number | undefined) => (v === undefined ? '?' : v.toFixed(0))
         return {
           stations: m?.dataset.stations, lines: m?.dataset.lines, nodes: document.getElementsByTagName('*').length,
-          // in the page's own clock, from navigation start
-          timeline: `HTML ${ms(nav?.responseEnd)} ms, DOMContentLoaded ${ms(nav?.domContentLoadedEventEnd)} ms, overview request ${ms(ov?.startTime)}–${ms(ov?.responseEnd)} ms (${ov ? (ov.encodedBodySize / 1024).toFixed(0) : '?'} KiB), map built and drawn ${ms(drawn?.startTime)}–${ms(drawn ? drawn.startTime + drawn.duration : undefined)} ms`,
+          html: nav?.responseEnd, dcl: nav?.domContentLoadedEventEnd, ovStart: ov?.startTime, ovEnd: ov?.responseEnd, ovBytes: ov?.encodedBodySize,
+          drawStart: drawn?.startTime, drawEnd: drawn ? drawn.startTime + drawn.duration : undefined,
         }
       })
+      const ms = (v: number | undefined) => (v === undefined ? '?' : v.toFixed(0))
+      const timeline = `HTML ${ms(info.html)} ms, DOMContentLoaded ${ms(info.dcl)} ms, overview request ${ms(info.ovStart)}–${ms(info.ovEnd)} ms (${info.ovBytes !== undefined ? (info.ovBytes / 1024).toFixed(0) : '?'} KiB), map built and drawn ${ms(info.drawStart)}–${ms(info.drawEnd)} ms`
       console.log(`  run page, ${label} (headless Chromium): verdict visible ${verdict.toFixed(0)} ms, first table page ${table.toFixed(0)} ms, map drawn ${map.toFixed(0)} ms (target 2,000 ms); map ${info.stations} stations, ${info.lines} lines; ${info.nodes.toLocaleString('en')} DOM elements; load average ${load()}`)
-      console.log(`    in the page: ${info.timeline}`)
+      console.log(`    in the page's own clock from navigation start: ${timeline}`)
     }
     // the sign-off page of the same run: the preview is one page of stations, the control points and counts
     const t1 = performance.now()
