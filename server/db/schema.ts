@@ -382,7 +382,11 @@ export const observationResults = pgTable('observation_results', {
   index('observation_results_run_order').on(t.firmId, t.adjustmentId, t.id),
   // the residual table's default order (largest |w| first, as pageObservations sorts): the run report's
   // first page is read from the index instead of sorting every observation of the run
-  index('observation_results_run_abs_w').on(t.firmId, t.adjustmentId, sql`abs(${t.w}) desc nulls last`, t.id)])
+  index('observation_results_run_abs_w').on(t.firmId, t.adjustmentId, sql`abs(${t.w}) desc nulls last`, t.id),
+  // the few observations that fail (FAILS in server/services/run-results.ts, word for word), in the same
+  // order: the residual table's "fails" view and the verdict's list without reading the whole run
+  index('observation_results_run_fails').on(t.firmId, t.adjustmentId, sql`abs(${t.w}) desc nulls last`, t.id)
+    .where(sql`(not excluded and (flagged or tau_flagged))`)])
 
 /**
  * The run page's overview (the packed map and the histograms, see
