@@ -19,6 +19,7 @@ import { fail, Stop } from './failure'
 import { LOCAL_RADIUS, LocalSurface, ProjectedSurface, type Surface } from './geodesy'
 import { GridProjection } from './grid'
 import { buildHeightProblem, type HeightRow } from './height'
+import { adjust3d } from './network3d'
 import { mergeControls, planeDatumCheck, stationLegCheck, validateObservations, validateProfile, validateSettings, type PlaneKindTag } from './input'
 import { aprioriSigma, isAngularKind } from './models/registry'
 import type { SigmaContext } from './models/types'
@@ -131,11 +132,13 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   const obsList = input.observations
   validateObservations(obsList)
   const vector = obsList.find((o) => o.kind === 'gnss_baseline' && !o.excluded)
-  if (vector) {
-    fail('input', `line ${vector.line}, column kind: GNSS baselines need the combined 3D adjustment, which this plane and height adjustment is not`)
+  if (vector && !input.projection) {
+    fail('input', `line ${vector.line}, column kind: GNSS baselines need a georeferenced project — a projected CRS and a geoid separation N — to be combined with grid coordinates and heights; a local plane cannot take them`)
   }
   const refraction = refractionOf(input)
   const { surface, proj, geoid, method } = surfaceOf(input)
+  // GNSS baselines: the whole run is adjusted in 3D (./network3d)
+  if (vector && proj) return adjust3d({ input, settings, timings, solveOptions, controlByName, proj, geoid, refraction, profile })
 
   const outputs: ObservationResult[] = obsList.map((o) => {
     const angular = isAngularKind(o.kind)
@@ -568,7 +571,7 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
     sigma0,
     globalTest: globalTestOf(totals.vpv, totals.r, settings.alpha),
     stations: allNames.map((s) => stationOut.get(s)!),
-    observations: outputs,
+    observations: withVectorComponents(outputs, obsList),
     relative,
     health,
     counts: { n: totals.n, u: totals.u, r: totals.r },
@@ -580,6 +583,19 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   if (planeSummary) result.plane = planeSummary
   if (heightSummary) result.height = heightSummary
   return result
+}
+
+/**
+ * Every vector reaching the plane and height adjustment is excluded (used ones
+ * go to ./network3d); it is still reported as the 3D run reports vectors: three
+ * rows, components dx, dy, dz, so a vector looks the same in every run.
+ */
+function withVectorComponents(outputs: ObservationResult[], obsList: ObservationRecord[]): ObservationResult[] {
+  return outputs.flatMap((out, i) => {
+    const rec = i < obsList.length ? obsList[i] : null
+    if (!rec || rec.kind !== 'gnss_baseline' || !rec.vector) return [out]
+    return (['dx', 'dy', 'dz'] as const).map((component, c) => ({ ...out, component, observed: rec.vector!.d[c], valueUnit: 'm' as const, residualUnit: 'm' as const }))
+  })
 }
 
 /** A placed station's position for the rough convergence of approximate azimuths. */

@@ -10,6 +10,8 @@
 //   --crs EPSG:<code>            a projected CRS of the bundled list (shared/crs.ts)
 //   --proj4 "<definition>"       or any projected CRS by its proj4 definition
 //   --geoid-separation METRES    N for the whole network (ellipsoidal = height + N)
+//                                (a file with GNSS baselines needs --crs or --proj4, and N:
+//                                it is then adjusted as one combined 3D network, ./network3d)
 //   --refraction K               coefficient of refraction (default 0.13)
 //   --refraction-sigma SK        its σ (default 0.05)
 //   --project-height METRES      local plane: reduce ground distances to this height

@@ -29,7 +29,15 @@ export function formatReport(result: AdjustmentResult): string {
   out.push(`Settings: datum ${result.settings.datum}, scaling ${result.settings.scaling}, α = ${result.settings.alpha}, α0 = ${result.settings.alpha0}, β0 = ${result.settings.beta0}`)
   out.push(`Iterations ${result.iterations}; observations n = ${result.counts.n}, unknowns u = ${result.counts.u}, redundancy r = ${result.counts.r}`)
   const gr = result.gridReduction
-  if (gr?.applied && gr.projectHeightM === null) {
+  const n3 = result.network3d
+  if (n3) {
+    out.push(
+      `Combined 3D adjustment: ${n3.vectors} GNSS vector${n3.vectors === 1 ? '' : 's'} with the terrestrial observations on the ellipsoid a = ${f(n3.ellipsoid.a, 3)} m` +
+        `${n3.ellipsoid.inverseFlattening ? `, 1/f = ${f(n3.ellipsoid.inverseFlattening, 9)}` : ''}; heights H = h − N with N = ${f(n3.geoidSeparationM, 3)} m.`,
+    )
+    out.push('  The deflection of the vertical is ignored: the ellipsoid normal stands for the plumb line (directions, zenith angles, levelling).')
+    if (n3.heightsAssumed.length) out.push(`  No height known for ${n3.heightsAssumed.join(', ')} before the adjustment (mean known height used to start).`)
+  } else if (gr?.applied && gr.projectHeightM === null) {
     out.push(
       `Grid and ground: ${gr.distances} distance${gr.distances === 1 ? '' : 's'} reduced to the grid; combined factor mean ${f(gr.meanCombinedFactor, 8)} ` +
         `(${f(gr.minCombinedFactor, 8)} … ${f(gr.maxCombinedFactor, 8)}) = scale factor ${f(gr.meanScaleFactor, 8)} × elevation factor ${f(gr.meanElevationFactor, 8)}; ` +
@@ -61,6 +69,7 @@ export function formatReport(result: AdjustmentResult): string {
   out.push(netLine('all', { dof: result.dof, sigma0: result.sigma0, globalTest: g } as NetworkSummary))
   if (result.plane) out.push(netLine('plane', result.plane))
   if (result.height) out.push(netLine('height', result.height))
+  if (result.network3d) out.push(netLine('3D', result.network3d))
   out.push('')
   out.push(`Coordinates (m), standard deviations (mm), ellipses at 1σ and ${conf} % (mm, major-axis azimuth in degrees)`)
   out.push(
@@ -88,6 +97,20 @@ export function formatReport(result: AdjustmentResult): string {
       `  ${String(o.line).padStart(5)} ${(o.kind + (o.component ? ` ${o.component}` : '')).padEnd(19)} ${o.at.padEnd(8)} ${(o.from ?? '').padEnd(8)} ${o.to.padEnd(8)} ` +
         `${(f(o.residual, d) + unit).padStart(10)} ${(f(o.sigma, d) + unit).padStart(8)} ${f(o.redundancy, 2, 5)} ${f(o.w, 2, 7)} ${(f(o.mdb, d) + unit).padStart(9)} ${f(o.mdbEffect === null ? null : o.mdbEffect * 1000, 1, 9)}  ${flag}`,
     )
+  }
+  const vectorRows = result.observations.filter((o) => o.vectorTest && o.component === 'dx')
+  if (vectorRows.length) {
+    out.push('')
+    const dist = vectorRows[0].vectorTest!.distribution
+    out.push(`GNSS vector tests, worst first (whole vector, ${dist === 'F' ? 'F(q, r − q) with σ̂0 from the other observations' : 'χ²(q) with σ0 = 1'}, α0 = ${result.settings.alpha0}; residual in the local east, north, up of the vector's start, mm)`)
+    const ratio = (o: ObservationResult) => o.vectorTest!.statistic / o.vectorTest!.critical
+    for (const o of [...vectorRows].sort((a, b) => ratio(b) - ratio(a) || a.line - b.line)) {
+      const t = o.vectorTest!
+      out.push(
+        `  ${String(o.line).padStart(5)} ${o.at.padEnd(8)} → ${o.to.padEnd(8)} T ${f(t.statistic, 2, 8)}  critical ${f(t.critical, 2, 6)}  ` +
+          `e ${f(t.residualEnu[0] * 1000, 1, 6)} n ${f(t.residualEnu[1] * 1000, 1, 6)} u ${f(t.residualEnu[2] * 1000, 1, 6)}  ${t.flagged ? 'FLAG' : ''}`,
+      )
+    }
   }
   out.push('')
   const used = result.observations.filter((o) => o.redundancy !== null)

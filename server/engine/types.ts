@@ -294,10 +294,31 @@ export interface AdjustmentResult {
   counts: { n: number; u: number; r: number }
   critical: { w: number; tau: number | null; delta0: number }
   settings: AdjustSettings
-  /** ground-to-grid reduction of distances (always set by adjustNetwork) */
+  /** ground-to-grid reduction of distances (set by the plane and height adjustment; absent for a combined 3D run, which reduces nothing — see network3d) */
   gridReduction?: GridReductionSummary
   /** the coefficient of refraction used for zenith angles, its σ, and how many zeniths used it */
   refraction?: { k: number; sigmaK: number; zeniths: number }
+  /** set when the run had GNSS baselines: the combined 3D adjustment (plane and height are then absent) */
+  network3d?: Network3dSummary
+}
+
+/**
+ * The combined 3D adjustment of GNSS baselines with terrestrial observations
+ * (./network3d): its statistics as for one network, and what the model assumed.
+ */
+export interface Network3dSummary extends NetworkSummary {
+  /** GNSS baselines used */
+  vectors: number
+  /** heights H = h − N with this one geoid separation N (metres) */
+  geoidSeparationM: number
+  /** the ellipsoid of the project's CRS (inverseFlattening null for a sphere) */
+  ellipsoid: { a: number; inverseFlattening: number | null }
+  /** the ellipsoid normal stands for the plumb line: no deflection of the vertical applied (for the report) */
+  deflectionOfVerticalIgnored: true
+  /** stations with no height before the adjustment: the mean known height stood in as the start (the adjustment then determines it) */
+  heightsAssumed: string[]
+  /** which distribution the vector tests used: χ²(q) with σ0 = 1, or F(q, r − q) with the variance factor estimated */
+  vectorTest: 'chi2' | 'F'
 }
 
 export type AdjustFailureCode = 'singular' | 'not_converged' | 'unplaceable' | 'input'

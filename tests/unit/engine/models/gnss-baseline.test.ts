@@ -43,12 +43,12 @@ describe('gnss_baseline checks', () => {
     expect(gnssBaseline.validate(row({ d: [1, 1, 2], sigma: [0.003, 0.003, 0.003], correlation: [1, 0, 0] }))[0].column).toBe('correlation')
   })
 
-  it('the plane and height adjustment refuses a vector by line and column', () => {
+  it('a local-plane run (no CRS) refuses a vector by line and column, asking for a CRS and N', () => {
     const out = adjustNetwork({
       controls: [{ line: 2, station: 'A', east: 0, north: 0, height: 0, sdEast: null, sdNorth: null, sdHeight: null }],
       observations: [row({ d: [60, -80, 0], sigma: [0.003, 0.003, 0.003], correlation: null })],
     })
     expect(out.ok).toBe(false)
-    if (!out.ok) expect(out.reason).toMatch(/^line 7, column kind: GNSS baselines need/)
+    if (!out.ok) expect(out.reason).toMatch(/^line 7, column kind: GNSS baselines need a georeferenced project — a projected CRS and a geoid separation N/)
   })
 })
