@@ -19,7 +19,8 @@ export const WATCH_W = 2
 
 export function rateObservation(o: RunObservation): Rating {
   if (o.excluded) return 'pass'
-  if (o.flagged || o.tauFlagged) return 'fail'
+  // a GNSS vector is tested whole: each of its three rows fails when the vector does
+  if (o.flagged || o.tauFlagged || o.vectorTest?.flagged) return 'fail'
   if ((o.w !== null && Math.abs(o.w) > WATCH_W) || o.weak) return 'watch'
   return 'pass'
 }
@@ -81,11 +82,12 @@ export function useRunFormat(units: () => 'm' | 'ft' | 'usft', angleFormat?: () 
 }
 
 export function kindLabel(kind: string): string {
-  return ({ direction: 'Direction', angle: 'Angle', zenith: 'Zenith angle', slope_distance: 'Slope distance', horizontal_distance: 'Horizontal distance', azimuth: 'Azimuth', height_difference: 'Height difference', control: 'Control coordinate' } as Record<string, string>)[kind] ?? kind
+  return ({ direction: 'Direction', angle: 'Angle', zenith: 'Zenith angle', slope_distance: 'Slope distance', horizontal_distance: 'Horizontal distance', azimuth: 'Azimuth', height_difference: 'Height difference', gnss_baseline: 'GNSS vector', control: 'Control coordinate' } as Record<string, string>)[kind] ?? kind
 }
 
 export function observationLabel(o: Pick<RunObservation, 'kind' | 'at' | 'from' | 'to' | 'component'>): string {
   if (o.kind === 'control') return `${o.at} ${o.component ?? ''}`.trim()
+  if (o.kind === 'gnss_baseline') return `${o.at} → ${o.to} ${({ dx: 'ΔX', dy: 'ΔY', dz: 'ΔZ' } as Record<string, string>)[o.component ?? ''] ?? ''}`.trim()
   return o.from ? `${o.at}: ${o.from} → ${o.to}` : `${o.at} → ${o.to}`
 }
 

@@ -378,6 +378,18 @@ export const observationResults = pgTable('observation_results', {
   combinedFactor: doublePrecision(),
   elevationFactor: doublePrecision(),
   scaleFactor: doublePrecision(),
+  /**
+   * gnss_baseline component rows: the test of the whole vector (the same on its
+   * three rows) — statistic, critical value and its distribution, flag — and
+   * the residual vector in local east/north/up at `at` (m)
+   */
+  vectorStatistic: doublePrecision(),
+  vectorCritical: doublePrecision(),
+  vectorDistribution: text(),
+  vectorFlagged: boolean(),
+  residualE: doublePrecision(),
+  residualN: doublePrecision(),
+  residualU: doublePrecision(),
 }, (t) => [runResultKey('observation_results_run_fk', t), 
   index('observation_results_run_order').on(t.firmId, t.adjustmentId, t.id),
   // the residual table's default order (largest |w| first, as pageObservations sorts): the run report's
@@ -386,7 +398,7 @@ export const observationResults = pgTable('observation_results', {
   // the few observations that fail (FAILS in server/services/run-results.ts, word for word), in the same
   // order: the residual table's "fails" view and the verdict's list without reading the whole run
   index('observation_results_run_fails').on(t.firmId, t.adjustmentId, sql`abs(${t.w}) desc nulls last`, t.id)
-    .where(sql`(not excluded and (flagged or tau_flagged))`)])
+    .where(sql`(not excluded and (flagged or tau_flagged or coalesce(vector_flagged, false)))`)])
 
 /**
  * The run page's overview (the packed map and the histograms, see

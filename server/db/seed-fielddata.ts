@@ -6,6 +6,7 @@
 // Idempotent: skipped when those bytes are already there.
 import { createHash } from 'node:crypto'
 import { readFileSync } from 'node:fs'
+import { basename } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { and, eq } from 'drizzle-orm'
 import { uploadObservationSet } from '../services/observations'
@@ -15,8 +16,10 @@ import { crewMembers, crews, firms, observationSets, projects, users } from './s
 
 export const DEMO_NETWORK_CSV = fileURLToPath(new URL('./demo/demo-network.csv', import.meta.url))
 
-export async function seedFieldData(db: Db, projectId: number): Promise<void> {
-  const bytes = readFileSync(DEMO_NETWORK_CSV)
+export const DEMO_GNSS_CSV = fileURLToPath(new URL('./demo/demo-gnss.csv', import.meta.url))
+
+export async function seedFieldData(db: Db, projectId: number, file = DEMO_NETWORK_CSV): Promise<void> {
+  const bytes = readFileSync(file)
   const sha256 = createHash('sha256').update(bytes).digest('hex')
   const [project] = await db.select().from(projects).where(eq(projects.id, projectId)).limit(1)
   if (!project) return
@@ -35,5 +38,5 @@ export async function seedFieldData(db: Db, projectId: number): Promise<void> {
     firm,
     role: 'party_chief',
   }
-  await uploadObservationSet(ctx, project, { name: 'demo-network.csv', bytes, crewId: crew?.id ?? null })
+  await uploadObservationSet(ctx, project, { name: basename(file), bytes, crewId: crew?.id ?? null })
 }

@@ -9,8 +9,10 @@ import { queueRun } from '../services/adjustments'
 import { hashPassword } from '../services/passwords'
 import { stopBoss } from '../services/run-queue'
 import type { FirmContext } from '../utils/guard'
+import { findCrs } from '../../shared/crs'
 import { DEMO_PROJECT_HEIGHT_M } from './demo/generate'
-import { seedFieldData } from './seed-fielddata'
+import { GNSS_DEMO } from './demo/gnss-project'
+import { DEMO_GNSS_CSV, seedFieldData } from './seed-fielddata'
 import { closeDb, useDb } from './client'
 import type { Db } from './client'
 import {
@@ -100,7 +102,17 @@ export async function seedFoundation(db: Db) {
   await db.insert(projectCrews).values({ firmId: demo.id, projectId: project.id, crewId: north!.id }).onConflictDoNothing()
   await db.insert(projectAccess).values({ firmId: demo.id, projectId: project.id, userId: people['client@tiepoint.test']!, grantedBy: people['chief@tiepoint.test']! }).onConflictDoNothing()
 
-  return { demo, other, people, project }
+  // the second demo project: GNSS vectors and a traverse in a projected CRS with N
+  let [gnss] = await db.select().from(projects).where(and(eq(projects.firmId, demo.id), eq(projects.name, GNSS_DEMO.name)))
+  if (!gnss) {
+    ;[gnss] = await db.insert(projects).values({
+      firmId: demo.id, name: GNSS_DEMO.name, description: GNSS_DEMO.description, crs: GNSS_DEMO.crs, crsDefinition: findCrs(GNSS_DEMO.crs)!.proj4,
+      geoidSeparationM: GNSS_DEMO.geoidSeparationM, units: 'm', createdBy: people['chief@tiepoint.test']!,
+    }).returning()
+  }
+  await db.insert(projectCrews).values({ firmId: demo.id, projectId: gnss!.id, crewId: north!.id }).onConflictDoNothing()
+
+  return { demo, other, people, project, gnssProject: gnss! }
 }
 
 /**
@@ -129,6 +141,8 @@ export async function seedDemo(db: Db = useDb()) {
   const base = await seedFoundation(db)
   await seedFieldData(db, base.project.id)
   await seedDemoRun(db, base.project.id, base.people['chief@tiepoint.test']!)
+  await seedFieldData(db, base.gnssProject.id, DEMO_GNSS_CSV)
+  await seedDemoRun(db, base.gnssProject.id, base.people['chief@tiepoint.test']!)
   return base
 }
 

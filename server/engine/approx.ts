@@ -70,54 +70,166 @@ export function approximatePlane(input: PlaneApproxInput): PlaneApproxResult {
   for (const d of input.directions) setStation[d.set] = d.at
 
   if (coords.size === 0 && input.seedIfEmpty) seed(input, coords, orientation)
+  if (input.stations.every((st) => coords.has(st))) {
+    // every station already placed (given, or fitted from a local frame): only the sets to orient
+    orientSets(input, coords, orientation)
+    for (let s = 0; s < input.setCount; s++) if (Number.isNaN(orientation[s])) orientation[s] = 0
+    return { coords, orientation, unplaced: [] }
+  }
 
+  const neighbours = placeByRules(input, coords, orientation)
+  if (!input.noLocalFrame && coords.size >= 2 && input.stations.some((s) => !coords.has(s))) {
+    // stalled (e.g. no set sees a known point): build each connected piece of the
+    // network that still has unplaced stations in a local frame of its own, from a
+    // seed inside that piece, and fit it onto the piece's placed stations; then
+    // carry on from there. (One seed for the whole network reached one piece
+    // only, so a second piece with its own control stayed unplaced.)
+    let fitted = false
+    for (const piece of pieces(input.stations, neighbours)) {
+      if (piece.every((s) => coords.has(s))) continue
+      const placed = piece.filter((s) => coords.has(s))
+      if (placed.length < 2) continue
+      const local = approximatePlane({ ...restrictTo(input, piece), known: new Map(), seedIfEmpty: true, noLocalFrame: true })
+      const common = placed.filter((s) => local.coords.has(s))
+      if (common.length < 2) continue
+      const t = fitRigid(common.map((s) => ({ x: local.coords.get(s)!, p: coords.get(s)! })))
+      for (const [s, xy] of local.coords) if (!coords.has(s)) coords.set(s, t(xy))
+      fitted = true
+    }
+    if (fitted) return approximatePlane({ ...input, known: coords, noLocalFrame: true })
+  }
+  orientSets(input, coords, orientation)
+  for (let s = 0; s < input.setCount; s++) if (Number.isNaN(orientation[s])) orientation[s] = 0
+  return { coords, orientation, unplaced: input.stations.filter((s) => !coords.has(s)) }
+}
+
+/**
+ * The construction passes (orientation of sets, polar points, intersections,
+ * free stations, resections) until nothing more can be placed. Returns the
+ * station graph. Apart from approximatePlane so that neither is one large
+ * function for the JIT to compile.
+ */
+function placeByRules(input: PlaneApproxInput, coords: Map<string, XY>, orientation: Float64Array): Map<string, string[]> {
   const byStation = indexByStation(input)
   // ---- large networks: only sets not yet oriented are looked at, and only
   // stations with a placed neighbour are tried (the result is unchanged)
   const sets = new OrientationQueue(input)
   const neighbours = new Map<string, string[]>()
   for (const [st, o] of byStation) {
-    const nb = new Set<string>()
-    for (const d of o.directions) nb.add(d.at === st ? d.to : d.at)
-    for (const g of o.angles) for (const x of [g.at, g.from, g.to]) if (x !== st) nb.add(x)
-    for (const d of o.distances) nb.add(d.at === st ? d.to : d.at)
-    for (const z of o.azimuths) nb.add(z.at === st ? z.to : z.at)
-    neighbours.set(st, [...nb])
+    // a handful per station: a linear search dedupes without a Set per station
+    const nb: string[] = []
+    const add = (x: string) => {
+      if (x !== st && !nb.includes(x)) nb.push(x)
+    }
+    for (const d of o.directions) add(d.at === st ? d.to : d.at)
+    for (const g of o.angles) {
+      add(g.at)
+      add(g.from)
+      add(g.to)
+    }
+    for (const d of o.distances) add(d.at === st ? d.to : d.at)
+    for (const z of o.azimuths) add(z.at === st ? z.to : z.at)
+    neighbours.set(st, nb)
   }
-  const reachable = (st: string) => (neighbours.get(st) ?? []).some((nb) => coords.has(nb))
-  // ---- end large networks
-  let allowAmbiguous = false
-  for (let guard = 0; guard < 10 * input.stations.length + 10; guard++) {
-    let progress = sets.orient(coords, orientation)
-    for (const st of input.stations) {
-      if (coords.has(st) || !reachable(st)) continue
-      const p = place(st, byStation.get(st) ?? EMPTY, coords, orientation, allowAmbiguous)
-      if (p) {
-        coords.set(st, p)
-        progress = true
-        allowAmbiguous = false
+  // Stations are tried in input order, pass after pass, as before; but only the
+  // frontier (unplaced stations with a placed neighbour) is visited: a station
+  // placed in a pass puts its later neighbours into this pass and its earlier
+  // ones into the next, exactly the stations the full scan would have found
+  // reachable — so the placements are the same, at a cost per pass of the
+  // frontier instead of the whole network.
+  const stations = input.stations
+  const n = stations.length
+  const indexOf = new Map(stations.map((st, i) => [st, i]))
+  const placed = new Uint8Array(n)
+  const inFrontier = new Uint8Array(n)
+  let placedCount = 0
+  let next: number[] = []
+  const neighbourIdx: Int32Array[] = stations.map((st) => Int32Array.from((neighbours.get(st) ?? []).map((nb) => indexOf.get(nb) ?? -1).filter((j) => j >= 0)))
+  for (let i = 0; i < n; i++) if (coords.has(stations[i])) {
+    placed[i] = 1
+    placedCount++
+  }
+  // stations placed before the passes (known, seeded) and not in the list may still have neighbours in it
+  for (const st of coords.keys()) {
+    for (const nb of neighbours.get(st) ?? []) {
+      const j = indexOf.get(nb)
+      if (j !== undefined && !placed[j] && !inFrontier[j]) {
+        inFrontier[j] = 1
+        next.push(j)
       }
     }
-    if (input.stations.every((s) => coords.has(s))) break
+  }
+  const heap = new MinHeap()
+  let allowAmbiguous = false
+  for (let guard = 0; guard < 10 * n + 10; guard++) {
+    let progress = sets.orient(coords, orientation)
+    for (const j of next) heap.push(j)
+    next = []
+    while (heap.size > 0) {
+      const i = heap.pop()
+      if (placed[i]) continue
+      const st = stations[i]
+      const p = place(st, byStation.get(st) ?? EMPTY, coords, orientation, allowAmbiguous)
+      if (!p) {
+        next.push(i)
+        continue
+      }
+      coords.set(st, p)
+      sets.touch(st)
+      placed[i] = 1
+      placedCount++
+      progress = true
+      allowAmbiguous = false
+      for (const j of neighbourIdx[i]) {
+        if (placed[j] || inFrontier[j]) continue
+        inFrontier[j] = 1
+        if (j > i) heap.push(j)
+        else next.push(j)
+      }
+    }
+    if (placedCount === n) break
     if (!progress) {
       if (allowAmbiguous) break
       allowAmbiguous = true
     }
   }
-  if (!input.noLocalFrame && coords.size >= 2 && input.stations.some((s) => !coords.has(s))) {
-    // stalled (e.g. no set sees a known point): build the network in a local frame
-    // from a seed and fit it onto the placed stations, then carry on from there
-    const local = approximatePlane({ ...input, known: new Map(), seedIfEmpty: true, noLocalFrame: true })
-    const common = [...coords.keys()].filter((s) => local.coords.has(s))
-    if (common.length >= 2) {
-      const t = fitRigid(common.map((s) => ({ x: local.coords.get(s)!, p: coords.get(s)! })))
-      for (const [s, xy] of local.coords) if (!coords.has(s)) coords.set(s, t(xy))
-      return approximatePlane({ ...input, known: coords, noLocalFrame: true })
+  return neighbours
+}
+
+/** Connected pieces of the station graph (stations joined by any observation), each in input order. */
+function pieces(stations: string[], neighbours: Map<string, string[]>): string[][] {
+  const pieceOf = new Map<string, number>()
+  const out: string[][] = []
+  for (const start of stations) {
+    if (pieceOf.has(start)) continue
+    const k = out.length
+    const queue = [start]
+    pieceOf.set(start, k)
+    for (let h = 0; h < queue.length; h++) {
+      for (const nb of neighbours.get(queue[h]) ?? []) {
+        if (!pieceOf.has(nb)) {
+          pieceOf.set(nb, k)
+          queue.push(nb)
+        }
+      }
     }
+    out.push(queue)
   }
-  orientSets(input, coords, orientation)
-  for (let s = 0; s < input.setCount; s++) if (Number.isNaN(orientation[s])) orientation[s] = 0
-  return { coords, orientation, unplaced: input.stations.filter((s) => !coords.has(s)) }
+  const order = new Map(stations.map((s, i) => [s, i]))
+  return out.map((p) => p.sort((a, b) => (order.get(a) ?? 0) - (order.get(b) ?? 0)))
+}
+
+/** The observations among one piece's stations (set numbers kept, so orientations line up). */
+function restrictTo(input: PlaneApproxInput, piece: string[]): PlaneApproxInput {
+  const inside = new Set(piece)
+  return {
+    ...input,
+    stations: piece,
+    directions: input.directions.filter((d) => inside.has(d.at)),
+    angles: input.angles.filter((g) => inside.has(g.at)),
+    distances: input.distances.filter((d) => inside.has(d.at)),
+    azimuths: input.azimuths.filter((z) => inside.has(z.at)),
+  }
 }
 
 /** Least-squares rotation (or reflection, for mirror-ambiguous distance-only frames) + translation. */
@@ -179,20 +291,45 @@ function seed(input: PlaneApproxInput, coords: Map<string, XY>, orientation: Flo
   if (line) coords.set(line.at === best ? line.to : line.at, { e: 0, n: line.value })
 }
 
-/** orientSets for the sets still unoriented only: same result, without rereading every direction each pass. */
+/**
+ * orientSets for the sets still unoriented only, and of those only the ones
+ * with a direction to or from a station placed since they were last looked at
+ * (the others cannot have changed): same result, without rereading every
+ * direction each pass.
+ */
 class OrientationQueue {
   private readonly bySet = new Map<number, ApproxDirection[]>()
+  private readonly setsOf = new Map<string, number[]>()
+  private dirty = new Set<number>()
   constructor(input: PlaneApproxInput) {
     for (const d of input.directions) {
       const l = this.bySet.get(d.set)
       if (l) l.push(d)
       else this.bySet.set(d.set, [d])
+      this.note(d.at, d.set)
+      this.note(d.to, d.set)
     }
+    this.dirty = new Set(this.bySet.keys())
+  }
+
+  private note(station: string, set: number): void {
+    const s = this.setsOf.get(station)
+    if (!s) this.setsOf.set(station, [set])
+    else if (s[s.length - 1] !== set) s.push(set)
+  }
+
+  /** a station was placed: its sets are worth another look */
+  touch(station: string): void {
+    for (const set of this.setsOf.get(station) ?? []) if (this.bySet.has(set)) this.dirty.add(set)
   }
 
   orient(coords: Map<string, XY>, orientation: Float64Array): boolean {
     let progress = false
-    for (const [set, dirs] of this.bySet) {
+    const look = this.dirty
+    this.dirty = new Set()
+    for (const set of look) {
+      const dirs = this.bySet.get(set)
+      if (!dirs) continue
       if (!Number.isNaN(orientation[set])) {
         this.bySet.delete(set)
         continue
@@ -216,6 +353,45 @@ class OrientationQueue {
       }
     }
     return progress
+  }
+}
+
+/** Binary min-heap of station indices (the stations of one pass, in input order). */
+class MinHeap {
+  private a: number[] = []
+  get size(): number {
+    return this.a.length
+  }
+  push(v: number): void {
+    const a = this.a
+    let i = a.length
+    a.push(v)
+    while (i > 0) {
+      const p = (i - 1) >> 1
+      if (a[p] <= v) break
+      a[i] = a[p]
+      i = p
+    }
+    a[i] = v
+  }
+  pop(): number {
+    const a = this.a
+    const top = a[0]
+    const last = a.pop()!
+    if (a.length > 0) {
+      let i = 0
+      for (;;) {
+        const l = 2 * i + 1
+        if (l >= a.length) break
+        const r = l + 1
+        const c = r < a.length && a[r] < a[l] ? r : l
+        if (a[c] >= last) break
+        a[i] = a[c]
+        i = c
+      }
+      a[i] = last
+    }
+    return top
   }
 }
 
@@ -255,9 +431,20 @@ function indexByStation(input: PlaneApproxInput): Map<string, StationObs> {
     get(d.to).directions.push(d)
     if (d.at !== d.to) get(d.at).directions.push(d)
   }
-  for (const g of input.angles) for (const s of new Set([g.at, g.from, g.to])) get(s).angles.push(g)
-  for (const d of input.distances) for (const s of new Set([d.at, d.to])) get(s).distances.push(d)
-  for (const z of input.azimuths) for (const s of new Set([z.at, z.to])) get(s).azimuths.push(z)
+  // each row once per distinct station it touches (no Set per row: this runs for every row of a large network)
+  for (const g of input.angles) {
+    get(g.at).angles.push(g)
+    if (g.from !== g.at) get(g.from).angles.push(g)
+    if (g.to !== g.at && g.to !== g.from) get(g.to).angles.push(g)
+  }
+  for (const d of input.distances) {
+    get(d.at).distances.push(d)
+    if (d.to !== d.at) get(d.to).distances.push(d)
+  }
+  for (const z of input.azimuths) {
+    get(z.at).azimuths.push(z)
+    if (z.to !== z.at) get(z.to).azimuths.push(z)
+  }
   return m
 }
 
@@ -312,7 +499,11 @@ function place(
   // free station / resection from this station's own direction sets
   const own = input.directions.filter((d) => d.at === st && coords.has(d.to))
   const bySet = new Map<number, ApproxDirection[]>()
-  for (const d of own) bySet.set(d.set, [...(bySet.get(d.set) ?? []), d])
+  for (const d of own) {
+    const l = bySet.get(d.set)
+    if (l) l.push(d)
+    else bySet.set(d.set, [d])
+  }
   for (const dirs of bySet.values()) {
     const targets = new Set(dirs.map((d) => d.to))
     const withDist = dirs.filter((d) => circles.some((c) => c.cName === d.to))

@@ -13,7 +13,7 @@
 // which is R·Z = R⁻ᵀ read row by row, only ever reaches entries inside the
 // envelope, so its cost is Σ over envelope entries of the row lengths of R
 // (≈ u·b² for bandwidth b) instead of u³ for the full matrix.
-// Source: Takahashi, K., Fagan, J. & Chen, M.-S. (1973) Formation of a sparse
+// Source: Takahashi, K., Fagan, J. & Chin, M.-S. (1973) Formation of a sparse
 // bus impedance matrix and its application to short circuit study, Proc. 8th
 // PICA Conference, Minneapolis, 63–69 (the recursion on the factor's pattern);
 // the envelope closure argument is Erisman, A.M. & Tinney, W.F. (1975) On
@@ -149,6 +149,38 @@ export function localMdbEffect(
       if (stationOf[cols[c]] !== st) continue
       let dx = 0
       for (let p = 0; p < n; p++) dx += qxx.get(cols[c], cols[p]) * ac[p]
+      s2 += (dx * k) ** 2
+    }
+    if (s2 > worst) worst = s2
+  }
+  return Math.sqrt(worst)
+}
+
+/**
+ * localMdbEffect with the row's block of Qxx already read (block[p·n + q] =
+ * Qxx(cols[p], cols[q]), n = cols.length): the same sums, no further look-ups.
+ */
+export function localMdbEffectOfBlock(
+  block: Float64Array,
+  cols: ArrayLike<number>,
+  ac: ArrayLike<number>,
+  k: number,
+  stationOf: Int32Array,
+): number {
+  let worst = 0
+  const n = cols.length
+  for (let a = 0; a < n; a++) {
+    const st = stationOf[cols[a]]
+    if (st < 0) continue
+    // the first coordinate column of this station in the row carries the station
+    let firstOfStation = true
+    for (let b = 0; b < a; b++) if (stationOf[cols[b]] === st) firstOfStation = false
+    if (!firstOfStation) continue
+    let s2 = 0
+    for (let c = 0; c < n; c++) {
+      if (stationOf[cols[c]] !== st) continue
+      let dx = 0
+      for (let p = 0; p < n; p++) dx += block[c * n + p] * ac[p]
       s2 += (dx * k) ** 2
     }
     if (s2 > worst) worst = s2

@@ -9,10 +9,11 @@ import { angleEquation } from './models/angle'
 import { azimuthEquation } from './models/azimuth'
 import { directionEquation } from './models/direction'
 import { distanceEquation } from './models/horizontal-distance'
-import { pushTerm, type Linearized, type PlanePoint } from './models/types'
+import { linearizedInto, pushTerm, type Linearized, type PlanePoint } from './models/types'
 import { wrapPi } from './geometry'
 import type { XY } from './approx'
 import type { LinearRow, NonlinearProblem } from './lsq'
+import type { SparseRows } from './sparse/symbolic'
 import type { ControlRecord } from './types'
 
 /** Convergence: 0.01 mm on coordinates, and the angle that subtends 0.01 mm at 1 km. */
@@ -89,40 +90,87 @@ export function buildPlaneProblem(
       tolerance[cn] = TOL_LENGTH
     }
   }
-  const point = (x: Float64Array, k: number): PlanePoint => {
+  const point = (x: Float64Array, k: number, into?: PlanePoint): PlanePoint => {
     const [ce, cn] = stationCols[k]
-    return { e: ce >= 0 ? x[ce] : coords[k].e, n: cn >= 0 ? x[cn] : coords[k].n, ce, cn }
+    const e = ce >= 0 ? x[ce] : coords[k].e
+    const n = cn >= 0 ? x[cn] : coords[k].n
+    if (!into) return { e, n, ce, cn }
+    into.e = e
+    into.n = n
+    into.ce = ce
+    into.cn = cn
+    return into
+  }
+
+  // scratch points for the rows' stations: linearizing allocates nothing per row
+  const pa: PlanePoint = { e: 0, n: 0, ce: -1, cn: -1 }
+  const pb: PlanePoint = { e: 0, n: 0, ce: -1, cn: -1 }
+  const pc: PlanePoint = { e: 0, n: 0, ce: -1, cn: -1 }
+  /** row i at x into `lin` (its model's equation); returns the misclosure observed − computed */
+  const linearizeRow = (x: Float64Array, i: number, lin: Linearized): number => {
+    const { def, value } = rows[i]
+    let angular = true
+    switch (def.type) {
+      case 'direction':
+        directionEquation(point(x, def.at, pa), point(x, def.to, pb), x[setCol[def.set]], setCol[def.set], lin)
+        break
+      case 'azimuth':
+        azimuthEquation(point(x, def.at, pa), point(x, def.to, pb), lin)
+        break
+      case 'angle':
+        angleEquation(point(x, def.at, pa), point(x, def.from, pb), point(x, def.to, pc), lin)
+        break
+      case 'distance':
+        distanceEquation(point(x, def.at, pa), point(x, def.to, pb), lin)
+        angular = false
+        break
+      case 'coord': {
+        const p = point(x, def.st, pa)
+        linearizedInto(lin)
+        lin.computed = def.comp === 0 ? p.e : p.n
+        pushTerm(lin, def.comp === 0 ? p.ce : p.cn, 1)
+        angular = false
+        break
+      }
+    }
+    return angular ? wrapPi(value - lin.computed) : value - lin.computed
   }
 
   const linearize = (x: Float64Array): LinearRow[] =>
-    rows.map(({ def, sigma, value }) => {
-      let lin: Linearized
-      let angular = true
-      switch (def.type) {
-        case 'direction':
-          lin = directionEquation(point(x, def.at), point(x, def.to), x[setCol[def.set]], setCol[def.set])
-          break
-        case 'azimuth':
-          lin = azimuthEquation(point(x, def.at), point(x, def.to))
-          break
-        case 'angle':
-          lin = angleEquation(point(x, def.at), point(x, def.from), point(x, def.to))
-          break
-        case 'distance':
-          lin = distanceEquation(point(x, def.at), point(x, def.to))
-          angular = false
-          break
-        case 'coord': {
-          const p = point(x, def.st)
-          lin = { computed: def.comp === 0 ? p.e : p.n, cols: [], coef: [] }
-          pushTerm(lin, def.comp === 0 ? p.ce : p.cn, 1)
-          angular = false
-          break
-        }
-      }
-      const misclosure = angular ? wrapPi(value - lin.computed) : value - lin.computed
+    rows.map(({ sigma }, i) => {
+      const lin: Linearized = { computed: 0, cols: [], coef: [] }
+      const misclosure = linearizeRow(x, i, lin)
       return { cols: lin.cols, coef: lin.coef, misclosure, sigma, computed: lin.computed }
     })
+
+  // the same rows whitened into typed arrays; the pattern is fixed by the stations' columns
+  const scratch: Linearized = { computed: 0, cols: [], coef: [], size: 0 }
+  const linearizeWhitened = (x: Float64Array, reuse: SparseRows | null): SparseRows => {
+    const m = rows.length
+    let out = reuse
+    if (!out) {
+      const rowPtr = new Int32Array(m + 1)
+      const cols: number[] = []
+      for (let i = 0; i < m; i++) {
+        linearizeRow(x, i, scratch)
+        for (let c = 0; c < scratch.size!; c++) cols.push(scratch.cols[c])
+        rowPtr[i + 1] = cols.length
+      }
+      out = { m, rowPtr, rowCol: Int32Array.from(cols), rowVal: new Float64Array(cols.length), rhs: new Float64Array(m) }
+    }
+    const { rowPtr, rowVal, rhs } = out
+    for (let i = 0; i < m; i++) {
+      const misclosure = linearizeRow(x, i, scratch)
+      const w = 1 / rows[i].sigma
+      const coef = scratch.coef
+      const size = scratch.size!
+      if (size !== rowPtr[i + 1] - rowPtr[i]) throw new Error(`row ${i}: its pattern changed between iterations`)
+      let o = rowPtr[i]
+      for (let c = 0; c < size; c++, o++) rowVal[o] = coef[c] * w
+      rhs[i] = misclosure * w
+    }
+    return out
+  }
 
   const nullSpace = free
     ? (x: Float64Array) => {
@@ -172,24 +220,53 @@ export function buildPlaneProblem(
   stationCols.forEach((sc, k) => sc.forEach((j) => j >= 0 && (blocks[j] = k)))
 
   return {
-    problem: { u, labels, tolerance, x0, linearize, nullSpace, cofactorGroups, blocks } satisfies NonlinearProblem,
+    problem: { u, labels, tolerance, x0, linearize, linearizeWhitened, nullSpace, cofactorGroups, blocks } satisfies NonlinearProblem,
     rowOut: rows.map((r) => r.out),
     rowScale: rows.map((r) => r.outScale),
     stationCols,
   }
 }
 
-/** Cuthill–McKee ordering of the station graph (bandwidth reduction, less fill in QR). */
+/**
+ * Cuthill–McKee ordering of the station graph (bandwidth reduction, less fill in
+ * QR): components from their lowest-degree station, breadth first, neighbours by
+ * degree then index. Adjacency in typed arrays (a large network has 10⁵ edges).
+ */
 export function cuthillMcKee(n: number, edges: number[][]): number[] {
-  const adj: Set<number>[] = Array.from({ length: n }, () => new Set())
+  // distinct neighbours: CSR from both directions, then deduplicated per station
+  const deg0 = new Int32Array(n + 1)
   for (const [a, b] of edges) {
     if (a === b) continue
-    adj[a].add(b)
-    adj[b].add(a)
+    deg0[a + 1]++
+    deg0[b + 1]++
   }
+  for (let i = 0; i < n; i++) deg0[i + 1] += deg0[i]
+  const raw = new Int32Array(deg0[n])
+  const fill = deg0.slice(0, n)
+  for (const [a, b] of edges) {
+    if (a === b) continue
+    raw[fill[a]++] = b
+    raw[fill[b]++] = a
+  }
+  const ptr = new Int32Array(n + 1)
+  const adj = new Int32Array(raw.length)
+  const mark = new Int32Array(n).fill(-1)
+  let o = 0
+  for (let v = 0; v < n; v++) {
+    for (let t = deg0[v]; t < deg0[v + 1]; t++) {
+      const w = raw[t]
+      if (mark[w] === v) continue
+      mark[w] = v
+      adj[o++] = w
+    }
+    ptr[v + 1] = o
+  }
+  const degree = (v: number) => ptr[v + 1] - ptr[v]
+  const byDegreeThenIndex = (a: number, b: number) => degree(a) - degree(b) || a - b
   const seen = new Uint8Array(n)
   const order: number[] = []
-  const byDegree = Array.from({ length: n }, (_, i) => i).sort((a, b) => adj[a].size - adj[b].size || a - b)
+  const byDegree = Array.from({ length: n }, (_, i) => i).sort(byDegreeThenIndex)
+  const next: number[] = []
   for (const start of byDegree) {
     if (seen[start]) continue
     seen[start] = 1
@@ -197,7 +274,9 @@ export function cuthillMcKee(n: number, edges: number[][]): number[] {
     for (let h = 0; h < queue.length; h++) {
       const v = queue[h]
       order.push(v)
-      const next = [...adj[v]].filter((w) => !seen[w]).sort((a, b) => adj[a].size - adj[b].size || a - b)
+      next.length = 0
+      for (let t = ptr[v]; t < ptr[v + 1]; t++) if (!seen[adj[t]]) next.push(adj[t])
+      next.sort(byDegreeThenIndex)
       for (const w of next) {
         seen[w] = 1
         queue.push(w)

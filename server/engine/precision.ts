@@ -39,17 +39,21 @@ export function relativePrecision(
   scale95: number,
 ): RelativeResult[] {
   const relative: RelativeResult[] = []
-  const seen = new Set<string>()
+  // pairs by a numeric key (no string per row of a large network)
+  const nS = names.length
+  const seen = new Set<number>()
+  const q = (i: number, j: number) => (i >= 0 && j >= 0 ? qxx.get(i, j) : 0)
   for (const { def } of rows) {
-    const pairs: [number, number][] = def.type === 'coord' ? [] : def.type === 'angle' ? [[def.at, def.from], [def.at, def.to]] : [[def.at, def.to]]
-    for (const [a, b] of pairs) {
-      const key = a < b ? `${a}:${b}` : `${b}:${a}`
+    if (def.type === 'coord') continue
+    for (let k = def.type === 'angle' ? 0 : 1; k < 2; k++) {
+      const a = def.at
+      const b = k === 0 && def.type === 'angle' ? def.from : def.to
+      const key = a < b ? a * nS + b : b * nS + a
       if (seen.has(key) || a === b) continue
       seen.add(key)
       const [ae, an] = stationCols[a]
       const [be, bn] = stationCols[b]
       if (ae < 0 && an < 0 && be < 0 && bn < 0) continue
-      const q = (i: number, j: number) => (i >= 0 && j >= 0 ? qxx.get(i, j) : 0)
       const qee = q(be, be) + q(ae, ae) - 2 * q(ae, be)
       const qnn = q(bn, bn) + q(an, an) - 2 * q(an, bn)
       const qen = q(be, bn) + q(ae, an) - q(ae, bn) - q(be, an)

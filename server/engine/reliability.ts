@@ -7,7 +7,7 @@
 // (1976) The statistics of residuals and the detection of outliers, NOAA
 // Technical Report NOS 65 NGS 1.
 
-import { localMdbEffect, type CofactorMatrix } from './cofactor'
+import { localMdbEffectOfBlock, type CofactorMatrix } from './cofactor'
 import type { LinearRow } from './lsq'
 import type { AdjustSettings, ObservationResult } from './types'
 
@@ -31,13 +31,32 @@ export function testObservations(
   settings: AdjustSettings,
   limits: TestLimits,
 ): void {
-  const pending: { out: ObservationResult; cols: number[]; ac: number[]; k: number }[] = []
-  rows.forEach((row, i) => {
+  const stationOfCol = new Int32Array(qxx.u).fill(-1)
+  stationCols.forEach((sc, st) => sc.forEach((j) => j >= 0 && (stationOfCol[j] = st)))
+  // each row's block of Qxx is read once (k(k+1)/2 entries) and serves both
+  // ã·Qxx·ãᵀ and the MDB effect: no per-row arrays beyond two scratch buffers
+  let ac = new Float64Array(8)
+  let block = new Float64Array(64)
+  for (let i = 0; i < rows.length; i++) {
+    const row = rows[i]
     const out = outputs[rowOut[i]]
     const sc = rowScale[i]
-    const ac = row.coef.map((c) => c / row.sigma)
+    const cols = row.cols
+    const n = cols.length
+    if (ac.length < n) {
+      ac = new Float64Array(2 * n)
+      block = new Float64Array(4 * n * n)
+    }
+    for (let p = 0; p < n; p++) ac[p] = row.coef[p] / row.sigma
     let qa = 0
-    for (let p = 0; p < ac.length; p++) for (let q = 0; q < ac.length; q++) qa += ac[p] * qxx.get(row.cols[p], row.cols[q]) * ac[q]
+    for (let p = 0; p < n; p++) {
+      for (let q = p; q < n; q++) {
+        const v = qxx.get(cols[p], cols[q])
+        block[p * n + q] = v
+        block[q * n + p] = v
+      }
+    }
+    for (let p = 0; p < n; p++) for (let q = 0; q < n; q++) qa += ac[p] * block[p * n + q] * ac[q]
     const ri = Math.min(Math.max(1 - qa, 0), 1)
     const v = -row.misclosure
     out.residual = v * sc
@@ -59,12 +78,9 @@ export function testObservations(
       }
       const mdb = (row.sigma * limits.delta0) / Math.sqrt(ri)
       out.mdb = mdb * Math.abs(sc)
-      pending.push({ out, cols: row.cols, ac, k: mdb / row.sigma })
+      // External reliability at bounded cost: Δx = Qxx·ãᵀ·(MDB/σ) at the stations the
+      // observation itself connects, from the selected entries of Qxx (see ./cofactor).
+      out.mdbEffect = localMdbEffectOfBlock(block, cols, ac, mdb / row.sigma, stationOfCol)
     }
-  })
-  // External reliability at bounded cost: Δx = Qxx·ãᵀ·(MDB/σ) at the stations the
-  // observation itself connects, from the selected entries of Qxx (see ./cofactor).
-  const stationOfCol = new Int32Array(qxx.u).fill(-1)
-  stationCols.forEach((sc, st) => sc.forEach((j) => j >= 0 && (stationOfCol[j] = st)))
-  for (const { out, cols, ac, k } of pending) out.mdbEffect = localMdbEffect(qxx, cols, ac, k, stationOfCol)
+  }
 }

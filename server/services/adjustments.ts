@@ -8,7 +8,7 @@ import { and, desc, eq, sql } from 'drizzle-orm'
 import type { PoolClient } from 'pg'
 import { runSettingsSchema, type RunSettings } from '../../shared/schemas/adjustments'
 import { observationPageQuery, relativePageQuery, stationPageQuery } from '../../shared/schemas/run-results'
-import type { CompareQuery, ObservationPageQuery, RelativePageQuery, StationPageQuery } from '../../shared/schemas/run-results'
+import type { CompareQuery, ObservationPageQuery, RelativePageQuery, StationPageQuery, VectorPageQuery } from '../../shared/schemas/run-results'
 import { usePool, useDb, type Tx } from '../db/client'
 import { adjustments, observations, projects, users } from '../db/schema'
 import type { Adjustment, Project } from '../db/schema'
@@ -24,7 +24,7 @@ export type { RunListItem }
 import { loadRunInputs, RunInputError } from './run-inputs'
 import { ADJUST_QUEUE, jobPolicy, readyQueue, sendAdjustJob, type AdjustJob } from './run-queue'
 import {
-  buildSummary, cliShape, compareRuns, csvStream, overviewJson, pageObservations, pageRelative, pageStations, storeOverview, storeResults, type RunSummary,
+  buildSummary, cliShape, compareRuns, csvStream, overviewJson, pageObservations, pageRelative, pageStations, pageVectors, storeOverview, storeResults, type RunSummary,
 } from './run-results'
 
 export type RunStatus = Adjustment['status']
@@ -156,6 +156,9 @@ export async function runStations(ctx: FirmContext, project: Project, number: nu
 export async function runObservations(ctx: FirmContext, project: Project, number: number, q: ObservationPageQuery) {
   const run = await findDoneRun(ctx, project, number)
   return pageObservations(ctx.firm.id, run.id, storedRows(run)?.observations, q)
+}
+export async function runVectors(ctx: FirmContext, project: Project, number: number, q: VectorPageQuery) {
+  return pageVectors(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, q)
 }
 export async function runRelative(ctx: FirmContext, project: Project, number: number, q: RelativePageQuery) {
   const run = await findDoneRun(ctx, project, number)

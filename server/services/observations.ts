@@ -13,7 +13,7 @@ import { readObservationCsv } from '../engine/io/csv'
 import { readLandXml } from '../engine/io/landxml'
 import { RAD_PER_ARCSEC, formatDms, formatGon, formatLength, parseAngle, parseLength } from '../engine/io/units'
 import { aprioriSigma } from '../engine/models/registry'
-import type { InstrumentProfile, ObservationRecord, ReadIssue, ReadResult } from '../engine/types'
+import type { BaselineVector, InstrumentProfile, ObservationRecord, ReadIssue, ReadResult } from '../engine/types'
 import { useDb } from '../db/client'
 import { COPY_ROWS_PER_CHUNK, copyInto, copyNumber, copyText } from '../db/copy'
 import type { Tx } from '../db/client'
@@ -136,7 +136,7 @@ function refuse(read: Extract<ReadResult, { ok: false }>, what = 'The file'): ne
 }
 
 // COPY text format: the encoders and the transaction's client are in server/db/copy.ts.
-const COPY_COLUMNS = 'firm_id, project_id, set_id, line, kind, at, "from", "to", value, unit, sigma, hi, ht, set_name, length_km, note, excluded, original_value'
+const COPY_COLUMNS = 'firm_id, project_id, set_id, line, kind, at, "from", "to", value, unit, sigma, hi, ht, set_name, length_km, note, excluded, original_value, vector'
 
 /** The unit stored beside the SI value: the one the file used, else the SI unit. */
 function storedUnit(r: ObservationRecord): string {
@@ -151,7 +151,8 @@ function* copyRows(firmId: number, projectId: number, setId: number, recs: Obser
     const value = copyNumber(r.value)
     chunk += head + r.line + '\t' + r.kind + '\t' + copyText(r.at) + '\t' + copyText(r.from) + '\t' + copyText(r.to) + '\t'
       + value + '\t' + copyText(storedUnit(r)) + '\t' + copyNumber(r.sigma) + '\t' + copyNumber(r.hi) + '\t' + copyNumber(r.ht) + '\t'
-      + copyText(r.set) + '\t' + copyNumber(r.lengthKm) + '\t' + copyText(r.note ?? '') + '\t' + (r.excluded ? 't' : 'f') + '\t' + value + '\n'
+      + copyText(r.set) + '\t' + copyNumber(r.lengthKm) + '\t' + copyText(r.note ?? '') + '\t' + (r.excluded ? 't' : 'f') + '\t' + value + '\t'
+      + copyText(r.vector ? JSON.stringify(r.vector) : null) + '\n'
     if ((i + 1) % COPY_ROWS_PER_CHUNK === 0) {
       yield chunk
       chunk = ''
@@ -206,6 +207,20 @@ function controlFromCrew(ctx: FirmContext, read: Extract<ReadResult, { ok: true 
 }
 
 /**
+ * A GNSS vector lives in the Earth-centred frame of a datum; a local plane has
+ * none, so the vector cannot be tied to the plane's coordinates. Each vector
+ * row is refused, naming its line, before anything is written.
+ */
+function vectorsInLocalPlane(project: Project, read: Extract<ReadResult, { ok: true }>, format: FileFormat): ReadIssue[] {
+  if (project.crs !== 'local') return []
+  return read.observations.filter((o) => o.kind === 'gnss_baseline').map((o) => ({
+    line: o.line,
+    column: format === 'landxml' ? 'GPSVector' : 'kind',
+    message: 'a GNSS baseline needs a georeferenced project: choose a projected CRS (EPSG) and set the geoid separation N in the project settings; this project uses a local plane',
+  }))
+}
+
+/**
  * Parses and stores one file. Any bad line → 422 listing every one; the same
  * bytes already in the project → 409 naming the earlier set; nothing is
  * written unless everything is.
@@ -236,6 +251,13 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
   if (unstorable.length > 0) refuse({ ok: false, errors: unstorable, warnings: read.warnings })
   const control = controlFromCrew(ctx, read, format)
   if (control.length > 0) refuse({ ok: false, errors: control, warnings: read.warnings })
+  const vectors = vectorsInLocalPlane(project, read, format)
+  if (vectors.length > 0) refuse({ ok: false, errors: vectors, warnings: read.warnings })
+  const firstVector = read.observations.find((o) => o.kind === 'gnss_baseline')
+  if (firstVector && project.geoidSeparationM === 0) {
+    // 0 is the setting's default: say so once, since a forgotten N shifts every height by N
+    read.warnings.push({ line: firstVector.line, column: 'kind', message: 'the project\'s geoid separation N is 0 m (the default): vectors tie heights through ellipsoidal heights h = H + N, so set the site\'s N in the project settings before adjusting' })
+  }
 
   const names = new Set<string>()
   for (const o of read.observations) { names.add(o.at); names.add(o.to); if (o.from) names.add(o.from) }
@@ -296,7 +318,7 @@ function duplicate(earlier: { id: number; name: string; uploadedAt: Date }) {
 
 // ── typed-in rows ───────────────────────────────────────────────────────────
 
-const MANUAL_COLUMNS = ['kind', 'at', 'from', 'to', 'value', 'unit', 'sigma', 'hi', 'ht', 'set', 'length', 'note'] as const
+const MANUAL_COLUMNS = ['kind', 'at', 'from', 'to', 'value', 'unit', 'sigma', 'hi', 'ht', 'set', 'length', 'note', 'correlation'] as const
 
 /**
  * Rows typed into the grid go through the same reader as a file: they are
@@ -388,6 +410,8 @@ export interface ObservationDto {
   lengthKm: number | null
   note: string
   excluded: boolean
+  /** gnss_baseline rows: ΔX ΔY ΔZ (m), σX σY σZ (m), ρXY ρXZ ρYZ or null; null on other kinds */
+  vector: BaselineVector | null
 }
 
 /** Formats a value in the project's length unit or angle format (number and unit apart). */
@@ -410,7 +434,7 @@ type LengthOf = (a: string, b: string) => number | null
 function sigmaFor(o: ObservationRow, profile: InstrumentProfile | null, lengthOf: LengthOf): { value: number | null; source: ObservationDto['sigmaSource'] } {
   if (o.sigma !== null) return { value: o.sigma, source: 'file' }
   if (!profile) return { value: null, source: 'none' }
-  const value = aprioriSigma({ ...o, set: o.setName, sigma: null }, { profile, length: lengthOf })
+  const value = aprioriSigma({ ...o, set: o.setName, sigma: null, vector: o.vector ?? undefined }, { profile, length: lengthOf })
   return value === null ? { value: null, source: 'none' } : { value, source: 'profile' }
 }
 
@@ -419,7 +443,26 @@ function sigmaText(kind: string, sigma: number | null): string {
   return ANGLE_KINDS.has(kind) ? `${(sigma / RAD_PER_ARCSEC).toFixed(1)}″` : `${(sigma * 1000).toFixed(1)} mm`
 }
 
+/** A vector's three components in metres (its frame's unit, whatever the project's), and its three σ in mm. */
+function vectorDisplay(v: BaselineVector): { display: string; sigma: string } {
+  const n = (x: number) => x.toFixed(4).replace('-', '−')
+  return {
+    display: `ΔX ${n(v.d[0])}  ΔY ${n(v.d[1])}  ΔZ ${n(v.d[2])}`,
+    sigma: `${v.sigma.map((x) => (x * 1000).toFixed(1)).join(' / ')} mm`,
+  }
+}
+
 function observationDto(o: ObservationRow, project: Project, profile: InstrumentProfile | null, lengthOf: LengthOf = () => null): ObservationDto {
+  if (o.vector) {
+    const v = vectorDisplay(o.vector)
+    return {
+      id: o.id, setId: o.setId, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to,
+      value: o.value, originalValue: o.originalValue, edited: false,
+      display: v.display, displayUnit: 'm',
+      sigmaUsed: null, sigmaDisplay: v.sigma, sigmaSource: 'file',
+      hi: o.hi, ht: o.ht, setName: o.setName, lengthKm: o.lengthKm, note: o.note, excluded: o.excluded, vector: o.vector,
+    }
+  }
   const f = formatValue(o.kind, o.value, project)
   const s = sigmaFor(o, profile, lengthOf)
   return {
@@ -427,7 +470,7 @@ function observationDto(o: ObservationRow, project: Project, profile: Instrument
     value: o.value, originalValue: o.originalValue, edited: o.originalValue !== null && o.originalValue !== o.value,
     display: f.text, displayUnit: f.unit,
     sigmaUsed: s.value, sigmaDisplay: sigmaText(o.kind, s.value), sigmaSource: s.source,
-    hi: o.hi, ht: o.ht, setName: o.setName, lengthKm: o.lengthKm, note: o.note, excluded: o.excluded,
+    hi: o.hi, ht: o.ht, setName: o.setName, lengthKm: o.lengthKm, note: o.note, excluded: o.excluded, vector: null,
   }
 }
 
@@ -517,6 +560,10 @@ export async function updateObservation(ctx: FirmContext, project: Project, id: 
       .where(and(eq(observations.firmId, ctx.firm.id), eq(observations.projectId, project.id), eq(observations.id, id))).limit(1).for('update')
     if (!before) throw notFound('No such observation')
     const patch: Partial<typeof observations.$inferInsert> = {}
+    if (before.vector && (body.valueText !== undefined || body.value !== undefined)) {
+      // one number cannot stand for ΔX ΔY ΔZ; the file is the record of the vector
+      throw new DomainError('invalid', 'Some fields are not valid', [{ field: 'value', message: 'value: a GNSS vector is not edited here; correct it in the file and upload it again (you may exclude this vector)' }])
+    }
     if (body.valueText !== undefined) patch.value = parseTyped(before.kind, body.valueText, project)
     else if (body.value !== undefined) patch.value = body.value
     if (patch.value !== undefined) {

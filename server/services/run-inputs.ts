@@ -147,14 +147,16 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
   const records: ObservationRecord[] = obsRows.map((o) => {
     let sigma = o.sigma
     const pid = setProfile.get(o.setId) ?? null
-    if (sigma === null && pid !== mainProfileId && pid !== null) {
+    // a vector carries its own σX σY σZ (o.vector); no profile weights it
+    if (sigma === null && !o.vector && pid !== mainProfileId && pid !== null) {
       // the engine's own σ function, with this set's profile and the lengths known before the run
-      sigma = aprioriSigma({ ...o, set: o.setName, sigma: null }, { profile: profiles.get(pid)!, length: lengthOf })
+      sigma = aprioriSigma({ ...o, set: o.setName, sigma: null, vector: o.vector ?? undefined }, { profile: profiles.get(pid)!, length: lengthOf })
       if (sigma === null) warnings.push(`line ${o.line} of set ${o.setId}: σ taken from the run's main instrument profile (no length known to apply its own)`)
     }
     return {
       id: o.id, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to, value: o.value, sigma,
       hi: o.hi, ht: o.ht, set: o.setName, lengthKm: o.lengthKm, note: o.note, excluded: o.excluded,
+      ...(o.vector ? { vector: o.vector } : {}),
     }
   })
 
@@ -174,6 +176,8 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
     observations: obsRows.map((o) => ({
       id: o.id, setId: o.setId, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to, value: o.value, sigma: o.sigma,
       hi: o.hi, ht: o.ht, setName: o.setName, lengthKm: o.lengthKm, excluded: o.excluded,
+      // only vector rows carry the key, so the hash of a run without vectors is what it always was
+      ...(o.vector ? { vector: o.vector } : {}),
     })),
     stations: stationRows.map((s) => ({
       name: s.name, kind: s.kind, controlEast: s.controlEast, controlNorth: s.controlNorth, controlHeight: s.controlHeight,
@@ -196,7 +200,7 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
       setId: set.id,
       setName: set.name,
       observations: rows.length,
-      sigmaFromFile: rows.filter((o) => o.sigma !== null).length,
+      sigmaFromFile: rows.filter((o) => o.sigma !== null || o.vector !== null).length,
       source,
       profile: pid === null ? { id: null, name: 'built-in default', values: { ...DEFAULT_PROFILE } } : { id: pid, name: profileNames.get(pid) ?? `profile ${pid}`, values: profiles.get(pid)! },
     }

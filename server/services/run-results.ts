@@ -7,13 +7,13 @@
 import { PassThrough, type Readable } from 'node:stream'
 import { sql, type SQL } from 'drizzle-orm'
 import { to as copyTo } from 'pg-copy-streams'
-import type { CompareQuery, ObservationPageQuery, RelativePageQuery, StationPageQuery } from '../../shared/schemas/run-results'
+import type { CompareQuery, ObservationPageQuery, RelativePageQuery, StationPageQuery, VectorPageQuery } from '../../shared/schemas/run-results'
 import { useDb, usePool } from '../db/client'
 import type { Tx } from '../db/client'
 import { chunked, copyBool, copyInto, copyNumber, copyStat, copyText } from '../db/copy'
 import type { Adjustment } from '../db/schema'
 import { METRES_PER } from '../engine/io/units'
-import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary, NetworkSummary, ObservationResult, RelativeResult, StationResult } from '../engine/types'
+import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary, NetworkSummary, ObservationResult, RelativeResult, StationResult, VectorTest } from '../engine/types'
 import { describeTolerance, type ToleranceSpec } from './accuracy'
 import { safeCellSql } from './csv'
 import { packMap, type MapLineIn, type MapStationIn, type PackedMap } from '../../shared/map-overview'
@@ -100,7 +100,7 @@ export function buildSummary(r: AdjustmentResult, tolerance: (ToleranceSpec & { 
 // ── storing ─────────────────────────────────────────────────────────────────
 
 const STATION_COLUMNS = 'firm_id, adjustment_id, name, kind, fixed, east, north, height, sd_east, sd_north, sd_height, semi_major, semi_minor, azimuth_deg, semi_major95, semi_minor95, controlled_east, controlled_north, controlled_height'
-const OBSERVATION_COLUMNS = 'firm_id, adjustment_id, observation_id, line, kind, component, at, "from", "to", observed, adjusted, value_unit, residual, sigma, residual_unit, redundancy, w, tau, mdb, mdb_effect, flagged, tau_flagged, weak, excluded, remark, combined_factor, elevation_factor, scale_factor'
+const OBSERVATION_COLUMNS = 'firm_id, adjustment_id, observation_id, line, kind, component, at, "from", "to", observed, adjusted, value_unit, residual, sigma, residual_unit, redundancy, w, tau, mdb, mdb_effect, flagged, tau_flagged, weak, excluded, remark, combined_factor, elevation_factor, scale_factor, vector_statistic, vector_critical, vector_distribution, vector_flagged, residual_e, residual_n, residual_u'
 const RELATIVE_COLUMNS = 'firm_id, adjustment_id, from_station, to_station, distance, semi_major, semi_minor, azimuth_deg, semi_major95, sd_distance, allowable, passes'
 
 export interface RelativeCheck { rel: RelativeResult; check: { semiMajor95: number; allowable: number | null; passes: boolean | null } }
@@ -124,11 +124,19 @@ export async function storeResults(tx: Tx, firmId: number, runId: number, r: Adj
     + copyText(o.at) + '\t' + copyText(o.from) + '\t' + copyText(o.to) + '\t' + copyNumber(o.observed) + '\t' + copyStat(o.adjusted) + '\t' + o.valueUnit + '\t'
     + copyStat(o.residual) + '\t' + copyStat(o.sigma) + '\t' + o.residualUnit + '\t' + copyStat(o.redundancy) + '\t' + copyStat(o.w) + '\t' + copyStat(o.tau) + '\t'
     + copyStat(o.mdb) + '\t' + copyStat(o.mdbEffect) + '\t' + copyBool(o.flagged) + '\t' + copyBool(o.tauFlagged) + '\t' + copyBool(o.weak) + '\t' + copyBool(o.excluded) + '\t'
-    + copyText(o.remark) + '\t' + copyStat(o.combinedFactor) + '\t' + copyStat(o.elevationFactor) + '\t' + copyStat(o.scaleFactor) + '\n'))
+    + copyText(o.remark) + '\t' + copyStat(o.combinedFactor) + '\t' + copyStat(o.elevationFactor) + '\t' + copyStat(o.scaleFactor) + '\t'
+    + vectorCells(o.vectorTest) + '\n'))
   await copyInto(tx, 'relative_precisions', RELATIVE_COLUMNS, chunked(rel, ({ rel: p, check }) =>
     head + copyText(p.from) + '\t' + copyText(p.to) + '\t' + copyNumber(p.distance) + '\t' + copyNumber(p.semiMajor) + '\t' + copyNumber(p.semiMinor) + '\t'
     + copyNumber(p.azimuthDeg) + '\t' + copyNumber(check.semiMajor95) + '\t' + copyStat(p.sdDistance) + '\t' + copyStat(check.allowable) + '\t' + copyBool(check.passes) + '\n'))
   return Math.round(performance.now() - t0)
+}
+
+/** The seven vector-test cells of a gnss_baseline component row (NULL on every other row). */
+function vectorCells(t: VectorTest | undefined): string {
+  if (!t) return '\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N'
+  return copyStat(t.statistic) + '\t' + copyStat(t.critical) + '\t' + copyText(t.distribution) + '\t' + copyBool(t.flagged) + '\t'
+    + copyStat(t.residualEnu[0]) + '\t' + copyStat(t.residualEnu[1]) + '\t' + copyStat(t.residualEnu[2])
 }
 
 // ── rows back into the engine's shapes ──────────────────────────────────────
@@ -152,11 +160,22 @@ export function stationOf(s: StationRow): StationResult {
 
 const OBSERVATION_SELECT = sql.raw(`observation_id as "id", line, kind, component, at, "from", "to", observed, adjusted, value_unit as "valueUnit",
   residual, sigma, residual_unit as "residualUnit", redundancy, w, flagged, tau, tau_flagged as "tauFlagged", mdb, mdb_effect as "mdbEffect",
-  excluded, weak, remark, combined_factor as "combinedFactor", elevation_factor as "elevationFactor", scale_factor as "scaleFactor"`)
-type ObservationRow = Omit<ObservationResult, 'combinedFactor' | 'elevationFactor' | 'scaleFactor'> & { combinedFactor: number | null; elevationFactor: number | null; scaleFactor: number | null }
+  excluded, weak, remark, combined_factor as "combinedFactor", elevation_factor as "elevationFactor", scale_factor as "scaleFactor",
+  vector_statistic as "vStatistic", vector_critical as "vCritical", vector_distribution as "vDistribution", vector_flagged as "vFlagged",
+  residual_e as "vE", residual_n as "vN", residual_u as "vU"`)
+type ObservationRow = Omit<ObservationResult, 'combinedFactor' | 'elevationFactor' | 'scaleFactor' | 'vectorTest'> & {
+  combinedFactor: number | null; elevationFactor: number | null; scaleFactor: number | null
+  vStatistic: number | null; vCritical: number | null; vDistribution: string | null; vFlagged: boolean | null; vE: number | null; vN: number | null; vU: number | null
+}
 export function observationOf(o: ObservationRow): ObservationResult {
-  const { combinedFactor, elevationFactor, scaleFactor, ...rest } = o
-  return { ...rest, ...(combinedFactor !== null ? { combinedFactor } : {}), ...(elevationFactor !== null ? { elevationFactor } : {}), ...(scaleFactor !== null ? { scaleFactor } : {}) }
+  const { combinedFactor, elevationFactor, scaleFactor, vStatistic, vCritical, vDistribution, vFlagged, vE, vN, vU, ...rest } = o
+  const vectorTest: VectorTest | null = vStatistic !== null && vCritical !== null
+    ? { statistic: vStatistic, critical: vCritical, distribution: vDistribution === 'F' ? 'F' : 'chi2', flagged: vFlagged === true, residualEnu: [vE ?? Number.NaN, vN ?? Number.NaN, vU ?? Number.NaN] }
+    : null
+  return {
+    ...rest, ...(combinedFactor !== null ? { combinedFactor } : {}), ...(elevationFactor !== null ? { elevationFactor } : {}), ...(scaleFactor !== null ? { scaleFactor } : {}),
+    ...(vectorTest ? { vectorTest } : {}),
+  }
 }
 
 const RELATIVE_SELECT = sql.raw(`from_station as "from", to_station as "to", distance, semi_major as "semiMajor", semi_minor as "semiMinor",
@@ -208,8 +227,8 @@ const OBSERVATION_SORT_SQL: Record<string, string> = {
   mdb: `mdb * ${NATURAL}`, kind: 'kind::text', at: 'at',
 }
 /** The residual table's rating in SQL (rateObservation in composables/useRunFormat.ts). */
-const FAILS = `(not excluded and (flagged or tau_flagged))`
-const WATCH = `(not excluded and not (flagged or tau_flagged) and (coalesce(abs(w), 0) > 2 or weak))`
+const FAILS = `(not excluded and (flagged or tau_flagged or coalesce(vector_flagged, false)))`
+const WATCH = `(not excluded and not (flagged or tau_flagged or coalesce(vector_flagged, false)) and (coalesce(abs(w), 0) > 2 or weak))`
 export function pageObservations(firmId: number, runId: number, known: number | undefined, q: ObservationPageQuery): Promise<Page<ObservationResult>> {
   const where = [runScope(firmId, runId)]
   if (q.q) where.push(sql`(${contains('at', q.q)} or ${contains('"to"', q.q)} or ${contains('coalesce("from", \'\')', q.q)})`)
@@ -222,6 +241,62 @@ export function pageObservations(firmId: number, runId: number, known: number | 
   if (q.rating === 'watch') where.push(sql.raw(WATCH))
   if (q.rating === 'pass') where.push(sql.raw(`not ${FAILS} and not ${WATCH}`))
   return paged('observation_results', OBSERVATION_SELECT, where, orderBy(q.sort, OBSERVATION_SORT_SQL), q, observationOf, known)
+}
+
+/** One GNSS vector of a run with its whole-vector test (the three component rows folded into one). */
+export interface VectorRow {
+  id: number | null
+  line: number
+  at: string
+  to: string
+  /** observed ΔX ΔY ΔZ (m) */
+  observed: [number | null, number | null, number | null]
+  /** residuals of ΔX ΔY ΔZ (m) and their w */
+  residual: [number | null, number | null, number | null]
+  w: [number | null, number | null, number | null]
+  excluded: boolean
+  remark: string | null
+  /** null when the vector was not tested (excluded, or no redundancy) */
+  test: VectorTest | null
+}
+
+const VECTOR_SELECT = sql.raw(`observation_id as "id", min(line) as "line", at, "to", bool_or(excluded) as "excluded", max(remark) as "remark",
+  max(observed) filter (where component = 'dx') as ox, max(observed) filter (where component = 'dy') as oy, max(observed) filter (where component = 'dz') as oz,
+  max(residual) filter (where component = 'dx') as vx, max(residual) filter (where component = 'dy') as vy, max(residual) filter (where component = 'dz') as vz,
+  max(w) filter (where component = 'dx') as wx, max(w) filter (where component = 'dy') as wy, max(w) filter (where component = 'dz') as wz,
+  max(vector_statistic) as "statistic", max(vector_critical) as "critical", max(vector_distribution) as "distribution", bool_or(vector_flagged) as "flagged",
+  max(residual_e) as "e", max(residual_n) as "n", max(residual_u) as "u"`)
+const VECTOR_SORT_SQL: Record<string, string> = {
+  order: 'min(id)', line: 'min(line)', at: 'at', ratio: 'max(vector_statistic) / nullif(max(vector_critical), 0)',
+}
+type VectorSqlRow = {
+  id: number | null; line: number; at: string; to: string; excluded: boolean; remark: string | null
+  ox: number | null; oy: number | null; oz: number | null; vx: number | null; vy: number | null; vz: number | null; wx: number | null; wy: number | null; wz: number | null
+  statistic: number | null; critical: number | null; distribution: string | null; flagged: boolean | null; e: number | null; n: number | null; u: number | null
+}
+function vectorOf(r: VectorSqlRow): VectorRow {
+  return {
+    id: r.id, line: r.line, at: r.at, to: r.to, excluded: r.excluded, remark: r.remark,
+    observed: [r.ox, r.oy, r.oz], residual: [r.vx, r.vy, r.vz], w: [r.wx, r.wy, r.wz],
+    test: r.statistic !== null && r.critical !== null
+      ? { statistic: r.statistic, critical: r.critical, distribution: r.distribution === 'F' ? 'F' : 'chi2', flagged: r.flagged === true, residualEnu: [r.e ?? Number.NaN, r.n ?? Number.NaN, r.u ?? Number.NaN] }
+      : null,
+  }
+}
+/** The run's GNSS vectors by page, one row per vector; worst test first by default. */
+export async function pageVectors(firmId: number, runId: number, q: VectorPageQuery): Promise<Page<VectorRow>> {
+  const db = useDb()
+  const where = [runScope(firmId, runId), sql`kind = 'gnss_baseline'`]
+  if (q.q) where.push(sql`(${contains('at', q.q)} or ${contains('"to"', q.q)})`)
+  const having = q.flagged === undefined ? sql`true` : q.flagged ? sql`coalesce(bool_or(vector_flagged), false) and not bool_or(excluded)` : sql`not (coalesce(bool_or(vector_flagged), false) and not bool_or(excluded))`
+  const cond = sql.join(where, sql` and `)
+  const desc = q.sort.startsWith('-')
+  const order = sql.raw(`${VECTOR_SORT_SQL[desc ? q.sort.slice(1) : q.sort] ?? 'min(id)'} ${desc ? 'desc' : 'asc'} nulls last, min(id) asc`)
+  const [rows, count] = await Promise.all([
+    db.execute(sql`select ${VECTOR_SELECT} from observation_results where ${cond} group by observation_id, at, "to" having ${having} order by ${order} limit ${q.size} offset ${(q.page - 1) * q.size}`),
+    db.execute<{ n: number }>(sql`select count(*)::int as n from (select 1 from observation_results where ${cond} group by observation_id, at, "to" having ${having}) v`),
+  ])
+  return { page: q.page, size: q.size, total: count.rows[0]?.n ?? 0, sort: q.sort, rows: (rows.rows as unknown as VectorSqlRow[]).map(vectorOf) }
 }
 
 const RELATIVE_SORT_SQL: Record<string, string> = {
@@ -273,10 +348,12 @@ export async function mapData(firmId: number, runId: number, db: Pick<Tx, 'execu
     () => db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null }>(sql`
       select name, kind, fixed, east, north, semi_major95 as a, semi_minor95 as b, azimuth_deg as az
       from adjusted_stations where ${runScope(firmId, runId)} and east is not null and north is not null order by id`),
-    () => db.execute<{ p: string; q: string; rating: number }>(sql`
+    // GNSS vectors get their own line per pair (gnss = true, lineKind 1), so the map can draw them apart from total-station lines
+    () => db.execute<{ p: string; q: string; rating: number; gnss: boolean }>(sql`
       select least(at, "to") as p, greatest(at, "to") as q,
-        max(case when ${sql.raw(FAILS)} then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating
-      from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2`),
+        max(case when ${sql.raw(FAILS)} then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating,
+        kind = 'gnss_baseline' as gnss
+      from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2, 4`),
   ] as const)
   const index = new Map<string, number>()
   const stations: MapStationIn[] = st.rows.map((s, i) => {
@@ -288,7 +365,7 @@ export async function mapData(firmId: number, runId: number, db: Pick<Tx, 'execu
   for (const l of ln.rows) {
     const i = index.get(l.p)
     const j = index.get(l.q)
-    if (i !== undefined && j !== undefined) lines.push({ from: i, to: j, rating: l.rating })
+    if (i !== undefined && j !== undefined) lines.push({ from: i, to: j, rating: l.rating, kind: l.gnss ? 1 : 0 })
   }
   return packMap(stations, lines)
 }
@@ -420,11 +497,15 @@ export async function csvStream(run: Adjustment, project: { name: string; units:
       case when semi_major is null then null else round(azimuth_deg::numeric, 2)::text end, ${fixed('semi_major95', 5)}, ${fixed('semi_minor95', 5)}
       from adjusted_stations where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
   } else {
-    header = 'line,kind,at,from,to,residual,residual_unit,redundancy,w,tau,mdb,flagged,weak,excluded'
+    // component and the whole-vector test come last, so the columns before them read as they always did
+    header = 'line,kind,at,from,to,residual,residual_unit,redundancy,w,tau,mdb,flagged,weak,excluded,component,vector_statistic,vector_critical,vector_flagged,vector_residual_e_mm,vector_residual_n_mm,vector_residual_u_mm'
     const nat = `* ${NATURAL}`
     query = `select line, kind, ${safeCellSql('at')}, ${safeCellSql('"from"')}, ${safeCellSql('"to"')}, ${fixed('residual', 2, nat)}, case when residual_unit = 'm' then 'mm' else 'arcsec' end,
       round(redundancy::numeric, 3)::text, round(w::numeric, 2)::text, round(tau::numeric, 2)::text, ${fixed('mdb', 2, nat)},
-      case when flagged then 'yes' else 'no' end, case when weak then 'yes' else 'no' end, case when excluded then 'yes' else 'no' end
+      case when flagged then 'yes' else 'no' end, case when weak then 'yes' else 'no' end, case when excluded then 'yes' else 'no' end,
+      component, round(vector_statistic::numeric, 2)::text, round(vector_critical::numeric, 2)::text,
+      case when vector_flagged is null then null when vector_flagged then 'yes' else 'no' end,
+      round((residual_e * 1000)::numeric, 2)::text, round((residual_n * 1000)::numeric, 2)::text, round((residual_u * 1000)::numeric, 2)::text
       from observation_results where firm_id = ${firmId} and adjustment_id = ${runId} order by id`
   }
   const head = [`# Tiepoint run ${run.number} of project "${project.name.replace(/[\r\n]+/g, ' ').replace(/"/g, "'")}"; input SHA-256 ${run.inputHash}`,

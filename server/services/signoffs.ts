@@ -160,11 +160,12 @@ export function runSummary(run: Adjustment): RunSummaryDto {
 export async function runReportExtras(run: Adjustment): Promise<{ network: NetworkDrawing; flagged: FlaggedObservation[] }> {
   const stations = (await allStations(run.firmId, run.id)).filter((s) => s.east !== null && s.north !== null)
     .map((s) => ({ name: s.name, east: s.east!, north: s.north!, fixed: s.fixed, semiMajor95: s.ellipse95?.semiMajor ?? null, semiMinor95: s.ellipse95?.semiMinor ?? null, azimuthDeg: s.ellipse95?.azimuthDeg ?? null }))
-  // observed lines, one per pair, and the observations still flagged (largest |w| first)
+  // observed lines, one per pair, and the observations still flagged (largest |w| first; a failed GNSS vector once, by its ΔX row)
   const pairs = await useDb().execute<{ a: string; b: string }>(sql`select distinct least("at", "to") as a, greatest("at", "to") as b from observation_results
     where firm_id = ${run.firmId} and adjustment_id = ${run.id} and kind <> 'control' and not excluded`)
   const flaggedRows = await useDb().execute<{ line: number; kind: string; at: string; from: string | null; to: string | null; w: number | null }>(sql`select line, kind, "at", "from", "to", w from observation_results
-    where firm_id = ${run.firmId} and adjustment_id = ${run.id} and not excluded and (flagged or tau_flagged) order by abs(coalesce(w, 0)) desc limit 500`)
+    where firm_id = ${run.firmId} and adjustment_id = ${run.id} and not excluded
+      and (flagged or tau_flagged or (coalesce(vector_flagged, false) and component = 'dx')) order by abs(coalesce(w, 0)) desc limit 500`)
   return { network: { stations, lines: pairs.rows.map((r) => [r.a, r.b] as [string, string]) }, flagged: flaggedRows.rows }
 }
 

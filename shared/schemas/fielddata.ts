@@ -49,6 +49,8 @@ export const manualRowSchema = z.object({
   set: z.string().max(100).default(''),
   length: z.string().max(30).default(''),
   note: z.string().max(500).default(''),
+  /** gnss_baseline only: ρXY ρXZ ρYZ */
+  correlation: z.string().max(60).default(''),
 }).strict()
 export const manualObservationsSchema = z.object({
   rows: z.array(manualRowSchema).min(1, 'add at least one row').max(2000, 'at most 2000 rows at a time'),

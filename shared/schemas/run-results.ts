@@ -36,11 +36,21 @@ export const observationPageQuery = z.object({
   excluded: flag.optional(),
   /** pass | watch | fail, as the residual table rates them */
   rating: z.enum(['pass', 'watch', 'fail']).optional(),
-  kind: z.enum(['direction', 'angle', 'zenith', 'slope_distance', 'horizontal_distance', 'azimuth', 'height_difference', 'control']).optional(),
+  kind: z.enum(['direction', 'angle', 'zenith', 'slope_distance', 'horizontal_distance', 'azimuth', 'height_difference', 'gnss_baseline', 'control']).optional(),
   /** one station: rows at, from or to it */
   station: search,
 }).strict()
 export type ObservationPageQuery = z.output<typeof observationPageQuery>
+
+/** GNSS vectors of a run, one row per vector (its three component rows folded together). */
+export const VECTOR_SORTS = ['order', 'line', 'ratio', 'at'] as const
+export const vectorPageQuery = z.object({
+  page, size, q: search,
+  /** ratio: the vector test's statistic over its critical value */
+  sort: sortOf(VECTOR_SORTS, '-ratio'),
+  flagged: flag.optional(),
+}).strict()
+export type VectorPageQuery = z.output<typeof vectorPageQuery>
 
 export const RELATIVE_SORTS = ['order', 'from', 'to', 'distance', 'semiMajor95', 'ratio'] as const
 export const relativePageQuery = z.object({

@@ -86,6 +86,7 @@ export const ROUTES: RouteRow[] = [
   { method: 'GET', path: '/api/firms/:firm/projects/:project/adjustments/:number/stations', query: 'sort=-east&page=1' },
   { method: 'GET', path: '/api/firms/:firm/projects/:project/adjustments/:number/observations', query: 'sort=-absW&flagged=0' },
   { method: 'GET', path: '/api/firms/:firm/projects/:project/adjustments/:number/relative' },
+  { method: 'GET', path: '/api/firms/:firm/projects/:project/adjustments/:number/vectors' },
   { method: 'GET', path: '/api/firms/:firm/projects/:project/adjustments/:number/overview' },
   { method: 'GET', path: '/api/firms/:firm/projects/:project/adjustments/compare', query: 'a=:number&b=:number' },
   { method: 'GET', path: '/api/firms/:firm/projects/:project/adjustments/:number/export/coordinates.csv' },

@@ -187,7 +187,7 @@ describe('what a client may read', () => {
     '/members', '/invitations', '/crews', '/instruments', '/tolerance-profiles', '/audit',
     ':p/stations', ':p/observations', ':p/observation-sets', ':p/adjustments', ':p/adjustments/:n', ':p/adjustments/:n/status',
     ':p/adjustments/:n/export/coordinates.csv', ':p/adjustments/:n/export/residuals.csv', ':p/signoffs', ':p/signoffs/candidates',
-    ':p/signoffs/preview?run=:n', ':p/crews', ':p/access', ':p/observation-sets/:set/file',
+    ':p/signoffs/preview?run=:n', ':p/crews', ':p/access', ':p/observation-sets/:set/file', ':p/adjustments/:n/vectors',
   ]
   for (const c of closed) {
     it(`everything else of the firm is 404, even on a shared project: GET ${c}`, async () => {

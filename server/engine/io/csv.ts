@@ -18,6 +18,7 @@
 
 import Papa from 'papaparse'
 import type {
+  BaselineVector,
   ControlRecord,
   InstrumentProfile,
   ObservationKind,
@@ -25,6 +26,7 @@ import type {
   ReadIssue,
   ReadResult,
 } from '../types'
+import { gnssBaseline } from '../models/gnss-baseline'
 import {
   ANGLE_UNITS,
   LENGTH_UNITS,
@@ -55,13 +57,13 @@ export interface CsvReadOptions {
   heightUnit?: LengthUnit
 }
 
-export const CSV_COLUMNS = ['kind', 'at', 'from', 'to', 'value', 'unit', 'sigma', 'hi', 'ht', 'set', 'length', 'note'] as const
+export const CSV_COLUMNS = ['kind', 'at', 'from', 'to', 'value', 'unit', 'sigma', 'hi', 'ht', 'set', 'length', 'note', 'correlation'] as const
 type Column = (typeof CSV_COLUMNS)[number]
 const REQUIRED_COLUMNS: readonly Column[] = ['kind', 'at', 'to', 'value']
 
 const ANGLE_KINDS = new Set<ObservationKind>(['direction', 'angle', 'zenith', 'azimuth'])
 const LENGTH_KINDS = new Set<ObservationKind>(['slope_distance', 'horizontal_distance', 'height_difference'])
-const ALL_KINDS = ['control', ...ANGLE_KINDS, ...LENGTH_KINDS]
+const ALL_KINDS = ['control', ...ANGLE_KINDS, ...LENGTH_KINDS, 'gnss_baseline']
 
 // Sanity limits: far beyond any real survey, tight enough to catch a value
 // typed into the wrong column or an exponent gone wrong (common practice).
@@ -246,6 +248,14 @@ function readRow(
   else if (to.length > MAX_NAME_LENGTH) err('to', `station name is longer than ${MAX_NAME_LENGTH} characters`)
   else if (to === at) err('to', `is the same station as at ('${clip(at)}')`)
 
+  if (row('correlation') !== '' && obsKind !== 'gnss_baseline') {
+    warnings.push({ line, column: 'correlation', message: `is only used by gnss_baseline rows; ignored for ${obsKind}` })
+  }
+  if (obsKind === 'gnss_baseline') {
+    readBaseline(row, line, at, to, errors, warnings, observations, before)
+    return
+  }
+
   let from: string | null = null
   if (obsKind === 'angle') {
     from = row('from')
@@ -415,7 +425,7 @@ function readControl(
   before: number,
 ): void {
   const err = (column: string, message: string) => errors.push({ line, column, message })
-  for (const c of ['from', 'to', 'hi', 'ht', 'set', 'length'] as const) {
+  for (const c of ['from', 'to', 'hi', 'ht', 'set', 'length', 'correlation'] as const) {
     if (row(c) !== '') warnings.push({ line, column: c, message: 'is not used by control rows; ignored' })
   }
   const unitText = row('unit')
@@ -482,4 +492,111 @@ function readControl(
     sdNorth: horizontal && !fixed ? sds[1]! : null,
     sdHeight: n === 1 && !fixed ? sds[0]! : n === 3 && sds.length === 3 ? sds[2]! : null,
   })
+}
+
+/**
+ * Three numbers separated by spaces (a cell like "ΔX ΔY ΔZ"), or one error for
+ * the column: how many numbers there are, or which part is not a number.
+ */
+function threeNumbers(text: string, what: string, err: (message: string) => void): [number, number, number] | null {
+  const parts = text.split(/\s+/)
+  if (parts.length !== 3) {
+    err(`'${clip(text)}' has ${parts.length} number${parts.length === 1 ? '' : 's'}: write three, ${what}, separated by spaces`)
+    return null
+  }
+  const out: number[] = []
+  for (const part of parts) {
+    const p = parseNumber(part)
+    if (!p.ok) {
+      err(p.message)
+      return null
+    }
+    out.push(p.value)
+  }
+  return out as [number, number, number]
+}
+
+/**
+ * A GNSS baseline row: value "ΔX ΔY ΔZ" in metres (Earth-centred, mark to
+ * mark), sigma "σX σY σZ" in mm (required: no instrument profile stands in
+ * for a vector's own precision), correlation "ρXY ρXZ ρYZ" or blank. The
+ * model's own checks (|ρ| < 1, positive-definite covariance) run last, so the
+ * reader and the engine refuse the same rows with the same words.
+ */
+function readBaseline(
+  row: Row,
+  line: number,
+  at: string,
+  to: string,
+  errors: ReadIssue[],
+  warnings: ReadIssue[],
+  observations: ObservationRecord[],
+  before: number,
+): void {
+  const errIn = (column: string) => (message: string) => errors.push({ line, column, message })
+  const unitText = row('unit')
+  if (unitText !== '' && lengthUnitOf(unitText) !== 'm') {
+    errors.push({ line, column: 'unit', message: `'${clip(unitText)}': a GNSS baseline is read in metres only (write m or leave blank)` })
+  }
+  // A vector is mark to mark: antenna heights belong in the baseline
+  // processing, and a height here would be silently ignored — so it is refused.
+  for (const c of ['hi', 'ht'] as const) {
+    const t = row(c)
+    if (t !== '') {
+      const p = parseNumber(t)
+      if (!(p.ok && p.value === 0)) {
+        errors.push({ line, column: c, message: `'${clip(t)}': a GNSS baseline is mark to mark; reduce antenna heights in the baseline processing and leave ${c} blank` })
+      }
+    }
+  }
+  for (const c of ['from', 'set', 'length'] as const) {
+    if (row(c) !== '') warnings.push({ line, column: c, message: 'is not used by gnss_baseline rows; ignored' })
+  }
+
+  const valueText = row('value')
+  let d: [number, number, number] | null = null
+  if (valueText === '') errors.push({ line, column: 'value', message: 'is blank: write ΔX ΔY ΔZ in metres' })
+  else {
+    d = threeNumbers(valueText, 'ΔX ΔY ΔZ in metres', errIn('value'))
+    if (d && Math.hypot(...d) > MAX_DISTANCE_M) {
+      errors.push({ line, column: 'value', message: `'${clip(valueText)}' is too long for a baseline (over ${MAX_DISTANCE_M / 1000} km)` })
+      d = null
+    }
+  }
+
+  const sigmaText = row('sigma')
+  let sigmaMm: [number, number, number] | null = null
+  if (sigmaText === '') errors.push({ line, column: 'sigma', message: 'is blank: a GNSS baseline needs σX σY σZ in mm (no instrument profile stands in for them)' })
+  else {
+    sigmaMm = threeNumbers(sigmaText, 'σX σY σZ in mm', errIn('sigma'))
+    if (sigmaMm && !sigmaMm.every((x) => x > 0)) {
+      errors.push({ line, column: 'sigma', message: `'${clip(sigmaText)}': each σ must be positive (mm)` })
+      sigmaMm = null
+    } else if (sigmaMm && sigmaMm.some((x) => x > MAX_SIGMA)) {
+      errors.push({ line, column: 'sigma', message: `'${clip(sigmaText)}' is implausibly large` })
+      sigmaMm = null
+    }
+  }
+
+  const corrText = row('correlation')
+  let correlation: [number, number, number] | null = null
+  let corrOk = true
+  if (corrText !== '') {
+    correlation = threeNumbers(corrText, 'ρXY ρXZ ρYZ', errIn('correlation'))
+    if (!correlation) corrOk = false
+  }
+
+  if (errors.length > before || !d || !sigmaMm || !corrOk) return
+  const vector: BaselineVector = { d, sigma: sigmaMm.map((x) => x / 1000) as [number, number, number], correlation }
+  const record: ObservationRecord = {
+    line, kind: 'gnss_baseline', at, from: null, to, value: Math.hypot(...d), sigma: null,
+    hi: null, ht: null, set: null, lengthKm: null, note: row('note'), unit: 'm', vector,
+  }
+  // the model's checks: |ρ| < 1 and a positive-definite covariance
+  const issues = gnssBaseline.validate(record)
+  if (issues.length) {
+    for (const i of issues) errors.push({ line, column: i.column, message: corrText !== '' && i.column === 'correlation' ? `'${clip(corrText)}': ${i.message}` : i.message })
+    return
+  }
+  observations.push(record)
 }

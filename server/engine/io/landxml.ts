@@ -286,6 +286,13 @@ class Context {
 
   unknown(node: XNode) {
     if (METADATA.has(node.name)) return
+    // Satellite elements carry the vectors the network would be adjusted with;
+    // ignoring them would adjust a different network than the file describes,
+    // so the file is refused until the reader maps them (CSV reads vectors).
+    if (/^GPS/i.test(node.name)) {
+      this.err(node, null, `element ${node.name}: GNSS vectors in LandXML are not read yet; nothing was read. Write the vectors as gnss_baseline rows of a Tiepoint CSV (value ΔX ΔY ΔZ, sigma σX σY σZ, correlation)`)
+      return
+    }
     this.warn(node, null, `element ${node.name} is not read by Tiepoint; ignored`)
   }
 

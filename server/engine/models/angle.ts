@@ -10,10 +10,10 @@
 import { angleSigma } from '../sigma'
 import { baseChecks } from './common'
 import { bearingTerms } from './direction'
-import type { Linearized, ObservationModel, PlanePoint } from './types'
+import { linearizedInto, type Linearized, type ObservationModel, type PlanePoint } from './types'
 
-export function angleEquation(at: PlanePoint, back: PlanePoint, fore: PlanePoint): Linearized {
-  const out: Linearized = { computed: 0, cols: [], coef: [] }
+export function angleEquation(at: PlanePoint, back: PlanePoint, fore: PlanePoint, into?: Linearized): Linearized {
+  const out = linearizedInto(into)
   const tf = bearingTerms(out, at, fore, 1)
   const tb = bearingTerms(out, at, back, -1)
   out.computed = tf - tb

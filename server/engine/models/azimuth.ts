@@ -13,10 +13,10 @@
 import { directionSigma } from '../sigma'
 import { baseChecks } from './common'
 import { bearingTerms } from './direction'
-import type { Linearized, ObservationModel, PlanePoint } from './types'
+import { linearizedInto, type Linearized, type ObservationModel, type PlanePoint } from './types'
 
-export function azimuthEquation(i: PlanePoint, j: PlanePoint): Linearized {
-  const out: Linearized = { computed: 0, cols: [], coef: [] }
+export function azimuthEquation(i: PlanePoint, j: PlanePoint, into?: Linearized): Linearized {
+  const out = linearizedInto(into)
   out.computed = bearingTerms(out, i, j)
   return out
 }

@@ -13,7 +13,7 @@ import { azimuth } from '../geometry'
 import { directionSigma } from '../sigma'
 import type { ObservationRecord } from '../types'
 import { baseChecks } from './common'
-import { pushTerm, type Linearized, type ObservationModel, type PlanePoint } from './types'
+import { linearizedInto, pushTerm, type Linearized, type ObservationModel, type PlanePoint } from './types'
 
 /** Grid bearing i → j and its partials (times `sign`) into `out`. */
 export function bearingTerms(out: Linearized, i: PlanePoint, j: PlanePoint, sign = 1): number {
@@ -27,8 +27,8 @@ export function bearingTerms(out: Linearized, i: PlanePoint, j: PlanePoint, sign
   return azimuth(i.e, i.n, j.e, j.n)
 }
 
-export function directionEquation(i: PlanePoint, j: PlanePoint, orientation: number, orientationCol: number): Linearized {
-  const out: Linearized = { computed: 0, cols: [], coef: [] }
+export function directionEquation(i: PlanePoint, j: PlanePoint, orientation: number, orientationCol: number, into?: Linearized): Linearized {
+  const out = linearizedInto(into)
   const t = bearingTerms(out, i, j)
   pushTerm(out, orientationCol, -1)
   out.computed = t - orientation

@@ -11,13 +11,14 @@
 
 import { distanceSigma } from '../sigma'
 import { baseChecks, positiveLength } from './common'
-import { pushTerm, type Linearized, type ObservationModel, type PlanePoint } from './types'
+import { linearizedInto, pushTerm, type Linearized, type ObservationModel, type PlanePoint } from './types'
 
-export function distanceEquation(i: PlanePoint, j: PlanePoint): Linearized {
+export function distanceEquation(i: PlanePoint, j: PlanePoint, into?: Linearized): Linearized {
   const de = j.e - i.e
   const dn = j.n - i.n
   const d = Math.hypot(de, dn)
-  const out: Linearized = { computed: d, cols: [], coef: [] }
+  const out = linearizedInto(into)
+  out.computed = d
   pushTerm(out, i.ce, -de / d)
   pushTerm(out, i.cn, -dn / d)
   pushTerm(out, j.ce, de / d)

@@ -30,6 +30,12 @@ export interface Linearized {
   computed: number
   cols: number[]
   coef: number[]
+  /**
+   * a reused scratch row (linearizedInto) counts its terms here instead of
+   * emptying the arrays: the first `size` entries of cols and coef are the row
+   * (emptying a JS array drops its storage, so every push would allocate again)
+   */
+  size?: number
 }
 
 export interface ObservationModel<K extends string = string> {
@@ -48,9 +54,27 @@ export interface ObservationModel<K extends string = string> {
   profileSigma(o: ObservationRecord, ctx: SigmaContext): number | null
 }
 
+/**
+ * `out` for an equation: the caller's reusable scratch row (its term count reset
+ * to 0), or a new one. Linearizing a large network every iteration then
+ * allocates nothing per row.
+ */
+export function linearizedInto(out?: Linearized): Linearized {
+  if (!out) return { computed: 0, cols: [], coef: [] }
+  out.computed = 0
+  out.size = 0
+  return out
+}
+
 export function pushTerm(out: Linearized, col: number, value: number): void {
   if (col >= 0) {
-    out.cols.push(col)
-    out.coef.push(value)
+    if (out.size === undefined) {
+      out.cols.push(col)
+      out.coef.push(value)
+    } else {
+      out.cols[out.size] = col
+      out.coef[out.size] = value
+      out.size++
+    }
   }
 }

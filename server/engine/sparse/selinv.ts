@@ -13,7 +13,7 @@
 // basic solution's generalized inverse, as in the dense path); a free network's
 // S-transformation is applied on top by the shared CofactorMatrix.
 //
-// Sources: Takahashi, K., Fagan, J. & Chen, M.-S. (1973) Formation of a sparse
+// Sources: Takahashi, K., Fagan, J. & Chin, M.-S. (1973) Formation of a sparse
 // bus impedance matrix and its application to short circuit study, Proc. 8th PICA
 // Conference, 63–69; Erisman, A.M. & Tinney, W.F. (1975) On computing certain
 // elements of the inverse of a sparse matrix, Comm. ACM 18(3), 177–179;
@@ -123,6 +123,8 @@ export function selectedInverse(f: SparseFactor): Float64Array {
   let zji: Float64Array = new Float64Array(64)
   let zjj: Float64Array = new Float64Array(64)
   let rowJ: Float64Array = new Float64Array(64)
+  let Jt: Int32Array = new Int32Array(64)
+  const growInt = (a: Int32Array, n: number) => (a.length >= n ? a : new Int32Array(Math.max(n, 2 * a.length)))
   const grow = (a: Float64Array, n: number) => (a.length >= n ? a : new Float64Array(Math.max(n, 2 * a.length)))
 
   for (let s = ns - 1; s >= 0; s--) {
@@ -156,93 +158,20 @@ export function selectedInverse(f: SparseFactor): Float64Array {
         while (fcol[pf0 + q] !== pos) q++
         rel[a] = q
       }
-      for (let a = 0; a < ni; a++) {
-        const ra = rel[a] * pnc
-        for (let b = 0; b < ni; b++) zii[a * ni + b] = zp[zpOff + ra + rel[b]]
-      }
+      gather(zp, zpOff, pnc, rel, ni, zii)
     }
-    // T = R_JI · Z_II (nl × ni)
+    // T = R_JI · Z_II (nl × ni), then Z_JI and Z_JJ
     t1 = grow(t1, nl * ni)
-    // Z_II is symmetric, so T_tb = R_J[t],I · Z_II[b,:]: dot products of contiguous
-    // rows, four rows of R_JI at a time (each row of Z_II read once for all four)
-    let t = 0
-    for (; t + 3 < nl; t += 4) {
-      const r0 = off + J[t] * nc + np
-      const r1 = off + J[t + 1] * nc + np
-      const r2 = off + J[t + 2] * nc + np
-      const r3 = off + J[t + 3] * nc + np
-      const b0 = t * ni
-      for (let b = 0; b < ni; b++) {
-        const zb = b * ni
-        let s0 = 0
-        let s1 = 0
-        let s2 = 0
-        let s3 = 0
-        for (let a = 0; a < ni; a++) {
-          const z = zii[zb + a]
-          s0 += rv[r0 + a] * z
-          s1 += rv[r1 + a] * z
-          s2 += rv[r2 + a] * z
-          s3 += rv[r3 + a] * z
-        }
-        t1[b0 + b] = s0
-        t1[b0 + ni + b] = s1
-        t1[b0 + 2 * ni + b] = s2
-        t1[b0 + 3 * ni + b] = s3
-      }
-    }
-    for (; t < nl; t++) {
-      const rb = off + J[t] * nc + np
-      const tb = t * ni
-      for (let b = 0; b < ni; b++) {
-        const zb = b * ni
-        let s0 = 0
-        for (let a = 0; a < ni; a++) s0 += rv[rb + a] * zii[zb + a]
-        t1[tb + b] = s0
-      }
-    }
-    // Z_JI = −R_JJ⁻¹·T, rows from the last
     zji = grow(zji, nl * ni)
-    for (let t = nl - 1; t >= 0; t--) {
-      const rb = off + J[t] * nc
-      const tb = t * ni
-      for (let b = 0; b < ni; b++) zji[tb + b] = -t1[tb + b]
-      for (let t2 = t + 1; t2 < nl; t2++) {
-        const r = rv[rb + J[t2]]
-        if (r === 0) continue
-        const ob = t2 * ni
-        for (let b = 0; b < ni; b++) zji[tb + b] -= r * zji[ob + b]
-      }
-      const d = rv[rb + J[t]]
-      for (let b = 0; b < ni; b++) zji[tb + b] /= d
-    }
-    // Z_JJ = R_JJ⁻¹·(R_JJ⁻ᵀ − R_JI·Z_JIᵀ), by rows from the last (symmetric)
     zjj = grow(zjj, nl * nl)
     rowJ = grow(rowJ, nl)
-    for (let t = nl - 1; t >= 0; t--) {
-      const rb = off + J[t] * nc
-      const d = rv[rb + J[t]]
-      // row t of R_JJ gathered once; Z_JJ is symmetric, so Z[l][t2] is read as
-      // Z[t2][l] along a contiguous row (set already: rows below t are complete)
-      for (let l = t + 1; l < nl; l++) rowJ[l] = rv[rb + J[l]]
-      for (let t2 = nl - 1; t2 >= t; t2--) {
-        // W_t,t2 = R_J[t],I · Z_J[t2],I
-        let v = t === t2 ? 1 / d : 0
-        const ob = t2 * ni
-        for (let a = 0; a < ni; a++) v -= rv[rb + np + a] * zji[ob + a]
-        const zr = t2 * nl
-        for (let l = t + 1; l < nl; l++) v -= rowJ[l] * zjj[zr + l]
-        v /= d
-        zjj[t * nl + t2] = v
-        zjj[zr + t] = v
-      }
-    }
+    Jt = growInt(Jt, nl)
+    for (let t = 0; t < nl; t++) Jt[t] = J[t]
+    productRZ(rv, off, nc, np, Jt, nl, ni, zii, t1)
+    solveZji(rv, off, nc, Jt, nl, ni, t1, zji)
+    solveZjj(rv, off, nc, np, Jt, nl, ni, zji, zjj, rowJ)
     // store on R's layout
-    for (let t = 0; t < nl; t++) {
-      const zb = off + J[t] * nc
-      for (let t2 = 0; t2 < nl; t2++) zv[zb + J[t2]] = zjj[t * nl + t2]
-      for (let a = 0; a < ni; a++) zv[zb + np + a] = zji[t * ni + a]
-    }
+    storeRows(zv, off, nc, np, Jt, nl, ni, zjj, zji)
     if (hasChild[s]) {
       if (top + nc * nc > stack.length) {
         const grown = new Float64Array(Math.max(top + nc * nc, 2 * stack.length))
@@ -255,17 +184,124 @@ export function selectedInverse(f: SparseFactor): Float64Array {
       stackSn.push(s)
       stackOff.push(top)
       top += nc * nc
-      for (let t = 0; t < nl; t++) {
-        const jt = J[t]
-        for (let t2 = 0; t2 < nl; t2++) fz[jt * nc + J[t2]] = zjj[t * nl + t2]
-        for (let a = 0; a < ni; a++) {
-          const v = zji[t * ni + a]
-          fz[jt * nc + np + a] = v
-          fz[(np + a) * nc + jt] = v
-        }
-      }
-      for (let a = 0; a < ni; a++) for (let b = 0; b < ni; b++) fz[(np + a) * nc + np + b] = zii[a * ni + b]
+      storeFront(fz, nc, np, Jt, nl, ni, zjj, zji, zii)
     }
   }
   return zv
+}
+
+/**
+ * T = R_JI·Z_II (nl × ni). Z_II is symmetric, so T_tb = R_J[t],I · Z_II[b,:]:
+ * dot products of contiguous rows, four rows of R_JI at a time (each row of
+ * Z_II read once for all four). Small separate kernels compile quickly.
+ */
+function productRZ(rv: Float64Array, off: number, nc: number, np: number, J: Int32Array, nl: number, ni: number, zii: Float64Array, t1: Float64Array): void {
+  let t = 0
+  for (; t + 3 < nl; t += 4) {
+    const r0 = off + J[t] * nc + np
+    const r1 = off + J[t + 1] * nc + np
+    const r2 = off + J[t + 2] * nc + np
+    const r3 = off + J[t + 3] * nc + np
+    const b0 = t * ni
+    for (let b = 0; b < ni; b++) {
+      const zb = b * ni
+      let s0 = 0
+      let s1 = 0
+      let s2 = 0
+      let s3 = 0
+      for (let a = 0; a < ni; a++) {
+        const z = zii[zb + a]
+        s0 += rv[r0 + a] * z
+        s1 += rv[r1 + a] * z
+        s2 += rv[r2 + a] * z
+        s3 += rv[r3 + a] * z
+      }
+      t1[b0 + b] = s0
+      t1[b0 + ni + b] = s1
+      t1[b0 + 2 * ni + b] = s2
+      t1[b0 + 3 * ni + b] = s3
+    }
+  }
+  for (; t < nl; t++) {
+    const rb = off + J[t] * nc + np
+    const tb = t * ni
+    for (let b = 0; b < ni; b++) {
+      const zb = b * ni
+      let s0 = 0
+      for (let a = 0; a < ni; a++) s0 += rv[rb + a] * zii[zb + a]
+      t1[tb + b] = s0
+    }
+  }
+}
+
+/** Z_JI = −R_JJ⁻¹·T, rows from the last. */
+function solveZji(rv: Float64Array, off: number, nc: number, J: Int32Array, nl: number, ni: number, t1: Float64Array, zji: Float64Array): void {
+  for (let t = nl - 1; t >= 0; t--) {
+    const rb = off + J[t] * nc
+    const tb = t * ni
+    for (let b = 0; b < ni; b++) zji[tb + b] = -t1[tb + b]
+    for (let t2 = t + 1; t2 < nl; t2++) {
+      const r = rv[rb + J[t2]]
+      if (r === 0) continue
+      const ob = t2 * ni
+      for (let b = 0; b < ni; b++) zji[tb + b] -= r * zji[ob + b]
+    }
+    const d = rv[rb + J[t]]
+    for (let b = 0; b < ni; b++) zji[tb + b] /= d
+  }
+}
+
+/**
+ * Z_JJ = R_JJ⁻¹·(R_JJ⁻ᵀ − R_JI·Z_JIᵀ), by rows from the last (symmetric). Row t
+ * of R_JJ is gathered once; Z[l][t2] is read as Z[t2][l] along a contiguous row
+ * (rows below t are complete).
+ */
+function solveZjj(rv: Float64Array, off: number, nc: number, np: number, J: Int32Array, nl: number, ni: number, zji: Float64Array, zjj: Float64Array, rowJ: Float64Array): void {
+  for (let t = nl - 1; t >= 0; t--) {
+    const rb = off + J[t] * nc
+    const d = rv[rb + J[t]]
+    for (let l = t + 1; l < nl; l++) rowJ[l] = rv[rb + J[l]]
+    for (let t2 = nl - 1; t2 >= t; t2--) {
+      // W_t,t2 = R_J[t],I · Z_J[t2],I
+      let v = t === t2 ? 1 / d : 0
+      const ob = t2 * ni
+      for (let a = 0; a < ni; a++) v -= rv[rb + np + a] * zji[ob + a]
+      const zr = t2 * nl
+      for (let l = t + 1; l < nl; l++) v -= rowJ[l] * zjj[zr + l]
+      v /= d
+      zjj[t * nl + t2] = v
+      zjj[zr + t] = v
+    }
+  }
+}
+
+/** Z_II (ni × ni) out of the parent's full front of Z, at the parent's columns `rel`. */
+function gather(zp: Float64Array, zpOff: number, pnc: number, rel: Int32Array, ni: number, zii: Float64Array): void {
+  for (let a = 0; a < ni; a++) {
+    const ra = zpOff + rel[a] * pnc
+    for (let b = 0; b < ni; b++) zii[a * ni + b] = zp[ra + rel[b]]
+  }
+}
+
+/** Rows J of Z (Z_JJ and Z_JI) into R's layout. */
+function storeRows(zv: Float64Array, off: number, nc: number, np: number, J: Int32Array, nl: number, ni: number, zjj: Float64Array, zji: Float64Array): void {
+  for (let t = 0; t < nl; t++) {
+    const zb = off + J[t] * nc
+    for (let t2 = 0; t2 < nl; t2++) zv[zb + J[t2]] = zjj[t * nl + t2]
+    for (let a = 0; a < ni; a++) zv[zb + np + a] = zji[t * ni + a]
+  }
+}
+
+/** The supernode's full front of Z (nc × nc) for its children. */
+function storeFront(fz: Float64Array, nc: number, np: number, J: Int32Array, nl: number, ni: number, zjj: Float64Array, zji: Float64Array, zii: Float64Array): void {
+  for (let t = 0; t < nl; t++) {
+    const jt = J[t]
+    for (let t2 = 0; t2 < nl; t2++) fz[jt * nc + J[t2]] = zjj[t * nl + t2]
+    for (let a = 0; a < ni; a++) {
+      const v = zji[t * ni + a]
+      fz[jt * nc + np + a] = v
+      fz[(np + a) * nc + jt] = v
+    }
+  }
+  for (let a = 0; a < ni; a++) for (let b = 0; b < ni; b++) fz[(np + a) * nc + np + b] = zii[a * ni + b]
 }

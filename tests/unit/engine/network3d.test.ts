@@ -454,7 +454,11 @@ describe('weighted control and a-priori scaling in 3D', () => {
     expect(t.critical).toBeCloseTo(16.266, 2)
     const vb = ref.v.subMatrix(0, 2, 0, 0)
     const Qb = ref.Qvv.subMatrix(0, 2, 0, 2)
-    expect(t.statistic).toBeCloseTo(vb.transpose().mmul(inverse(Qb)).mmul(vb).get(0, 0), 5)
+    // 4 decimals: the engine and the linear GLS reference differ by ~4.9e-6 here
+    // (measured), and the statistic moves by ~2e-7 with the rounding of the
+    // converged ECEF coordinates (~1e-9 m against residuals of ~1 mm), so 5
+    // decimals passed or failed by that rounding alone
+    expect(t.statistic).toBeCloseTo(vb.transpose().mmul(inverse(Qb)).mmul(vb).get(0, 0), 4)
     expect(r.network3d?.vectorTest).toBe('chi2')
   })
 })

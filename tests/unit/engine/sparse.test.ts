@@ -354,6 +354,58 @@ describe('sparse and dense adjustments agree to 1e-9 relative (dense path = orac
     expectAgree(s, d)
   })
 
+  // Free networks: the sparse path holds a minimal datum (d unknowns) and
+  // S-transforms; the dense path adds the inner-constraint rows. Both must give
+  // the inner-constraint solution and cofactors.
+  it('free network, 484 stations, directions and distances (datum defect 3: two translations and the rotation)', () => {
+    const net = gridNetwork(22, 31)
+    const { s, d } = both(net, { datum: 'free' })
+    expect(s.counts.r).toBe(s.counts.n - s.counts.u + 3)
+    expectAgree(s, d)
+  })
+
+  it('free network, 100 stations, directions only (datum defect 4: the scale too)', () => {
+    const net = gridNetwork(10, 32)
+    // no distance, so no scale for the approximations either: they are given (the generator's truth moved by up to 1 m)
+    const r = rng(34)
+    const approximate = [...net.truth].map(([station, [e, n]]) => ({ station, east: e + (r() - 0.5) * 2, north: n + (r() - 0.5) * 2 }))
+    const { s, d } = both({ controls: net.controls, observations: net.observations.filter((o) => o.kind === 'direction'), approximate }, { datum: 'free' })
+    expect(s.counts.r).toBe(s.counts.n - s.counts.u + 4)
+    expectAgree(s, d)
+  })
+
+  it('free network, 144 stations, directions, distances and two azimuths (datum defect 2: the translations)', () => {
+    const net = gridNetwork(12, 33)
+    // two azimuths, so that neither is the only orientation (a row with redundancy 0 has no relative precision to compare)
+    const azimuths = [['P2_3', 'P9_8'], ['P10_1', 'P1_10']].map(([at, to], k) => {
+      const a = net.truth.get(at)!
+      const b = net.truth.get(to)!
+      let v = Math.atan2(b[0] - a[0], b[1] - a[1]) + 2 * ARC * gauss(rng(40 + k))
+      if (v < 0) v += 2 * Math.PI
+      return obs({ line: 9000 + k, kind: 'azimuth', at, to, value: v, sigma: 2 * ARC })
+    })
+    const { s, d } = both({ controls: net.controls, observations: [...net.observations, ...azimuths] }, { datum: 'free' })
+    expect(s.counts.r).toBe(s.counts.n - s.counts.u + 2)
+    expectAgree(s, d)
+  })
+
+  it('free levelling network, 60 benchmarks (datum defect 1)', () => {
+    const r = rng(18)
+    const names = Array.from({ length: 60 }, (_, i) => `H${i}`)
+    const h = names.map(() => 100 + r() * 20)
+    const observations: ObservationRecord[] = []
+    let line = 2
+    for (let i = 0; i < names.length; i++)
+      for (const j of [i + 1, i + 5]) {
+        if (j >= names.length) continue
+        const km = 0.5 + r()
+        observations.push(obs({ line: line++, kind: 'height_difference', at: names[i], to: names[j], value: h[j] - h[i] + 0.001 * Math.sqrt(km) * gauss(r), lengthKm: km }))
+      }
+    const { s, d } = both({ controls: [{ ...fixed('H0', null, null, h[0]), line: 1 }], observations }, { datum: 'free' })
+    expect(s.counts.r).toBe(s.counts.n - s.counts.u + 1)
+    expectAgree(s, d)
+  })
+
   it('weighted control, angles and azimuths, a-priori scaling', () => {
     const net = gridNetwork(8, 9)
     const r = rng(4)

@@ -12,5 +12,5 @@ ALTER TABLE "run_overviews" ADD CONSTRAINT "run_overviews_run_fk" FOREIGN KEY ("
 CREATE INDEX "adjusted_stations_run_order" ON "adjusted_stations" USING btree ("firm_id","adjustment_id","id");--> statement-breakpoint
 CREATE INDEX "observation_results_run_order" ON "observation_results" USING btree ("firm_id","adjustment_id","id");--> statement-breakpoint
 CREATE INDEX "observation_results_run_abs_w" ON "observation_results" USING btree ("firm_id","adjustment_id",abs("w") desc nulls last,"id");--> statement-breakpoint
-CREATE INDEX "observation_results_run_fails" ON "observation_results" USING btree ("firm_id","adjustment_id",abs("w") desc nulls last,"id") WHERE (not excluded and (flagged or tau_flagged));--> statement-breakpoint
+CREATE INDEX "observation_results_run_fails" ON "observation_results" USING btree ("firm_id","adjustment_id",abs("w") desc nulls last,"id") WHERE (not excluded and (flagged or tau_flagged or coalesce(vector_flagged, false)));--> statement-breakpoint
 CREATE INDEX "relative_precisions_run_order" ON "relative_precisions" USING btree ("firm_id","adjustment_id","id");

@@ -1,0 +1,72 @@
+// The run report with GNSS vectors, in the browser: the seeded second demo
+// project (server/db/demo/demo-gnss.csv, six vectors tied to a traverse) is
+// adjusted by the worker in 3D; its report lists each vector with its test and
+// the map's legend names the vectors. Then a vector is typed into the grid of
+// a georeferenced project.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Browser, Page } from 'playwright-core'
+import { closeDb } from '../../server/db/client'
+import { GNSS_DEMO } from '../../server/db/demo/gnss-project'
+import { launch, newPage, shot, signIn } from '../support/browser'
+import { as, DEMO, runDone } from '../support/http'
+
+let browser: Browser
+let page: Page
+let base: string
+let georeferenced: string
+
+beforeAll(async () => {
+  const chief = await as(DEMO.chief)
+  const projects = await chief.get(`/api/firms/${DEMO.firm}/projects`)
+  const demo = projects.body.find((p: { name: string }) => p.name === GNSS_DEMO.name)
+  if (!demo) throw new Error('the seeded GNSS demo project is missing')
+  const api = `/api/firms/${DEMO.firm}/projects/${demo.id}`
+  // the seed queued run 1; the worker adjusts it in 3D
+  await runDone(chief, `${api}/adjustments/1/status`, 120_000)
+  base = `/f/${DEMO.firm}/projects/${demo.id}/runs/1`
+  const g = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS grid e2e ${Date.now()}`, crs: 'EPSG:32633', units: 'm' })
+  georeferenced = `/f/${DEMO.firm}/projects/${g.body.id}`
+  browser = await launch()
+  page = await newPage(browser)
+  await signIn(page, DEMO.chief)
+})
+afterAll(async () => {
+  await browser?.close()
+  await closeDb()
+})
+
+describe('GNSS vectors in the run report', () => {
+  it('lists the six vectors with their tests and residuals in E/N/U, and the map legend shows vectors', async () => {
+    await page.goto(base)
+    const table = page.getByTestId('vector-table')
+    await table.waitFor({ timeout: 30_000 })
+    const rows = table.locator('tbody tr[data-line]')
+    expect(await rows.count()).toBe(6) // six gnss_baseline rows in the demo file
+    const w01w02 = table.locator('tbody tr[data-line="6"]')
+    const text = await w01w02.innerText()
+    expect(text).toContain('W01 → W02')
+    expect(text).toContain('−1755.7500') // observed ΔX as in the file
+    expect(text).toMatch(/✓ passes|✕ flagged/)
+    expect(await w01w02.getByRole('button', { name: /Exclude vector W01 to W02/ }).count()).toBe(1)
+    const legend = page.getByTestId('legend-vectors')
+    await legend.waitFor({ timeout: 30_000 })
+    expect(await legend.innerText()).toContain('GNSS vector (6)')
+    expect(await page.getByTestId('network-map').getAttribute('data-vectors')).toBe('6')
+    await shot(page, 'run-gnss-vectors')
+  })
+
+  it('the typed-in grid takes a vector in three-number fields and stores it', async () => {
+    await page.goto(`${georeferenced}/observations`)
+    await page.getByRole('button', { name: 'Open grid' }).click()
+    await page.getByLabel('Row 1 kind').selectOption('gnss_baseline')
+    await page.getByLabel('Row 1 Instrument at', { exact: true }).fill('W01')
+    await page.getByLabel('Row 1 Target', { exact: true }).fill('W02')
+    const fields: [string, string][] = [['ΔX m', '-1755.7500'], ['ΔY m', '1963.3372'], ['ΔZ m', '884.3970'], ['σX mm', '3.96'], ['σY mm', '2.63'], ['σZ mm', '5.09'], ['ρXY', '0.2367'], ['ρXZ', '0.6756'], ['ρYZ', '0.2659']]
+    for (const [label, value] of fields) await page.getByLabel(`Row 1 ${label}`, { exact: true }).fill(value)
+    await page.getByRole('button', { name: 'Save typed-in observations' }).click()
+    await page.getByText('1 observation saved as a typed-in set.').waitFor({ timeout: 20_000 })
+    const cell = page.locator('[data-testid="observation-table"] tbody tr').first()
+    await cell.getByText('ΔX −1755.7500').waitFor({ timeout: 20_000 })
+    expect(await cell.innerText()).toContain('ρXY 0.237')
+  })
+})
