@@ -186,10 +186,16 @@ export type RelativeRow = { from: string; to: string; distance: number; semiMajo
 
 export interface Page<T> { page: number; size: number; total: number; sort: string; rows: T[] }
 
-function orderBy(sort: string, columns: Record<string, string>): SQL {
+/**
+ * `table.id`, qualified: a bare `id` in ORDER BY names an output column first, and the observation
+ * page selects observation_id AS "id" (null on control and vector rows), which left them unordered.
+ */
+function orderBy(table: string, sort: string, columns: Record<string, string>): SQL {
   const desc = sort.startsWith('-')
-  const expr = columns[desc ? sort.slice(1) : sort] ?? 'id'
-  return sql.raw(`${expr} ${desc ? 'desc' : 'asc'} nulls last, id asc`)
+  const id = `${table}.id`
+  const col = columns[desc ? sort.slice(1) : sort] ?? 'id'
+  const expr = col === 'id' ? id : col
+  return sql.raw(`${expr} ${desc ? 'desc' : 'asc'} nulls last, ${id} asc`)
 }
 
 /** `needle` inside `column`, case-insensitive, with no LIKE wildcards to escape. */
@@ -217,7 +223,7 @@ export function pageStations(firmId: number, runId: number, known: number | unde
   if (q.q) where.push(contains('name', q.q))
   if (q.kind) where.push(sql`kind = ${q.kind}`)
   if (q.fixed !== undefined) where.push(sql`fixed = ${q.fixed}`)
-  return paged('adjusted_stations', STATION_SELECT, where, orderBy(q.sort, STATION_SORT_SQL), q, stationOf, known)
+  return paged('adjusted_stations', STATION_SELECT, where, orderBy('adjusted_stations', q.sort, STATION_SORT_SQL), q, stationOf, known)
 }
 
 /** mm for lengths and arcseconds for angles, so one |residual| order makes sense across kinds (as the table shows them). */
@@ -240,7 +246,7 @@ export function pageObservations(firmId: number, runId: number, known: number | 
   if (q.rating === 'fail') where.push(sql.raw(FAILS))
   if (q.rating === 'watch') where.push(sql.raw(WATCH))
   if (q.rating === 'pass') where.push(sql.raw(`not ${FAILS} and not ${WATCH}`))
-  return paged('observation_results', OBSERVATION_SELECT, where, orderBy(q.sort, OBSERVATION_SORT_SQL), q, observationOf, known)
+  return paged('observation_results', OBSERVATION_SELECT, where, orderBy('observation_results', q.sort, OBSERVATION_SORT_SQL), q, observationOf, known)
 }
 
 /** One GNSS vector of a run with its whole-vector test (the three component rows folded into one). */
@@ -306,7 +312,7 @@ export function pageRelative(firmId: number, runId: number, known: number | unde
   const where = [runScope(firmId, runId)]
   if (q.q) where.push(sql`(${contains('from_station', q.q)} or ${contains('to_station', q.q)})`)
   if (q.passes !== undefined) where.push(sql`passes = ${q.passes}`)
-  return paged('relative_precisions', RELATIVE_SELECT, where, orderBy(q.sort, RELATIVE_SORT_SQL), q, (r) => r as RelativeRow, known)
+  return paged('relative_precisions', RELATIVE_SELECT, where, orderBy('relative_precisions', q.sort, RELATIVE_SORT_SQL), q, (r) => r as RelativeRow, known)
 }
 
 // ── overviews computed in SQL (histograms, redundancy bins, the map) ────────
