@@ -1,7 +1,9 @@
 #!/usr/bin/env bash
 # The benchmarks that need PostgreSQL: storing uploads (tests/bench/store.ts),
-# a run through the API and the queue (tests/bench/api.ts) and 60 s of load by
-# 50 signed-in people (tests/bench/load.ts). Its own fresh
+# a run through the API and the queue (tests/bench/api.ts), one 10,000-station
+# run along the whole API path and its run page (tests/bench/big-run.ts) and
+# 60 s of load by 50 signed-in people (tests/bench/load.ts).
+# TIEPOINT_BENCH_ONLY=big-run (a name or several, space-separated) runs only those. Its own fresh
 # database on the test cluster, the built app and a worker, like test.sh.
 # Figures only.
 source "$(dirname "$0")/lib.sh"
@@ -18,6 +20,9 @@ pg_database "$PGPORT" "${TIEPOINT_BENCH_DB:-tiepoint_bench}" fresh
 migrate
 ensure_build
 npx tsx server/db/seed.ts
-node --expose-gc --import tsx tests/bench/store.ts
-node --import tsx tests/bench/api.ts
-node --import tsx tests/bench/load.ts
+ONLY=" ${TIEPOINT_BENCH_ONLY:-store api big-run load} "
+[[ "$ONLY" == *" store "* ]] && node --expose-gc --import tsx tests/bench/store.ts
+[[ "$ONLY" == *" api "* ]] && node --import tsx tests/bench/api.ts
+[[ "$ONLY" == *" big-run "* ]] && node --import tsx tests/bench/big-run.ts
+[[ "$ONLY" == *" load "* ]] && node --import tsx tests/bench/load.ts
+true

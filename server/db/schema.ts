@@ -17,6 +17,7 @@ import {
   jsonb,
   pgEnum,
   pgTable,
+  primaryKey,
   text,
   timestamp,
   uniqueIndex,
@@ -341,7 +342,9 @@ export const adjustedStations = pgTable('adjusted_stations', {
   controlledEast: boolean().notNull().default(false),
   controlledNorth: boolean().notNull().default(false),
   controlledHeight: boolean().notNull().default(false),
-}, (t) => [runResultKey('adjusted_stations_run_fk', t), index('adjusted_stations_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('adjusted_stations_run_fk', t), 
+  // one run's rows in stored order: the paged tables' default order and the CSV read it without a sort
+  index('adjusted_stations_run_order').on(t.firmId, t.adjustmentId, t.id)])
 
 export const observationResults = pgTable('observation_results', {
   id: id(),
@@ -393,7 +396,28 @@ export const observationResults = pgTable('observation_results', {
   residualE: doublePrecision(),
   residualN: doublePrecision(),
   residualU: doublePrecision(),
-}, (t) => [runResultKey('observation_results_run_fk', t), index('observation_results_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('observation_results_run_fk', t), 
+  index('observation_results_run_order').on(t.firmId, t.adjustmentId, t.id),
+  // the residual table's default order (largest |w| first, as pageObservations sorts): the run report's
+  // first page is read from the index instead of sorting every observation of the run
+  index('observation_results_run_abs_w').on(t.firmId, t.adjustmentId, sql`abs(${t.w}) desc nulls last`, t.id),
+  // the few observations that fail (FAILS in server/services/run-results.ts, word for word), in the same
+  // order: the residual table's "fails" view and the verdict's list without reading the whole run
+  index('observation_results_run_fails').on(t.firmId, t.adjustmentId, sql`abs(${t.w}) desc nulls last`, t.id)
+    .where(sql`(not excluded and (flagged or tau_flagged or coalesce(vector_flagged, false)))`)])
+
+/**
+ * The run page's overview (the packed map and the histograms, see
+ * shared/map-overview.ts) as the JSON text the route sends, made once in the
+ * transaction that stores the run's results: they never change afterwards,
+ * and grouping 100,000 observations into lines on every page view would not
+ * be quick.
+ */
+export const runOverviews = pgTable('run_overviews', {
+  firmId: integer().notNull(),
+  adjustmentId: integer().notNull(),
+  body: text().notNull(),
+}, (t) => [primaryKey({ name: 'run_overviews_pk', columns: [t.firmId, t.adjustmentId] }), runResultKey('run_overviews_run_fk', t)])
 
 export const relativePrecisions = pgTable('relative_precisions', {
   id: id(),
@@ -409,7 +433,8 @@ export const relativePrecisions = pgTable('relative_precisions', {
   sdDistance: doublePrecision(),
   allowable: doublePrecision(),
   passes: boolean(),
-}, (t) => [runResultKey('relative_precisions_run_fk', t), index('relative_precisions_firm_run').on(t.firmId, t.adjustmentId)])
+}, (t) => [runResultKey('relative_precisions_run_fk', t), 
+  index('relative_precisions_run_order').on(t.firmId, t.adjustmentId, t.id)])
 
 // ── sign-off, release, audit ────────────────────────────────────────────────
 

@@ -24,7 +24,7 @@ export type { RunListItem }
 import { loadRunInputs, RunInputError } from './run-inputs'
 import { ADJUST_QUEUE, jobPolicy, readyQueue, sendAdjustJob, type AdjustJob } from './run-queue'
 import {
-  buildSummary, cliShape, compareRuns, csvStream, distributions, mapData, pageObservations, pageRelative, pageStations, pageVectors, storeResults, type RunSummary,
+  buildSummary, cliShape, compareRuns, csvStream, overviewJson, pageObservations, pageRelative, pageStations, pageVectors, storeOverview, storeResults, type RunSummary,
 } from './run-results'
 
 export type RunStatus = Adjustment['status']
@@ -146,23 +146,28 @@ export async function findDoneRun(ctx: FirmContext, project: Project, number: nu
   return run
 }
 
+/** Rows the run stored, from its summary: an unfiltered page then needs no count over 100,000 rows. */
+const storedRows = (run: Adjustment) => (run.summary as unknown as RunSummary).rows
+
 export async function runStations(ctx: FirmContext, project: Project, number: number, q: StationPageQuery) {
-  return pageStations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
+  const run = await findDoneRun(ctx, project, number)
+  return pageStations(ctx.firm.id, run.id, storedRows(run)?.stations, q)
 }
 export async function runObservations(ctx: FirmContext, project: Project, number: number, q: ObservationPageQuery) {
-  return pageObservations(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
+  const run = await findDoneRun(ctx, project, number)
+  return pageObservations(ctx.firm.id, run.id, storedRows(run)?.observations, q)
 }
 export async function runVectors(ctx: FirmContext, project: Project, number: number, q: VectorPageQuery) {
   return pageVectors(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, q)
 }
 export async function runRelative(ctx: FirmContext, project: Project, number: number, q: RelativePageQuery) {
-  return pageRelative(ctx.firm.id, (await findDoneRun(ctx, project, number)).id, undefined, q)
-}
-/** What the map and the two histograms draw, computed in SQL. */
-export async function runOverview(ctx: FirmContext, project: Project, number: number) {
   const run = await findDoneRun(ctx, project, number)
-  const [map, dist] = await Promise.all([mapData(ctx.firm.id, run.id), distributions(ctx.firm.id, run.id)])
-  return { ...map, distributions: dist }
+  return pageRelative(ctx.firm.id, run.id, storedRows(run)?.relative, q)
+}
+/** The overview's JSON text (docs/api.md): kept with the run when it was stored. */
+export async function runOverview(ctx: FirmContext, project: Project, number: number): Promise<string> {
+  const run = await findDoneRun(ctx, project, number)
+  return overviewJson(ctx.firm.id, run.id)
 }
 
 /** Two finished runs of the project: σ̂0, tests, station shifts (paged, largest first), changed flags and exclusions. */
@@ -307,6 +312,7 @@ async function computeAndStore(run: Adjustment): Promise<ProcessOutcome> {
       .where(and(eq(adjustments.firmId, firmId), eq(adjustments.id, run.id))).for('update')
     if (!locked || locked.status !== 'running') return
     summary.storeMs = await storeResults(tx, firmId, run.id, r, inputs.stationKinds, relChecks)
+    summary.overviewMs = await storeOverview(tx, firmId, run.id)
     await tx.update(adjustments).set({
       status: 'done', finishedAt: new Date(), summary: summary as unknown as Record<string, unknown>, inputHash: inputs.hash, errorText: null,
     }).where(and(eq(adjustments.firmId, firmId), eq(adjustments.id, run.id)))

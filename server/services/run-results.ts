@@ -18,6 +18,7 @@ import type { AdjustmentResult, AdjustSettings, GlobalTest, GridReductionSummary
 import { describeTolerance, type ToleranceSpec } from './accuracy'
 import { safeCellSql } from './csv'
 import { NATURAL_COLLATION } from '../../shared/natural-sort'
+import { packMap, type MapLineIn, type MapStationIn, type PackedMap } from '../../shared/map-overview'
 
 // ── the summary ─────────────────────────────────────────────────────────────
 
@@ -59,6 +60,8 @@ export interface RunSummary {
   engineMs: number
   /** time to store the three result tables (COPY), ms */
   storeMs?: number
+  /** time to compute and keep the run page's overview (map and histograms), ms */
+  overviewMs?: number
   /** refraction coefficient k and its σ the run used */
   refraction: AdjustmentResult['refraction'] | null
   warnings: string[]
@@ -185,10 +188,16 @@ export type RelativeRow = { from: string; to: string; distance: number; semiMajo
 
 export interface Page<T> { page: number; size: number; total: number; sort: string; rows: T[] }
 
-function orderBy(sort: string, columns: Record<string, string>): SQL {
+/**
+ * `table.id`, qualified: a bare `id` in ORDER BY names an output column first, and the observation
+ * page selects observation_id AS "id" (null on control and vector rows), which left them unordered.
+ */
+function orderBy(table: string, sort: string, columns: Record<string, string>): SQL {
   const desc = sort.startsWith('-')
-  const expr = columns[desc ? sort.slice(1) : sort] ?? 'id'
-  return sql.raw(`${expr} ${desc ? 'desc' : 'asc'} nulls last, id asc`)
+  const id = `${table}.id`
+  const col = columns[desc ? sort.slice(1) : sort] ?? 'id'
+  const expr = col === 'id' ? id : col
+  return sql.raw(`${expr} ${desc ? 'desc' : 'asc'} nulls last, ${id} asc`)
 }
 
 /** `needle` inside `column`, case-insensitive, with no LIKE wildcards to escape. */
@@ -219,7 +228,7 @@ export function pageStations(firmId: number, runId: number, known: number | unde
   if (q.q) where.push(contains('name', q.q))
   if (q.kind) where.push(sql`kind = ${q.kind}`)
   if (q.fixed !== undefined) where.push(sql`fixed = ${q.fixed}`)
-  return paged('adjusted_stations', STATION_SELECT, where, orderBy(q.sort, STATION_SORT_SQL), q, stationOf, known)
+  return paged('adjusted_stations', STATION_SELECT, where, orderBy('adjusted_stations', q.sort, STATION_SORT_SQL), q, stationOf, known)
 }
 
 /** mm for lengths and arcseconds for angles, so one |residual| order makes sense across kinds (as the table shows them). */
@@ -242,7 +251,7 @@ export function pageObservations(firmId: number, runId: number, known: number | 
   if (q.rating === 'fail') where.push(sql.raw(FAILS))
   if (q.rating === 'watch') where.push(sql.raw(WATCH))
   if (q.rating === 'pass') where.push(sql.raw(`not ${FAILS} and not ${WATCH}`))
-  return paged('observation_results', OBSERVATION_SELECT, where, orderBy(q.sort, OBSERVATION_SORT_SQL), q, observationOf, known)
+  return paged('observation_results', OBSERVATION_SELECT, where, orderBy('observation_results', q.sort, OBSERVATION_SORT_SQL), q, observationOf, known)
 }
 
 /** One GNSS vector of a run with its whole-vector test (the three component rows folded into one). */
@@ -308,20 +317,30 @@ export function pageRelative(firmId: number, runId: number, known: number | unde
   const where = [runScope(firmId, runId)]
   if (q.q) where.push(sql`(${contains('from_station', q.q)} or ${contains('to_station', q.q)})`)
   if (q.passes !== undefined) where.push(sql`passes = ${q.passes}`)
-  return paged('relative_precisions', RELATIVE_SELECT, where, orderBy(q.sort, RELATIVE_SORT_SQL), q, (r) => r as RelativeRow, known)
+  return paged('relative_precisions', RELATIVE_SELECT, where, orderBy('relative_precisions', q.sort, RELATIVE_SORT_SQL), q, (r) => r as RelativeRow, known)
 }
 
 // ── overviews computed in SQL (histograms, redundancy bins, the map) ────────
 
+/**
+ * Runs the queries side by side on the pool, one after the other on a
+ * transaction (one connection: pg would queue them anyway, and warns).
+ */
+async function allOn<T extends readonly (() => Promise<unknown>)[]>(db: Pick<Tx, 'execute'>, queries: T): Promise<{ -readonly [K in keyof T]: Awaited<ReturnType<T[K]>> }> {
+  if (db === useDb()) return Promise.all(queries.map((q) => q())) as never
+  const out: unknown[] = []
+  for (const q of queries) out.push(await q())
+  return out as never
+}
+
 /** Counts of w in 0.5-wide bins from −5 to 5 (outermost bins collect the rest) and of rᵢ in the redundancy report's bins. */
-export async function distributions(firmId: number, runId: number) {
-  const db = useDb()
-  const [w, r] = await Promise.all([
-    db.execute<{ bin: number; n: number }>(sql`select least(greatest(floor((w + 5) / 0.5), 0), 19)::int as bin, count(*)::int as n
+export async function distributions(firmId: number, runId: number, db: Pick<Tx, 'execute'> = useDb()) {
+  const [w, r] = await allOn(db, [
+    () => db.execute<{ bin: number; n: number }>(sql`select least(greatest(floor((w + 5) / 0.5), 0), 19)::int as bin, count(*)::int as n
       from observation_results where ${runScope(firmId, runId)} and not excluded and w is not null group by 1`),
-    db.execute<{ bin: number; n: number }>(sql`select width_bucket(redundancy, array[0, 0.1, 0.2, 0.4, 0.6, 0.8, 1.0001]::float8[])::int as bin, count(*)::int as n
+    () => db.execute<{ bin: number; n: number }>(sql`select width_bucket(redundancy, array[0, 0.1, 0.2, 0.4, 0.6, 0.8, 1.0001]::float8[])::int as bin, count(*)::int as n
       from observation_results where ${runScope(firmId, runId)} and not excluded and redundancy is not null group by 1`),
-  ])
+  ] as const)
   const wBins = Array.from({ length: 20 }, () => 0)
   for (const row of w.rows) wBins[row.bin] = row.n
   const rBins = Array.from({ length: 6 }, () => 0)
@@ -329,55 +348,57 @@ export async function distributions(firmId: number, runId: number) {
   return { w: { from: -5, width: 0.5, counts: wBins }, redundancy: { edges: [0, 0.1, 0.2, 0.4, 0.6, 0.8, 1], counts: rBins } }
 }
 
-const round = (v: number, d: number) => Math.round(v * 10 ** d) / 10 ** d
-
 /**
- * Everything the map draws, as parallel arrays (a 10,000-station run is a
- * few hundred KB, not megabytes of objects): stations with their ellipse at
- * the run's confidence, and one line per connected pair with its worst
- * rating (0 pass, 1 watch, 2 fail) and observation counts.
+ * Everything the map draws, packed (shared/map-overview.ts): stations with
+ * their ellipse at the run's confidence, and one line per connected pair
+ * with its worst rating (0 pass, 1 watch, 2 fail). A 10,000-station run with
+ * 30,000 lines is a few hundred KB.
  */
-export async function mapData(firmId: number, runId: number) {
-  const db = useDb()
-  const [st, ln] = await Promise.all([
-    db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null; ce: boolean; cn: boolean; ch: boolean }>(sql`
-      select name, kind, fixed, east, north, semi_major95 as a, semi_minor95 as b, azimuth_deg as az, controlled_east as ce, controlled_north as cn, controlled_height as ch
+export async function mapData(firmId: number, runId: number, db: Pick<Tx, 'execute'> = useDb()): Promise<PackedMap> {
+  const [st, ln] = await allOn(db, [
+    () => db.execute<{ name: string; kind: string; fixed: boolean; east: number; north: number; a: number | null; b: number | null; az: number | null }>(sql`
+      select name, kind, fixed, east, north, semi_major95 as a, semi_minor95 as b, azimuth_deg as az
       from adjusted_stations where ${runScope(firmId, runId)} and east is not null and north is not null order by id`),
-    // GNSS vectors get their own line per pair (gnss = true), so the map can draw them apart from total-station lines
-    db.execute<{ p: string; q: string; used: number; excl: number; rating: number; gnss: boolean }>(sql`
-      select least(at, "to") as p, greatest(at, "to") as q, count(*) filter (where not excluded)::int as used, count(*) filter (where excluded)::int as excl,
+    // GNSS vectors get their own line per pair (gnss = true, lineKind 1), so the map can draw them apart from total-station lines
+    () => db.execute<{ p: string; q: string; rating: number; gnss: boolean }>(sql`
+      select least(at, "to") as p, greatest(at, "to") as q,
         max(case when ${sql.raw(FAILS)} then 2 when ${sql.raw(WATCH)} then 1 else 0 end)::int as rating,
         kind = 'gnss_baseline' as gnss
-      from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2, 6`),
-  ])
+      from observation_results where ${runScope(firmId, runId)} and kind <> 'control' and at <> "to" group by 1, 2, 4`),
+  ] as const)
   const index = new Map<string, number>()
-  const stations = { name: [] as string[], east: [] as number[], north: [] as number[], kind: [] as number[], a: [] as (number | null)[], b: [] as (number | null)[], az: [] as (number | null)[] }
-  st.rows.forEach((s, i) => {
+  const stations: MapStationIn[] = st.rows.map((s, i) => {
     index.set(s.name, i)
-    stations.name.push(s.name)
-    // drawn, not quoted: positions to the millimetre, axes to 0.01 mm, azimuths to 0.1°, keep the payload small
-    stations.east.push(round(s.east, 3))
-    stations.north.push(round(s.north, 3))
-    // 0 new, 1 control held fixed, 2 control weighted or free
-    stations.kind.push(s.kind !== 'control' ? 0 : s.fixed ? 1 : 2)
-    stations.a.push(s.fixed || s.a === null ? null : round(s.a, 5))
-    stations.b.push(s.fixed || s.b === null ? null : round(s.b, 5))
-    stations.az.push(s.fixed || s.az === null ? null : round(s.az, 1))
+    // 0 new, 1 control held fixed, 2 control weighted or free; held stations draw no ellipse
+    return { name: s.name, east: s.east, north: s.north, kind: s.kind !== 'control' ? 0 : s.fixed ? 1 : 2, a: s.fixed ? null : s.a, b: s.fixed ? null : s.b, az: s.az }
   })
-  // vector[i] = 1 for a GNSS vector line; its used/excluded count component rows (three per vector)
-  const lines = { from: [] as number[], to: [] as number[], rating: [] as number[], used: [] as number[], excluded: [] as number[], vector: [] as number[] }
+  const lines: MapLineIn[] = []
   for (const l of ln.rows) {
     const i = index.get(l.p)
     const j = index.get(l.q)
-    if (i === undefined || j === undefined) continue
-    lines.from.push(i)
-    lines.to.push(j)
-    lines.rating.push(l.rating)
-    lines.used.push(l.used)
-    lines.excluded.push(l.excl)
-    lines.vector.push(l.gnss ? 1 : 0)
+    if (i !== undefined && j !== undefined) lines.push({ from: i, to: j, rating: l.rating, kind: l.gnss ? 1 : 0 })
   }
-  return { stations, lines }
+  return packMap(stations, lines)
+}
+
+/** The run page's overview: the packed map and the histograms. */
+export async function computeOverview(firmId: number, runId: number, db: Pick<Tx, 'execute'> = useDb()) {
+  const [map, dist] = await allOn(db, [() => mapData(firmId, runId, db), () => distributions(firmId, runId, db)] as const)
+  return { ...map, distributions: dist }
+}
+
+/** Computes the overview of results just stored (same transaction) and keeps its JSON text in run_overviews. Returns the time taken in ms. */
+export async function storeOverview(tx: Tx, firmId: number, runId: number): Promise<number> {
+  const t0 = performance.now()
+  const body = JSON.stringify(await computeOverview(firmId, runId, tx))
+  await tx.execute(sql`insert into run_overviews (firm_id, adjustment_id, body) values (${firmId}, ${runId}, ${body})`)
+  return Math.round(performance.now() - t0)
+}
+
+/** The overview's JSON text: as stored with the run, or computed for a run stored before overviews were kept. */
+export async function overviewJson(firmId: number, runId: number): Promise<string> {
+  const res = await useDb().execute<{ body: string }>(sql`select body from run_overviews where firm_id = ${firmId} and adjustment_id = ${runId}`)
+  return res.rows[0]?.body ?? JSON.stringify(await computeOverview(firmId, runId))
 }
 
 // ── whole lists, for the sign-off and its accuracy check ────────────────────

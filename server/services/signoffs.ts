@@ -7,7 +7,7 @@
 // superseded, never edited.
 import { naturalSortBy } from '../../shared/natural-sort'
 import { and, desc, eq, gt, inArray, sql } from 'drizzle-orm'
-import type { SignoffCreate } from '../../shared/schemas/signoffs'
+import type { SignoffCreate, SignoffPreviewQuery } from '../../shared/schemas/signoffs'
 import type { AdjustmentResult, StationResult } from '../engine/types'
 import type { RunSettings } from '../../shared/schemas/adjustments'
 import { adjustments, observationSets, projects, signoffs, users } from '../db/schema'
@@ -179,27 +179,46 @@ export interface FlaggedObservation { line: number; kind: string; at: string; fr
 
 export interface SignoffPreview {
   run: RunSummaryDto
-  check: AccuracyCheck
+  /** the check's verdict over every item; `items` lists the failing ones first, at most CHECK_ITEMS_SHOWN (`itemCount` says how many there are) */
+  check: AccuracyCheck & { itemCount: number }
+  /** one page of the stations that can be signed (with a horizontal position), in the run's order */
   stations: (SignedStation & { passes: boolean; selectedByDefault: boolean })[]
-  defaultStations: string[]
+  stationPage: { page: number; size: number; total: number }
+  /** the run's control points: held fixed or weighted; shown whatever the page */
+  control: { name: string; fixed: boolean }[]
+  /** how many stations a sign-off without a list signs: new stations that pass the accuracy check */
+  defaultCount: number
+  /** their names, when few enough to choose from (SELECTABLE_STATIONS); null: a sign-off signs that set as a whole */
+  defaultStations: string[] | null
   /** statistical tests the run did not pass; signing then needs acknowledgeFailedTests */
   testWarnings: string[]
 }
 
-/** What the sign-off page shows for one finished run before anyone signs. */
-export async function previewSignoff(ctx: FirmContext, project: Project, runNumber: number): Promise<SignoffPreview> {
-  const run = await findRun(ctx.firm.id, project.id, runNumber)
+/** Runs with more signable stations than this sign the default set as a whole instead of a list of ticked names (a 10,000-station sign-off page stays one page of rows). */
+export const SELECTABLE_STATIONS = 500
+/** Accuracy-check items listed on the sign-off page, failing ones first; the verdict counts them all. */
+export const CHECK_ITEMS_SHOWN = 200
+
+/** What the sign-off page shows for one finished run before anyone signs: the summary, the check, one page of stations. */
+export async function previewSignoff(ctx: FirmContext, project: Project, q: SignoffPreviewQuery): Promise<SignoffPreview> {
+  const run = await findRun(ctx.firm.id, project.id, q.run)
   const result = await doneResult(run)
   const profile = await getToleranceProfile(ctx.firm.id, project.toleranceProfileId)
   const check = checkAccuracy(profile, result)
   const defaults = defaultSignStations(result, check)
+  const isDefault = new Set(defaults)
   const failing = new Set(check.failing)
+  const signable = naturalSortBy(result.stations.filter((s) => s.east !== null && s.north !== null), (s) => s.name)
+  const items = [...check.items.filter((i) => !i.passes), ...check.items.filter((i) => i.passes)].slice(0, CHECK_ITEMS_SHOWN)
   return {
     run: runSummary(run),
-    check,
-    stations: naturalSortBy(result.stations.filter((s) => s.east !== null && s.north !== null), (s) => s.name)
-      .map((s) => ({ ...toSignedStation(s), passes: !failing.has(s.name), selectedByDefault: defaults.includes(s.name) })),
-    defaultStations: defaults,
+    check: { ...check, items, itemCount: check.items.length },
+    stations: signable.slice((q.page - 1) * q.size, q.page * q.size)
+      .map((s) => ({ ...toSignedStation(s), passes: !failing.has(s.name), selectedByDefault: isDefault.has(s.name) })),
+    stationPage: { page: q.page, size: q.size, total: signable.length },
+    control: result.stations.filter((s) => s.kind === 'control' || s.fixed).map((s) => ({ name: s.name, fixed: s.fixed })),
+    defaultCount: defaults.length,
+    defaultStations: signable.length <= SELECTABLE_STATIONS ? defaults : null,
     testWarnings: failedTests(result),
   }
 }

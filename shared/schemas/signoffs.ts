@@ -13,4 +13,10 @@ export type SignoffCreate = z.infer<typeof signoffCreateSchema>
 export const signoffRequestSchema = z.object({ note: z.string().trim().max(2000).optional() }).strict()
 export type SignoffRequest = z.infer<typeof signoffRequestSchema>
 
-export const signoffPreviewQuerySchema = z.object({ run: z.coerce.number().int().positive() })
+/** `page`, `size`: the page of signable stations listed (a 10,000-station run is never listed whole). */
+export const signoffPreviewQuerySchema = z.object({
+  run: z.coerce.number().int().positive(),
+  page: z.coerce.number().int().min(1, 'must be 1 or more').max(1_000_000).default(1),
+  size: z.coerce.number().int().min(1, 'must be 1 or more').max(500, 'must be at most 500').default(100),
+})
+export type SignoffPreviewQuery = z.output<typeof signoffPreviewQuerySchema>

@@ -54,9 +54,17 @@ export interface SignoffPreviewDto {
     counts: { n: number; u: number; r: number } | null
     alpha?: number | null
   }
-  check: AccuracyCheckDto
+  /** `items` lists the failing ones first, at most 200; `itemCount` says how many there are */
+  check: AccuracyCheckDto & { itemCount: number }
+  /** one page of the stations that can be signed */
   stations: (SignedStationDto & { passes: boolean; selectedByDefault: boolean })[]
-  defaultStations: string[]
+  stationPage: { page: number; size: number; total: number }
+  /** the run's control points, held fixed or weighted, whatever the page */
+  control: { name: string; fixed: boolean }[]
+  /** how many stations a sign-off without a list signs */
+  defaultCount: number
+  /** their names when few enough to choose from; null: the default set is signed as a whole */
+  defaultStations: string[] | null
   /** statistical tests the run did not pass; signing then needs acknowledgeFailedTests */
   testWarnings: string[]
 }

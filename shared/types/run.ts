@@ -1,5 +1,6 @@
 // Shapes of an adjustment run that the server sends and the pages read.
 import type { RunSettings } from '../schemas/adjustments'
+import type { PackedMap } from '../map-overview'
 import type { AdjustmentResult, AdjustSettings, GridReductionSummary, InstrumentProfile, NetworkSummary, ObservationResult, RelativeResult, StationResult } from '../../server/engine/types'
 
 /** Where the a-priori σ of a set's observations came from. */
@@ -62,9 +63,8 @@ export type RunSettingsDto = Partial<RunSettings> & Record<string, unknown>
 export type RunRelative = Pick<RelativeResult, 'from' | 'to' | 'distance' | 'semiMajor' | 'semiMinor' | 'azimuthDeg'> & { semiMajor95: number; allowable: number | null; passes: boolean | null }
 
 /** GET …/adjustments/:number/overview — what the map and the two histograms draw (server/services/run-results.ts mapData, distributions). */
-export interface RunOverview {
-  stations: { name: string[]; east: number[]; north: number[]; kind: number[]; a: (number | null)[]; b: (number | null)[]; az: (number | null)[] }
-  lines: { from: number[]; to: number[]; rating: number[]; used: number[]; excluded: number[] }
+/** GET …/adjustments/:number/overview — the packed map (shared/map-overview.ts) and the histograms. */
+export type RunOverview = PackedMap & {
   distributions: {
     w: { from: number; width: number; counts: number[] }
     redundancy: { edges: number[]; counts: number[] }

@@ -5,10 +5,12 @@ import { DEMO_PROJECT_HEIGHT_M } from '../../server/db/demo/generate'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
-import { adjustedStations, adjustments, mailboxMessages, observationResults, observationSets, observations, projects, toleranceProfiles } from '../../server/db/schema'
+import { adjustedStations, adjustments, mailboxMessages, observationResults, observationSets, observations, projects, runOverviews, toleranceProfiles } from '../../server/db/schema'
+import { computeOverview } from '../../server/services/run-results'
 import { adjustNetwork } from '../../server/engine/index'
 import { as, DEMO, type Client } from '../support/http'
 import { BLUNDER, DEMO_CSV, projectWithNetwork, readCsv, waitForRun } from './adjustments-fixture'
+import { unpackMap } from '../../shared/map-overview'
 
 let chief: Client
 let fx: Awaited<ReturnType<typeof projectWithNetwork>>
@@ -258,15 +260,36 @@ describe('a run on the demo network', () => {
     expect(run.result.observations.map((o: any) => o.line)).toEqual(run.observations.map((o: any) => o.line))
   })
 
+  it('the overview is kept with the run when it is stored, and equals one computed afresh from the result tables', async () => {
+    const [first] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, fx.projectId), eq(adjustments.number, 1)))
+    const [row] = await useDb().select().from(runOverviews).where(and(eq(runOverviews.firmId, first!.firmId), eq(runOverviews.adjustmentId, first!.id)))
+    expect(row, 'no overview kept for run 1').toBeDefined()
+    const res = await chief.raw(`${runPath(1)}/overview`)
+    expect(res.headers.get('content-type')).toMatch(/^application\/json/)
+    expect(await res.text()).toBe(row!.body)
+    expect(JSON.parse(row!.body)).toEqual(await computeOverview(row!.firmId, row!.adjustmentId))
+  })
+
   it('the overview gives the map every station and connected pair, and the w histogram counts every used w', async () => {
     const ov = (await chief.get(`${runPath(1)}/overview`)).body
     const all = (await chief.get(`${runPath(1)}/observations?sort=order&size=500`)).body.rows as any[]
-    expect(ov.stations.name.length).toBe(run.totals.stations)
+    const stations = (await chief.get(`${runPath(1)}/stations?size=500`)).body.rows as any[]
+    expect(ov.names.length).toBe(run.totals.stations)
+    const map = unpackMap(ov)
+    // packed coordinates come back to the millimetre
+    for (const s of stations) {
+      const i = map.names.indexOf(s.name)
+      expect(Math.abs(map.east[i]! - s.east)).toBeLessThanOrEqual(0.0005)
+      expect(Math.abs(map.north[i]! - s.north)).toBeLessThanOrEqual(0.0005)
+    }
     const pairs = new Set(all.filter((o) => o.kind !== 'control' && o.at !== o.to).map((o) => [o.at, o.to].sort().join('|')))
-    expect(ov.lines.from.length).toBe(pairs.size)
+    const drawn = Array.from(map.from, (f, k) => [map.names[f], map.names[map.to[k]!]].sort().join('|'))
+    expect(new Set(drawn)).toEqual(pairs)
+    expect(drawn.length).toBe(pairs.size)
     const blunder = all.find((o) => o.line === BLUNDER.line)
-    const i = ov.lines.from.findIndex((f: number, k: number) => [ov.stations.name[f], ov.stations.name[ov.lines.to[k]]].sort().join('|') === [blunder.at, blunder.to].sort().join('|'))
-    expect(ov.lines.rating[i]).toBe(2)
+    const i = drawn.indexOf([blunder.at, blunder.to].sort().join('|'))
+    expect(map.rating[i]).toBe(2)
+    expect(ov.fail).toContain(i)
     const used = all.filter((o) => !o.excluded && o.w !== null)
     expect(ov.distributions.w.counts.reduce((a: number, b: number) => a + b, 0)).toBe(used.length)
     const beyond = used.filter((o) => o.w >= 4.5).length

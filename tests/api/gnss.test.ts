@@ -10,7 +10,8 @@ import Papa from 'papaparse'
 import { extractText, getDocumentProxy } from 'unpdf'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { closeDb, useDb } from '../../server/db/client'
-import { adjustments, observationResults, observations, projects } from '../../server/db/schema'
+import { adjustments, observationResults, observations, projects, runOverviews } from '../../server/db/schema'
+import { unpackMap } from '../../shared/map-overview'
 import { readLandXml } from '../../server/engine/io/landxml'
 import { as, DEMO, type Client } from '../support/http'
 import { counts, fileForm } from './fielddata-helpers'
@@ -144,6 +145,8 @@ describe('a run whose results hold vector rows', () => {
       observed, adjusted: observed + residual, valueUnit: 'm', residual, sigma: 0.003, residualUnit: 'm', redundancy: 0.6, w, flagged: false, ...test,
     })
     await useDb().insert(observationResults).values([row('dx', 31.5, 0.002, 0.9), row('dy', -12.25, -0.001, -0.4), row('dz', 44.0, 0.011, 2.9)])
+    // the overview kept with the run was made from its results as stored: rows added by hand need it made again
+    await useDb().delete(runOverviews).where(eq(runOverviews.adjustmentId, runId))
   })
 
   it('the vectors route folds the three components into one vector with its test (firm-scoped)', async () => {
@@ -165,18 +168,21 @@ describe('a run whose results hold vector rows', () => {
     for (const o of obs.body.rows) expect(o.vectorTest).toEqual({ statistic: 14.2, critical: 16.27, distribution: 'chi2', flagged: false, residualEnu: [0.0021, -0.0034, 0.0102] })
     const plain = await chief.get(`${fx.base}/adjustments/${fx.runNumber}/observations?kind=slope_distance&size=1`)
     expect(plain.body.rows[0].vectorTest).toBeUndefined()
-    const ov = await chief.get(`${fx.base}/adjustments/${fx.runNumber}/overview`)
-    const lines = ov.body.lines
-    expect(lines.vector.filter((v: number) => v === 1)).toHaveLength(1)
-    const i = lines.vector.indexOf(1)
-    expect(lines.used[i]).toBe(3)
+    const map = unpackMap((await chief.get(`${fx.base}/adjustments/${fx.runNumber}/overview`)).body)
+    const kinds = Array.from(map.lineKind)
+    expect(kinds.filter((v) => v === 1)).toHaveLength(1)
+    // the vector's line joins its two marks
+    const i = kinds.indexOf(1)
+    expect([map.names[map.from[i]!], map.names[map.to[i]!]].sort()).toEqual([obs.body.rows[0].at, obs.body.rows[0].to].sort())
   })
 
   it('a flagged vector fails on the map and is counted by the flagged filter', async () => {
     await useDb().update(observationResults).set({ vectorFlagged: true }).where(and(eq(observationResults.adjustmentId, runId), eq(observationResults.kind, 'gnss_baseline')))
+    // the overview kept with the run was made from its results as stored: the changed rows need it made again
+    await useDb().delete(runOverviews).where(eq(runOverviews.adjustmentId, runId))
     expect((await chief.get(`${fx.base}/adjustments/${fx.runNumber}/vectors?flagged=1`)).body.total).toBe(1)
-    const lines = (await chief.get(`${fx.base}/adjustments/${fx.runNumber}/overview`)).body.lines
-    expect(lines.rating[lines.vector.indexOf(1)]).toBe(2)
+    const map = unpackMap((await chief.get(`${fx.base}/adjustments/${fx.runNumber}/overview`)).body)
+    expect(map.rating[Array.from(map.lineKind).indexOf(1)]).toBe(2)
     // its three rows fail in the residual table's rating filter, though no component's w is flagged
     expect((await chief.get(`${fx.base}/adjustments/${fx.runNumber}/observations?kind=gnss_baseline&rating=fail`)).body.total).toBe(3)
   })
@@ -271,8 +277,8 @@ describe('a real 3D run of the GNSS demo file (the combined adjustment)', () => 
       for (const o of rows) expect(o.vectorTest).toEqual(x.test)
       expect(x.residual).toEqual(['dx', 'dy', 'dz'].map((c) => rows.find((o: any) => o.component === c).residual))
     }
-    const lines = (await chief.get(`${api}/adjustments/${number}/overview`)).body.lines
-    expect(lines.vector.filter((f: number) => f === 1)).toHaveLength(6)
+    const map = unpackMap((await chief.get(`${api}/adjustments/${number}/overview`)).body)
+    expect(Array.from(map.lineKind).filter((f) => f === 1)).toHaveLength(6)
   })
 
   it('signs off, and every release format (CSV, GeoJSON, LandXML, PDF) is made from the 3D run', async () => {

@@ -4,9 +4,11 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, eq } from 'drizzle-orm'
 import { closeDb, makePool, useDb, usePool } from '../../server/db/client'
-import { adjustedStations, adjustments, memberships, firms, observations, signoffs, users } from '../../server/db/schema'
+import { adjustedStations, adjustments, memberships, firms, observations, projects, signoffs, users } from '../../server/db/schema'
 import { hashPassword } from '../../server/services/passwords'
 import { signoffHash } from '../../server/services/signoffs'
+import { buildSummary, storeResults } from '../../server/services/run-results'
+import { inventResult } from '../bench/invented-result'
 import type { SignedStation } from '../../server/services/signoffs'
 import { as, DEMO, type Client } from '../support/http'
 import { finishedRun, mailsSince } from './signoffs-fixture'
@@ -40,6 +42,64 @@ describe('before signing', () => {
     }
     const news = r.body.stations.filter((s: any) => s.kind === 'new').map((s: any) => s.name).sort()
     expect(r.body.defaultStations).toEqual(news)
+  })
+})
+
+describe('the preview a page at a time', () => {
+  const preview = (q: string, c = surveyor) => c.get(`${fx.base}/signoffs/preview?run=${fx.runNumber}${q}`)
+
+  it('lists one page of stations with the total, the control points whatever the page, and the whole default set of a small run', async () => {
+    const all = (await preview('&size=500')).body
+    const p1 = (await preview('&size=3')).body
+    const p2 = (await preview('&size=3&page=2')).body
+    expect(p1.stations.map((s: any) => s.name)).toEqual(all.stations.slice(0, 3).map((s: any) => s.name))
+    expect(p2.stations.map((s: any) => s.name)).toEqual(all.stations.slice(3, 6).map((s: any) => s.name))
+    expect(p1.stationPage).toEqual({ page: 1, size: 3, total: all.stations.length })
+    // the control points are the run's control and held stations, listed on every page
+    const control = all.stations.filter((s: any) => s.kind === 'control' || s.fixed).map((s: any) => s.name)
+    expect(control.length).toBeGreaterThan(0)
+    expect(p2.control.map((c: any) => c.name)).toEqual(control)
+    // a small run: every default name, whichever page is shown
+    expect(p2.defaultStations).toEqual(all.defaultStations)
+    expect(p2.defaultCount).toBe(all.defaultStations.length)
+    expect(all.check.itemCount).toBe(all.check.items.length)
+  })
+
+  it('422 names the field of a bad page or size; another firm gets 404', async () => {
+    for (const [q, field] of [['&size=0', 'size'], ['&size=501', 'size'], ['&page=0', 'page'], ['&page=x', 'page']] as const) {
+      const r = await preview(q)
+      expect(r.status, q).toBe(422)
+      expect(r.body.errors.map((e: any) => e.field), q).toContain(field)
+    }
+    expect((await preview('', await as(DEMO.other))).status).toBe(404)
+    expect((await (await as(DEMO.other)).get(`/api/firms/${DEMO.otherFirm}/projects/${fx.projectId}/signoffs/preview?run=${fx.runNumber}`)).status).toBe(404)
+  })
+
+  it('a run of more than 500 stations offers no list of names: the default set is signed whole, its count shown, the check listed in part', async () => {
+    // an invented 729-station result stored with the worker's own COPY path (tests/bench/invented-result.ts)
+    const db = useDb()
+    const [firm] = await db.select().from(firms).where(eq(firms.slug, DEMO.firm))
+    const r = inventResult(729)
+    const rel = r.relative.map((p) => ({ rel: p, check: { semiMajor95: p.semiMajor95, allowable: 0.02, passes: true } }))
+    const summary = buildSummary(r, null, rel.map((c) => c.check.passes), 0, [])
+    // its own project (with the suite's loose rule), so the suite's run stays the newest of its project
+    const [project] = await db.insert(projects).values({ firmId: firm!.id, name: `Sign-off 729 stations ${Date.now()}`, crs: 'local', units: 'm', toleranceProfileId: fx.toleranceId }).returning()
+    const number = 1
+    await db.transaction(async (tx) => {
+      const [run] = await tx.insert(adjustments).values({ firmId: firm!.id, projectId: project!.id, number, settings: { confidence: 0.95 }, inputHash: 'invented', status: 'queued' }).returning()
+      await storeResults(tx, firm!.id, run!.id, r, new Map(), rel)
+      await tx.update(adjustments).set({ status: 'done', finishedAt: new Date(), summary: summary as unknown as Record<string, unknown> }).where(eq(adjustments.id, run!.id))
+    })
+    const big = await surveyor.get(`/api/firms/${DEMO.firm}/projects/${project!.id}/signoffs/preview?run=${number}&size=50`)
+    expect(big.status, JSON.stringify(big.body).slice(0, 300)).toBe(200)
+    expect(big.body.stations.length).toBe(50)
+    expect(big.body.stationPage.total).toBe(729)
+    expect(big.body.defaultStations).toBeNull()
+    // the project's loose rule (100 mm + 100 ppm) passes every invented pair: every new station is in the default set
+    expect(big.body.defaultCount).toBe(r.stations.filter((s) => s.kind === 'new').length)
+    expect(big.body.control.map((c: any) => c.name).sort()).toEqual(r.stations.filter((s) => s.fixed).map((s) => s.name).sort())
+    expect(big.body.check.itemCount).toBe(r.relative.length)
+    expect(big.body.check.items.length).toBeLessThan(r.relative.length)
   })
 })
 

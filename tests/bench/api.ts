@@ -18,28 +18,13 @@ import { closeDb, useDb } from '../../server/db/client'
 import { adjustments, firms, users } from '../../server/db/schema'
 import { buildSummary, storeResults } from '../../server/services/run-results'
 import { inventResult } from './invented-result'
-import { gridNetwork } from '../unit/engine/helpers'
+import { networkCsv } from './network-csv'
 import { launch, newPage, signIn } from '../support/browser'
 import { as, DEMO, type Client } from '../support/http'
 import { setup, teardown } from '../support/server-setup'
 
 const SIZES = (process.env.TIEPOINT_BENCH_STATIONS ?? '1000,2000').split(',').map((s) => Number(s.trim())).filter((n) => n > 0)
 const PAGE_SIZE_STATIONS = Number(process.env.TIEPOINT_BENCH_PAGE_STATIONS ?? Math.min(...SIZES))
-const DEG = 180 / Math.PI
-
-/** The engine bench's perturbed grid (≈ 6 neighbours, a direction and a distance to each, 4 fixed corners) as a Tiepoint CSV. */
-function networkCsv(stations: number): { csv: string; stations: number; observations: number } {
-  const side = Math.round(Math.sqrt(stations))
-  const net = gridNetwork(side, 1)
-  const rows = ['kind,at,from,to,value,unit,sigma,hi,ht,set,length,note']
-  for (const c of net.controls) rows.push(`control,${c.station},,,${c.east!.toFixed(4)} ${c.north!.toFixed(4)},m,,,,,,`)
-  for (const o of net.observations) {
-    if (o.kind === 'direction') rows.push(`direction,${o.at},,${o.to},${(o.value * DEG).toFixed(8)},deg,${(o.sigma! * DEG * 3600).toFixed(3)},,,${o.at}-1,,`)
-    else rows.push(`horizontal_distance,${o.at},,${o.to},${o.value.toFixed(5)},m,${(o.sigma! * 1000).toFixed(3)},,,,,`)
-  }
-  return { csv: rows.join('\n') + '\n', stations: side * side, observations: net.observations.length }
-}
-
 const kib = (n: number) => `${(n / 1024).toFixed(0)} KiB`
 async function timed(c: Client, path: string) {
   const t0 = performance.now()

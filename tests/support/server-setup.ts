@@ -48,6 +48,11 @@ export async function setup() {
   await waitForHealth(60_000)
 }
 
+/** The started app's process id (the benchmarks read its peak memory from /proc), or null. */
+export function appPid(): number | null {
+  return children[0]?.pid ?? null
+}
+
 export async function teardown() {
   await Promise.all(children.map((c) => new Promise<void>((resolve) => {
     if (c.exitCode !== null) return resolve()

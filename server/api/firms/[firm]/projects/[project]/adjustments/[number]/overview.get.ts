@@ -2,4 +2,9 @@
 import { STAFF } from '../../../../../../../../shared/roles'
 import { runOverview } from '../../../../../../../services/adjustments'
 
-export default defineFirmRoute({ roles: STAFF, project: true }, ({ event, ctx, project }) => runOverview(ctx, project, idParam(event, 'number')))
+export default defineFirmRoute({ roles: STAFF, project: true }, async ({ event, ctx, project }) => {
+  // JSON text kept with the run: sent as it is, not parsed and serialized again
+  const body = await runOverview(ctx, project, idParam(event, 'number'))
+  setResponseHeader(event, 'content-type', 'application/json; charset=utf-8')
+  return body
+})
