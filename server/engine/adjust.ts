@@ -20,7 +20,7 @@ import { LOCAL_RADIUS, LocalSurface, ProjectedSurface, type Surface } from './ge
 import { GridProjection } from './grid'
 import { buildHeightProblem, type HeightRow } from './height'
 import { adjust3d } from './network3d'
-import { mergeControls, planeDatumCheck, stationLegCheck, validateObservations, validateProfile, validateSettings, type PlaneKindTag } from './input'
+import { mergeControls, planeDatumCheck, stationLegCheck, stationShells, validateObservations, validateProfile, validateSettings, type PlaneKindTag } from './input'
 import { aprioriSigma, isAngularKind } from './models/registry'
 import type { SigmaContext } from './models/types'
 import { solveNonlinear, type NonlinearProblem, type SolveOptions } from './lsq'
@@ -342,33 +342,7 @@ function run(input: AdjustInput, settings: AdjustSettings, timings: PhaseTimings
   timings.approximationMs = performance.now() - ta
 
   // ---- result shells ----------------------------------------------------------------
-  const stationOut = new Map<string, StationResult>()
-  const allNames: string[] = []
-  const addName = (s: string) => {
-    if (stationOut.has(s)) return
-    allNames.push(s)
-    const c = controlByName.get(s)
-    stationOut.set(s, {
-      name: s,
-      east: c?.east ?? null,
-      north: c?.north ?? null,
-      height: c?.height ?? null,
-      sdEast: c && c.east !== null && !free ? c.sdEast ?? 0 : null,
-      sdNorth: c && c.north !== null && !free ? c.sdNorth ?? 0 : null,
-      sdHeight: c && c.height !== null && !free ? c.sdHeight ?? 0 : null,
-      ellipse: null,
-      ellipse95: null,
-      fixed: !!c && !free && c.sdEast === null && c.sdNorth === null && c.sdHeight === null,
-      kind: c ? 'control' : 'new',
-      controlled: { east: !!c && c.east !== null && !free, north: !!c && c.north !== null && !free, height: !!c && c.height !== null && !free },
-    })
-  }
-  for (const c of input.controls) addName(c.station)
-  for (const o of obsList) {
-    if (o.from) addName(o.from)
-    addName(o.at)
-    addName(o.to)
-  }
+  const { stationOut, allNames } = stationShells(input.controls, obsList, controlByName, free)
   const addCoordOut = (c: ControlRecord, comp: 'east' | 'north' | 'height', value: number, sd: number) => {
     outputs.push({
       id: null, line: c.line, kind: 'control', component: comp, at: c.station, from: null, to: c.station,

@@ -5,7 +5,7 @@
 
 import { fail } from './failure'
 import { validateRecord } from './models/registry'
-import type { AdjustSettings, ControlRecord, InstrumentProfile, ObservationRecord } from './types'
+import type { AdjustSettings, ControlRecord, InstrumentProfile, ObservationRecord, StationResult } from './types'
 
 export function validateSettings(s: AdjustSettings): AdjustSettings {
   const prob = (v: number, name: string) => {
@@ -134,4 +134,45 @@ export function stationLegCheck(
       fail('singular', `station ${names[k]} is connected by ${count === 1 ? `one ${kind} only` : `${kind}s to ${names[[...others][0]]} only`}`, [names[k]])
     }
   }
+}
+
+/**
+ * One result shell per station, in first-mention order (control rows, then
+ * observations): control values and σ as given, nothing adjusted yet. The plane
+ * and height adjustment and the 3D adjustment both fill these in.
+ */
+export function stationShells(
+  controls: ControlRecord[],
+  observations: ObservationRecord[],
+  controlByName: Map<string, ControlRecord>,
+  free: boolean,
+): { stationOut: Map<string, StationResult>; allNames: string[] } {
+  const stationOut = new Map<string, StationResult>()
+  const allNames: string[] = []
+  const addName = (s: string) => {
+    if (stationOut.has(s)) return
+    allNames.push(s)
+    const c = controlByName.get(s)
+    stationOut.set(s, {
+      name: s,
+      east: c?.east ?? null,
+      north: c?.north ?? null,
+      height: c?.height ?? null,
+      sdEast: c && c.east !== null && !free ? c.sdEast ?? 0 : null,
+      sdNorth: c && c.north !== null && !free ? c.sdNorth ?? 0 : null,
+      sdHeight: c && c.height !== null && !free ? c.sdHeight ?? 0 : null,
+      ellipse: null,
+      ellipse95: null,
+      fixed: !!c && !free && c.sdEast === null && c.sdNorth === null && c.sdHeight === null,
+      kind: c ? 'control' : 'new',
+      controlled: { east: !!c && c.east !== null && !free, north: !!c && c.north !== null && !free, height: !!c && c.height !== null && !free },
+    })
+  }
+  for (const c of controls) addName(c.station)
+  for (const o of observations) {
+    if (o.from) addName(o.from)
+    addName(o.at)
+    addName(o.to)
+  }
+  return { stationOut, allNames }
 }

@@ -51,6 +51,7 @@ import { approximateHeights, approximatePlane, type XY } from './approx'
 import { globalTestOf, type PhaseTimings } from './adjust'
 import type { CofactorMatrix } from './cofactor'
 import { fail } from './failure'
+import { stationShells } from './input'
 import { dot, fromEcef, geodeticPoint, normalSectionRadius, sub, toEnu, type Ellipsoid, type GeodeticPoint, type Vec3 } from './geodesy3d'
 import { ellipseFromCovariance, RAD_TO_DEG, RHO_ARCSEC, wrapPi } from './geometry'
 import type { GridProjection } from './grid'
@@ -769,33 +770,7 @@ export function adjust3d(ctx: Network3dContext): AdjustmentResult {
 
   // ---- stations --------------------------------------------------------------------------
   const scale95 = ellipseScale(settings.confidence, estimated, r)
-  const stationOut = new Map<string, StationResult>()
-  const allNames: string[] = []
-  const addName = (s: string) => {
-    if (stationOut.has(s)) return
-    allNames.push(s)
-    const c = controlByName.get(s)
-    stationOut.set(s, {
-      name: s,
-      east: c?.east ?? null,
-      north: c?.north ?? null,
-      height: c?.height ?? null,
-      sdEast: c && c.east !== null && !free ? c.sdEast ?? 0 : null,
-      sdNorth: c && c.north !== null && !free ? c.sdNorth ?? 0 : null,
-      sdHeight: c && c.height !== null && !free ? c.sdHeight ?? 0 : null,
-      ellipse: null,
-      ellipse95: null,
-      fixed: !!c && !free && c.sdEast === null && c.sdNorth === null && c.sdHeight === null,
-      kind: c ? 'control' : 'new',
-      controlled: { east: !!c && c.east !== null && !free, north: !!c && c.north !== null && !free, height: !!c && c.height !== null && !free },
-    })
-  }
-  for (const c of input.controls) addName(c.station)
-  for (const o of obsList) {
-    if (o.from) addName(o.from)
-    addName(o.at)
-    addName(o.to)
-  }
+  const { stationOut, allNames } = stationShells(input.controls, obsList, controlByName, free)
   // grid E, N of each station and the Jacobian of (E, N) by its unknowns (2×3, held columns zero)
   const gridJ = pts.map((p, k) => {
     const j = gridJacobian(p)
