@@ -135,25 +135,10 @@ export function localMdbEffect(
   k: number,
   stationOf: Int32Array,
 ): number {
-  let worst = 0
   const n = cols.length
-  for (let a = 0; a < n; a++) {
-    const st = stationOf[cols[a]]
-    if (st < 0) continue
-    // the first coordinate column of this station in the row carries the station
-    let firstOfStation = true
-    for (let b = 0; b < a; b++) if (stationOf[cols[b]] === st) firstOfStation = false
-    if (!firstOfStation) continue
-    let s2 = 0
-    for (let c = 0; c < n; c++) {
-      if (stationOf[cols[c]] !== st) continue
-      let dx = 0
-      for (let p = 0; p < n; p++) dx += qxx.get(cols[c], cols[p]) * ac[p]
-      s2 += (dx * k) ** 2
-    }
-    if (s2 > worst) worst = s2
-  }
-  return Math.sqrt(worst)
+  const block = new Float64Array(n * n)
+  for (let p = 0; p < n; p++) for (let q = 0; q < n; q++) block[p * n + q] = qxx.get(cols[p], cols[q])
+  return localMdbEffectOfBlock(block, cols, ac, k, stationOf)
 }
 
 /**
