@@ -64,6 +64,8 @@ export interface RunSummary {
   overviewMs?: number
   /** refraction coefficient k and its σ the run used */
   refraction: AdjustmentResult['refraction'] | null
+  /** combined 3D adjustment (GNSS vectors): the model's facts for the report; null for a plane and height run */
+  network3d: AdjustmentResult['network3d'] | null
   warnings: string[]
 }
 
@@ -90,6 +92,7 @@ export function buildSummary(r: AdjustmentResult, tolerance: (ToleranceSpec & { 
     weakRedundancy: r.settings.weakRedundancy, settings: r.settings, gridReduction: r.gridReduction ?? null,
     // the geodetic settings the run used (project settings at queue time), shown with the run
     refraction: r.refraction ?? null,
+    network3d: r.network3d ?? null,
     ...(weighting !== undefined ? { weighting } : {}),
     tolerance: tolerance ? { ...tolerance, description: describeTolerance(tolerance) } : null,
     relative: { checked: passes.filter((p) => p !== null).length, passed: passes.filter((p) => p === true).length, failed: passes.filter((p) => p === false).length },

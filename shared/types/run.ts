@@ -51,6 +51,8 @@ export interface RunSummary {
   settings?: AdjustSettings
   gridReduction?: GridReductionSummary | null
   refraction?: AdjustmentResult['refraction'] | null
+  /** combined 3D adjustment (GNSS vectors): its model facts for the report; null for a plane and height run */
+  network3d?: AdjustmentResult['network3d'] | null
   /** rows stored: stations, observation results and relative precisions */
   rows?: { stations: number; observations: number; relative: number }
   engineMs?: number

@@ -52,6 +52,10 @@ describe('GNSS vectors in the run report', () => {
     await legend.waitFor({ timeout: 30_000 })
     expect(await legend.innerText()).toContain('GNSS vector (6)')
     expect(await page.getByTestId('network-map').getAttribute('data-vectors')).toBe('6')
+    // the report states the 3D model's assumptions: N of the demo project (44.87 m, seed) and no deflection of the vertical
+    const model = await page.getByTestId('run-model3d').innerText()
+    expect(model).toContain('N = 44.870 m')
+    expect(model).toContain('Deflection of the vertical is ignored')
     await shot(page, 'run-gnss-vectors')
   })
 
