@@ -71,10 +71,10 @@ export function useRunFormat(units: () => 'm' | 'ft' | 'usft', angleFormat?: () 
   /** a small length (σ, ellipse axis, allowable) in mm or hundredths of a foot (shared/precision.ts) */
   const small = (m: number | null | undefined, d?: number) => formatPrecision(m, scale(), d)
   const smallUnit = () => scale().label
-  /** a residual / σ / MDB in its natural unit: mm for lengths, ″ or cc for angles */
+  /** a residual / σ / MDB in its natural unit: the project's precision unit for lengths (mm or hundredths of a foot), ″ or cc for angles */
   const natural = (v: number | null | undefined, u: 'm' | 'arcsec', d = 1) =>
-    (v === null || v === undefined ? '—' : u === 'm' ? (v * 1000).toFixed(d) : smallAngle(v, angles()).toFixed(d))
-  const naturalUnit = (u: 'm' | 'arcsec') => (u === 'm' ? 'mm' : smallAngleUnit(angles()))
+    (v === null || v === undefined ? '—' : u === 'm' ? formatPrecision(v, scale(), d) : smallAngle(v, angles()).toFixed(d))
+  const naturalUnit = (u: 'm' | 'arcsec') => (u === 'm' ? scale().label : smallAngleUnit(angles()))
   /** words for the angular unit, for tooltips */
   const angleWords = () => (angles() === 'gon' ? 'centesimal seconds (cc, 1 gon = 10 000 cc)' : 'arcseconds (″)')
   const num = (v: number | null | undefined, d = 2) => (v === null || v === undefined || !Number.isFinite(v) ? '—' : v.toFixed(d))

@@ -16,6 +16,9 @@ export NUXT_OUTPUT_DIR="${NUXT_OUTPUT_DIR:-.output}"
 ensure_node_modules
 ensure_auth_secret
 PG_EXTRA_OPTS="-c fsync=off -c synchronous_commit=off" pg_up pg-test "$PGPORT"
+# the bench stops the test cluster it started, like npm test (a later npm test would find the port taken)
+cleanup() { [ -n "${TIEPOINT_KEEP_TEST_DB:-}" ] || pg_down pg-test; }
+trap cleanup EXIT
 pg_database "$PGPORT" "${TIEPOINT_BENCH_DB:-tiepoint_bench}" fresh
 migrate
 ensure_build
