@@ -10,7 +10,7 @@
 // Publications on Geodesy 5(1): x_S = (I − G(BᵀG)⁻¹Bᵀ)·x, Qxx_S = S·Qxx·Sᵀ.
 
 import { Cofactor, type CofactorMatrix } from './cofactor'
-import { compressRows, factorize, solve, type QrFactorization } from './qr'
+import { backSolvePermuted, compressRows, factorize, solve, type QrFactorization } from './qr'
 import { estimateInverseNorm1, normR1 } from './sparse/condition'
 import { backward, factorizeSparse, forward, newWorkspace, solveSparse, type SparseFactor } from './sparse/multifrontal'
 import { SparseCofactor } from './sparse/selinv'
@@ -439,15 +439,7 @@ function normalSolveDense(f: QrFactorization, g: Float64Array): Float64Array {
     for (let i = 0; i < k; i++) v -= a[c + i] * y[i]
     y[k] = v / a[c + k]
   }
-  for (let k = rank - 1; k >= 0; k--) {
-    const c = k * m
-    y[k] /= a[c + k]
-    const yk = y[k]
-    if (yk !== 0) for (let i = 0; i < k; i++) y[i] -= yk * a[c + i]
-  }
-  const x = new Float64Array(f.n)
-  for (let k = 0; k < rank; k++) x[perm[k]] = y[k]
-  return x
+  return backSolvePermuted(f, y)
 }
 
 /**

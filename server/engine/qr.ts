@@ -247,8 +247,13 @@ export function rDiagonal(f: QrFactorization): Float64Array {
  * (never pivoted) columns are set to zero, the rest from R₁₁·x = (Qᵀb)₁.
  */
 export function solve(f: QrFactorization): Float64Array {
-  const { m, rank, a, qtb, perm } = f
-  const y = qtb.slice(0, rank)
+  return backSolvePermuted(f, f.qtb.slice(0, f.rank))
+}
+
+/** R·y = z by back substitution over the rank leading columns (z overwritten), then x = Π·y (length n, zeros beyond the rank). */
+export function backSolvePermuted(f: QrFactorization, z: Float64Array): Float64Array {
+  const { m, rank, a, perm } = f
+  const y = z
   for (let k = rank - 1; k >= 0; k--) {
     const c = k * m
     y[k] /= a[c + k]
