@@ -29,6 +29,7 @@ import { dirname, join } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import proj4 from 'proj4'
 import { ecefOfStations, generate3d, type TruthSetup, type TruthStation } from '../../../tests/unit/engine/truth3d'
+import { prng } from './generate'
 import { GNSS_DEMO } from './gnss-project'
 
 
@@ -40,19 +41,6 @@ const ENU_SIGMA_M = [0.0025, 0.0025, 0.006]
 const DIRECTION_ARCSEC = 2
 const ZENITH_ARCSEC = 4
 const DISTANCE_M = 0.002
-
-// mulberry32 with Box–Muller: enough for demo noise
-function prng(seed: number) {
-  let a = seed >>> 0
-  const uniform = () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-  return () => Math.sqrt(-2 * Math.log(uniform() || 1e-12)) * Math.cos(2 * Math.PI * uniform())
-}
 
 /** Rows of R: east, north, up unit vectors in the Earth-centred frame at longitude, latitude (degrees). */
 function enuRows(lonDeg: number, latDeg: number): number[][] {
@@ -90,7 +78,7 @@ export function gnssDemoStations(): TruthStation[] {
 }
 
 export function generateGnssDemo(): string {
-  const normal = prng(SEED)
+  const { normal } = prng(SEED)
   const st = gnssDemoStations()
   const opt = { proj4: PROJ, ...GRS80, geoidSeparation: GNSS_DEMO.geoidSeparationM, refractionK: 0.13, sigma: { distance: DISTANCE_M, direction: (DIRECTION_ARCSEC / 3600) * D2R, zenith: (ZENITH_ARCSEC / 3600) * D2R } }
 

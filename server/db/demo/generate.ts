@@ -53,8 +53,8 @@ const REFRACTION_K = 0.13
 /** the project height of the demo site (its mean ground height): the plane lies there, and the seed sets it */
 export const DEMO_PROJECT_HEIGHT_M = 65
 
-// mulberry32: a small, well-known 32-bit generator; enough for demo noise.
-function prng(seed: number) {
+// mulberry32: a small, well-known 32-bit generator; enough for demo noise (both demo generators use it).
+export function prng(seed: number) {
   let a = seed >>> 0
   const uniform = () => {
     a = (a + 0x6d2b79f5) >>> 0
