@@ -123,6 +123,86 @@ describe('vectors in a local-plane project', () => {
   })
 })
 
+describe('LandXML 1.2 vectors (public/formats/tiepoint-example-gnss.xml) into a georeferenced project, adjusted', () => {
+  // The example file: pillar W01 held, four vectors W01→W02, W01→W03, W02→W03, W01→T1 (counted by hand),
+  // each covariance D·R·D of the CSV example's σ and ρ, in m².
+  const xml = readFileSync('public/formats/tiepoint-example-gnss.xml')
+  let api: string
+  let number: number
+  beforeAll(async () => {
+    const r = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS LandXML ${Date.now()}`, crs: 'EPSG:25833', units: 'm' })
+    api = base(r.body.id)
+    await chief.patch(api, { geoidSeparationM: 44.87 })
+  })
+
+  it('the upload stores each GPSVector as one vector with σ = √variance and ρ = covariance / (σ·σ)', async () => {
+    const up = await chief.post(`${api}/observation-sets`, fileForm('vectors.xml', xml))
+    expect(up.status, JSON.stringify(up.body)).toBe(201)
+    expect(up.body.observations).toBe(4)
+    const list = await chief.get(`${api}/observations?kind=gnss_baseline&sort=line`)
+    expect(list.body.rows.map((o: any) => [o.at, o.to])).toEqual([['W01', 'W02'], ['W01', 'W03'], ['W02', 'W03'], ['W01', 'T1']])
+    const v = list.body.rows[0].vector
+    expect(v.d).toEqual([-1755.75, 1963.3372, 884.397])
+    // covarianceXX = 1.56816e-5 m² → σX = 3.96 mm; covarianceXY = 2.46518316e-6 → ρXY = 2.46518316e-6 / (0.00396·0.00263) = 0.2367 (by hand)
+    expect(v.sigma[0]).toBeCloseTo(0.00396, 12)
+    expect(v.correlation[0]).toBeCloseTo(0.2367, 9)
+  })
+
+  it('a run adjusts the four vectors in 3D; the triangle\'s vectors are tested, T1\'s lone vector (no redundancy) is not', async () => {
+    const q = await chief.post(`${api}/adjustments`, {})
+    expect(q.status, JSON.stringify(q.body)).toBe(202)
+    number = q.body.number
+    await runDone(chief, `${api}/adjustments/${number}/status`, 120_000)
+    const v = await chief.get(`${api}/adjustments/${number}/vectors?sort=line`)
+    expect(v.body.total).toBe(4)
+    expect(v.body.rows.map((x: any) => x.test !== null)).toEqual([true, true, true, false])
+  })
+
+  it('compare: a second session (W03→T1) gives T1\'s vector a test; each vector\'s T in both runs and its change, server-side, paged', async () => {
+    // one more vector, invented: T1 − W03 from the example's vectors plus about 2 mm of noise
+    const more = 'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note,correlation\ngnss_baseline,W03,,T1,562.0130 -3474.3150 241.2150,m,3 3 5,,,,,second session,\n'
+    expect((await chief.post(`${api}/observation-sets`, fileForm('second.csv', more))).status).toBe(201)
+    const q = await chief.post(`${api}/adjustments`, {})
+    await runDone(chief, `${api}/adjustments/${q.body.number}/status`, 120_000)
+    const second = q.body.number as number
+    const c = await chief.get(`${api}/adjustments/compare?a=${number}&b=${second}&size=2`)
+    expect(c.status, JSON.stringify(c.body)).toBe(200)
+    expect(c.body.vectors.total).toBe(5)
+    // the two whose verdict changed come first: W01→T1 (not tested → tested) and the new W03→T1 (not in run A)
+    const first = c.body.vectors.rows
+    expect(first.map((x: any) => `${x.at}-${x.to}`).sort()).toEqual(['W01-T1', 'W03-T1'])
+    expect(first.find((x: any) => x.to === 'T1' && x.at === 'W03').a).toBeNull()
+    const w01t1 = first.find((x: any) => x.at === 'W01')
+    expect(w01t1.a.verdict).toBe('untested')
+    expect(['pass', 'fail']).toContain(w01t1.b.verdict)
+    expect(w01t1.change).toBeNull()
+    // page 2 and 3: the triangle, largest |ΔT| first; each T equals the run's own vectors route, change = T(B) − T(A)
+    const rest = [...(await chief.get(`${api}/adjustments/compare?a=${number}&b=${second}&size=2&vpage=2`)).body.vectors.rows,
+      ...(await chief.get(`${api}/adjustments/compare?a=${number}&b=${second}&size=2&vpage=3`)).body.vectors.rows]
+    expect(rest).toHaveLength(3)
+    const tests = async (n: number) => new Map((await chief.get(`${api}/adjustments/${n}/vectors?size=50`)).body.rows.map((x: any) => [`${x.at}-${x.to}`, x.test]))
+    const [ta, tb] = await Promise.all([tests(number), tests(second)])
+    for (const x of rest) {
+      const k = `${x.at}-${x.to}`
+      expect(x.a.statistic).toBe((ta.get(k) as any).statistic)
+      expect(x.b.statistic).toBe((tb.get(k) as any).statistic)
+      expect(x.change).toBeCloseTo(x.b.statistic - x.a.statistic, 9)
+    }
+    const sizes = rest.map((x) => Math.abs(x.change))
+    expect(sizes).toEqual([...sizes].sort((p, q2) => q2 - p))
+    expect((await other.get(`${api}/adjustments/compare?a=${number}&b=${second}`)).status).toBe(404)
+  })
+
+  it('a local-plane project refuses the same file, naming each vector\'s line; nothing is written', async () => {
+    const r0 = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS LandXML local ${Date.now()}`, crs: 'local', units: 'm' })
+    const r = await chief.post(`${base(r0.body.id)}/observation-sets`, fileForm('vectors.xml', xml))
+    expect(r.status).toBe(422)
+    // the GPSVector start tags in the example file (counted by hand)
+    expect(r.body.errors.map((e: any) => [e.line, e.column])).toEqual([[16, 'GPSVector'], [21, 'GPSVector'], [26, 'GPSVector'], [31, 'GPSVector']])
+    expect(await counts(r0.body.id)).toEqual({ observations: 0, sets: 0, stations: 0 })
+  })
+})
+
 describe('a run whose results hold vector rows', () => {
   let fx: Awaited<ReturnType<typeof finishedRun>>
   let runId: number
