@@ -158,39 +158,54 @@ describe('LandXML 1.2 vectors (public/formats/tiepoint-example-gnss.xml) into a 
     expect(v.body.rows.map((x: any) => x.test !== null)).toEqual([true, true, true, false])
   })
 
-  it('compare: a second session (W03→T1) gives T1\'s vector a test; each vector\'s T in both runs and its change, server-side, paged', async () => {
-    // one more vector, invented: T1 − W03 from the example's vectors plus about 2 mm of noise
-    const more = 'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note,correlation\ngnss_baseline,W03,,T1,562.0130 -3474.3150 241.2150,m,3 3 5,,,,,second session,\n'
-    expect((await chief.post(`${api}/observation-sets`, fileForm('second.csv', more))).status).toBe(201)
-    const q = await chief.post(`${api}/adjustments`, {})
-    await runDone(chief, `${api}/adjustments/${q.body.number}/status`, 120_000)
-    const second = q.body.number as number
+  it('compare: later sessions give T1\'s vector a test; each vector\'s T in both runs and its change, server-side, paged', async () => {
+    // two more vectors, invented: T1 − W03 and T1 − W02 from the example's vectors, plus about 2 mm of noise
+    const header = 'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note,correlation\n'
+    const session = async (name: string, row: string) => {
+      expect((await chief.post(`${api}/observation-sets`, fileForm(name, header + row + '\n'))).status).toBe(201)
+      const q = await chief.post(`${api}/adjustments`, {})
+      await runDone(chief, `${api}/adjustments/${q.body.number}/status`, 120_000)
+      return q.body.number as number
+    }
+    const second = await session('second.csv', 'gnss_baseline,W03,,T1,562.0130 -3474.3150 241.2150,m,3 3 5,,,,,second session,')
     const c = await chief.get(`${api}/adjustments/compare?a=${number}&b=${second}&size=2`)
     expect(c.status, JSON.stringify(c.body)).toBe(200)
     expect(c.body.vectors.total).toBe(5)
     // the two whose verdict changed come first: W01→T1 (not tested → tested) and the new W03→T1 (not in run A)
     const first = c.body.vectors.rows
     expect(first.map((x: any) => `${x.at}-${x.to}`).sort()).toEqual(['W01-T1', 'W03-T1'])
-    expect(first.find((x: any) => x.to === 'T1' && x.at === 'W03').a).toBeNull()
+    expect(first.find((x: any) => x.at === 'W03').a).toBeNull()
     const w01t1 = first.find((x: any) => x.at === 'W01')
-    expect(w01t1.a.verdict).toBe('untested')
+    expect(w01t1.a).toMatchObject({ verdict: 'untested', statistic: null, distribution: null })
     expect(['pass', 'fail']).toContain(w01t1.b.verdict)
     expect(w01t1.change).toBeNull()
-    // page 2 and 3: the triangle, largest |ΔT| first; each T equals the run's own vectors route, change = T(B) − T(A)
-    const rest = [...(await chief.get(`${api}/adjustments/compare?a=${number}&b=${second}&size=2&vpage=2`)).body.vectors.rows,
-      ...(await chief.get(`${api}/adjustments/compare?a=${number}&b=${second}&size=2&vpage=3`)).body.vectors.rows]
-    expect(rest).toHaveLength(3)
-    const tests = async (n: number) => new Map((await chief.get(`${api}/adjustments/${n}/vectors?size=50`)).body.rows.map((x: any) => [`${x.at}-${x.to}`, x.test]))
-    const [ta, tb] = await Promise.all([tests(number), tests(second)])
-    for (const x of rest) {
-      const k = `${x.at}-${x.to}`
-      expect(x.a.statistic).toBe((ta.get(k) as any).statistic)
-      expect(x.b.statistic).toBe((tb.get(k) as any).statistic)
-      expect(x.change).toBeCloseTo(x.b.statistic - x.a.statistic, 9)
+    // run A has r = 3 = q: its vectors are tested with χ² (σ0 taken as known); run B with F. T on different scales: no change given
+    const triangle = (await chief.get(`${api}/adjustments/compare?a=${number}&b=${second}&size=5`)).body.vectors.rows.slice(2)
+    for (const x of triangle) {
+      expect([x.a.distribution, x.b.distribution]).toEqual(['chi2', 'F'])
+      expect(x.change).toBeNull()
     }
-    const sizes = rest.map((x) => Math.abs(x.change))
-    expect(sizes).toEqual([...sizes].sort((p, q2) => q2 - p))
-    expect((await other.get(`${api}/adjustments/compare?a=${number}&b=${second}`)).status).toBe(404)
+
+    const third = await session('third.csv', 'gnss_baseline,W02,,T1,1787.8371 -1519.7410 -990.0785,m,3 3 5,,,,,third session,')
+    const page = async (vpage: number) => (await chief.get(`${api}/adjustments/compare?a=${second}&b=${third}&size=2&vpage=${vpage}`)).body.vectors
+    const p1 = await page(1)
+    expect(p1.total).toBe(6)
+    const rows = [...p1.rows, ...(await page(2)).rows, ...(await page(3)).rows]
+    expect(rows[0]).toMatchObject({ at: 'W02', to: 'T1', a: null }) // the one new vector: its verdict "changed" from absent
+    const both = rows.slice(1)
+    // each T is the run's own vectors route value; change = T(B) − T(A); largest |change| first
+    const tests = async (n: number) => new Map<string, any>((await chief.get(`${api}/adjustments/${n}/vectors?size=50`)).body.rows.map((x: any) => [`${x.at}-${x.to}`, x.test]))
+    const [tb, tc] = await Promise.all([tests(second), tests(third)])
+    for (const x of both) {
+      const k = `${x.at}-${x.to}`
+      expect([x.a.distribution, x.b.distribution]).toEqual(['F', 'F'])
+      expect(x.a.statistic).toBe(tb.get(k).statistic)
+      expect(x.b.statistic).toBe(tc.get(k).statistic)
+      expect(x.change).toBeCloseTo(tc.get(k).statistic - tb.get(k).statistic, 9)
+    }
+    const sizes = both.map((x) => Math.abs(x.change))
+    expect(sizes).toEqual([...sizes].sort((p, q) => q - p))
+    expect((await other.get(`${api}/adjustments/compare?a=${second}&b=${third}`)).status).toBe(404)
   })
 
   it('a local-plane project refuses the same file, naming each vector\'s line; nothing is written', async () => {
