@@ -7,7 +7,7 @@
 // beside each check. 1 ft = 0.3048 m exactly (international foot, Federal
 // Register 24 FR 5348, 1959). Line numbers are counted in the fixture text.
 import { describe, expect, it } from 'vitest'
-import { readLandXml } from '../../../server/engine/io/landxml'
+import { readLandXml, readLandXmlBatches } from '../../../server/engine/io/landxml'
 import type { ReadIssue, ReadResult } from '../../../server/engine/types'
 
 function ok(r: ReadResult) {
@@ -61,6 +61,30 @@ describe('a vector and its covariance become a gnss_baseline record', () => {
   })
   it('set-ups with a zero antenna height and GPSQCInfoLevel1 raise no warning', () => {
     expect(r.warnings).toEqual([])
+  })
+})
+
+describe('order in the file does not matter (the reader streams)', () => {
+  const c = qc('covarianceXX="9e-6" covarianceXY="0" covarianceXZ="0" covarianceYY="4e-6" covarianceYZ="0" covarianceZZ="1.6e-5"')
+  const vector = `<GPSVector dX="1" dY="2" dZ="3" setupID_A="s1" setupID_B="s2"><TargetPoint/>${c}</GPSVector>`
+  it('a vector before its set-ups, and Units after the Survey, read to the same record as in the usual order', () => {
+    const usual = ok(readLandXml(doc([...setups, vector]))).observations
+    const late = `<?xml version="1.0"?>\n<LandXML version="1.2">\n<Survey>\n${[vector, ...setups].join('\n')}\n</Survey>\n${METRIC}\n</LandXML>\n`
+    const r = ok(readLandXml(late))
+    expect(r.observations.map(({ line: _l, ...o }) => o)).toEqual(usual.map(({ line: _l, ...o }) => o))
+    expect(r.observations[0]!.line).toBe(4)
+  })
+  it('in batches, the vectors come with the last batch after the raw observations', () => {
+    const raw = '<InstrumentSetup stationName="P1"><RawObservation horizAngle="1"><TargetPoint pntRef="P2"/></RawObservation><RawObservation horizAngle="2"><TargetPoint pntRef="P3"/></RawObservation></InstrumentSetup>'
+    const batches = readLandXmlBatches(doc([raw, ...setups, vector]), 1)
+    const kinds: string[][] = []
+    for (;;) {
+      const step = batches.next()
+      if (step.done) { expect(step.value.ok).toBe(true); break }
+      kinds.push(step.value.map((o) => o.kind))
+    }
+    expect(kinds.flat()).toEqual(['direction', 'direction', 'gnss_baseline'])
+    expect(kinds[kinds.length - 1]).toEqual(['gnss_baseline'])
   })
 })
 
