@@ -26,8 +26,8 @@ export const TIDE = {
   500: '#2f918d', 600: '#237473', 700: '#1f5d5d', 800: '#1c4b4c', 900: '#193f40',
 } as const
 
-/** Neutral slate tones used on canvases (Tailwind's slate scale). */
-export const SLATE = { 200: '#e2e8f0', 400: '#94a3b8', 500: '#64748b', 700: '#334155', 900: '#0f172a' } as const
+/** Neutral slate tones used on canvases and in the PDF (Tailwind's slate scale). */
+export const SLATE = { 200: '#e2e8f0', 300: '#cbd5e1', 400: '#94a3b8', 500: '#64748b', 600: '#475569', 700: '#334155', 900: '#0f172a' } as const
 
 /**
  * The network map and the histogram of w. Observation lines carry the verdict
@@ -43,7 +43,13 @@ export const CHART = {
   newStation: TIDE[700],
   /** GNSS baseline vectors: a violet no verdict uses */
   vector: '#6d28d9',
+  /** the band drawn under a vector's line on the map, and its legend swatch */
+  vectorBand: 'rgba(109, 40, 217, 0.35)',
   highlight: TIDE[500],
+  /** the fill of error ellipses on the map (the brand teal, faint) */
+  ellipseFill: 'rgba(15, 92, 99, 0.12)',
+  /** the white halo behind station names on the map */
+  labelHalo: 'rgba(255, 255, 255, 0.9)',
   grid: SLATE[200],
   /** the map's background and the fill of stations not held */
   paper: '#ffffff',

@@ -12,7 +12,7 @@ import PDFDocument from 'pdfkit'
 import { XMLBuilder } from 'fast-xml-parser'
 import { METRES_PER } from '../engine/io/units'
 import { formatPrecision, precisionScale, type PrecisionUnit } from '../../shared/precision'
-import { CHART, SLATE, VERDICT } from '../../shared/palette'
+import { CHART, SLATE, TIDE, VERDICT } from '../../shared/palette'
 import { naturalSortBy } from '../../shared/natural-sort'
 import type { AccuracyCheck } from './accuracy-check'
 import type { FlaggedObservation, NetworkDrawing, RunSummaryDto, SignedStation } from './signoffs'
@@ -340,7 +340,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
       cx += widths[i]!
     })
   }
-  const style = (w: Weight, s: number, colour = '#0f172a') => { weight = w; size = s; doc.fillColor(colour) }
+  const style = (w: Weight, s: number, colour: string = SLATE[900]) => { weight = w; size = s; doc.fillColor(colour) }
   const widthOf = (text: string) => fontRuns(text).reduce((sum, r) => sum + doc.font(`${weight}-${r.subset}`).fontSize(size).widthOfString(r.text), 0)
   /**
    * σ̂ as σ with a circumflex drawn over it: pdfSafe drops U+0302, which no
@@ -354,7 +354,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     const xHeight = font.font?.xHeight && font.font.unitsPerEm ? font.font.xHeight / font.font.unitsPerEm : 0.516
     const top = baseline - xHeight * size
     const cx = (x0 + x1) / 2
-    doc.save().lineWidth(0.08 * size).lineJoin('miter').strokeColor('#0f172a')
+    doc.save().lineWidth(0.08 * size).lineJoin('miter').strokeColor(SLATE[900])
       .moveTo(cx - 0.2 * size, top - 0.1 * size).lineTo(cx, top - 0.3 * size).lineTo(cx + 0.2 * size, top - 0.1 * size).stroke().restore()
   }
   /** `label: value` on one line where the label names σ̂ once */
@@ -378,7 +378,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   const heading = (t: string) => {
     if (doc.y + 40 > bottom()) doc.addPage()
     doc.moveDown(0.8)
-    style('bold', 12, '#1f5d5d')
+    style('bold', 12, TIDE[700])
     write(t, { x: left })
     style('body', 9)
   }
@@ -396,7 +396,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
       const y = doc.y
       style('bold', 7.5)
       for (const c of cols) { cell(c.title, x, y, c.width - 4, c.align ?? 'right'); x += c.width }
-      doc.moveTo(left, y + rowH - 2).lineTo(left + width, y + rowH - 2).lineWidth(0.5).strokeColor('#cbd5e1').stroke()
+      doc.moveTo(left, y + rowH - 2).lineTo(left + width, y + rowH - 2).lineWidth(0.5).strokeColor(SLATE[300]).stroke()
       doc.y = y + rowH
     }
     drawHeader()
@@ -415,7 +415,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
   // ── first page: title, the network drawing, coordinate system and adjustment
   style('bold', 16)
   write(input.project.name, { x: left })
-  style('body', 10, '#475569')
+  style('body', 10, SLATE[600])
   write(`Signed control coordinates — release ${input.release.id} of ${input.firmName}, published ${input.release.publishedAt.toISOString().slice(0, 10)}`)
   style('body', 9)
 
@@ -460,7 +460,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     prec(s.sdEast), prec(s.sdNorth), prec(s.sdHeight), prec(s.semiMajor95), prec(s.semiMinor95), s.azimuthDeg === null ? '—' : s.azimuthDeg.toFixed(1),
   ]), (i) => signed[i]!.fixed)
   doc.moveDown(0.3)
-  style('body', 7.5, '#475569')
+  style('body', 7.5, SLATE[600])
   write('Held: control held fixed in the adjustment (printed in bold; its σ is zero by definition). σ: standard deviation (1σ). a95, b95: semi-axes of the absolute error ellipse at 95 % confidence; az: azimuth of a95 clockwise from grid north.', { x: left })
   style('body', 9)
 
@@ -511,8 +511,8 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     const keep = doc.page.margins.bottom
     doc.page.margins.bottom = 0
     const y = doc.page.height - 40 - FOOTER_H + 8
-    doc.moveTo(left, y).lineTo(left + width, y).lineWidth(0.5).strokeColor('#cbd5e1').stroke()
-    style('body', 6.5, '#475569')
+    doc.moveTo(left, y).lineTo(left + width, y).lineWidth(0.5).strokeColor(SLATE[300]).stroke()
+    style('body', 6.5, SLATE[600])
     write(CAUTION, { x: left, y: y + 4, width: width - 70 })
     cell(`Page ${i - range.start + 1} of ${range.count}`, left + width - 64, y + 4, 64, 'right')
     doc.page.margins.bottom = keep
@@ -536,7 +536,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     const px = (e: number) => ox + (e - minE) * scale
     const py = (n: number) => oy + (maxN - n) * scale
     doc.save()
-    doc.rect(left, top, width, boxH).lineWidth(0.5).strokeColor('#cbd5e1').stroke()
+    doc.rect(left, top, width, boxH).lineWidth(0.5).strokeColor(SLATE[300]).stroke()
     const at = new Map(net.stations.map((s) => [s.name, s]))
     for (const { a, b, style: line } of networkLineOps(net)) {
       const p = at.get(a); const q = at.get(b)
@@ -560,11 +560,11 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     }
     for (const s of net.stations) {
       const x = px(s.east); const y = py(s.north)
-      if (s.fixed) doc.polygon([x, y - 3.5], [x - 3, y + 2], [x + 3, y + 2]).fillColor('#0f172a').fill()
-      else doc.circle(x, y, 1.6).fillColor('#0f172a').fill()
+      if (s.fixed) doc.polygon([x, y - 3.5], [x - 3, y + 2], [x + 3, y + 2]).fillColor(SLATE[900]).fill()
+      else doc.circle(x, y, 1.6).fillColor(SLATE[900]).fill()
     }
     if (net.stations.length <= 80) {
-      style('body', 5.5, '#334155')
+      style('body', 5.5, SLATE[700])
       for (const s of net.stations) cell(s.name, px(s.east) + 3, py(s.north) - 8, 60)
     }
     // scale bar in project units, lower left; ellipse scale and legend beside it
@@ -572,9 +572,9 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     const barUnits = nice((0.2 * width) / scale / k)
     const barPt = barUnits * k * scale
     const by = top + boxH - 12
-    doc.lineWidth(1.2).strokeColor('#0f172a').moveTo(left + 10, by).lineTo(left + 10 + barPt, by).stroke()
+    doc.lineWidth(1.2).strokeColor(SLATE[900]).moveTo(left + 10, by).lineTo(left + 10 + barPt, by).stroke()
     doc.lineWidth(0.8).moveTo(left + 10, by - 3).lineTo(left + 10, by + 3).stroke().moveTo(left + 10 + barPt, by - 3).lineTo(left + 10 + barPt, by + 3).stroke()
-    style('body', 6.5, '#0f172a')
+    style('body', 6.5, SLATE[900])
     cell(`${barUnits.toLocaleString('en-US')} ${UNIT_LABEL[u]}`, left + 14 + barPt, by - 4, 80)
     const legend = networkLegend(net, factor)
     const room = width - 100 - barPt
@@ -592,7 +592,7 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
       const ky = top + 9
       const v = NETWORK_LINE.vector
       doc.lineWidth(v.width).strokeColor(v.color).dash(v.dash!.length, { space: v.dash!.space }).moveTo(left + 8, ky).lineTo(left + 30, ky).stroke().undash()
-      style('body', 6.5, '#0f172a')
+      style('body', 6.5, SLATE[900])
       cell('GNSS vector', left + 34, ky - 3.5, 80)
     }
     doc.restore()

@@ -51,9 +51,9 @@ describe('no colour of its own in the Vue app', () => {
     const rel = join(dir, f)
     return statSync(join(root, rel)).isDirectory() ? files(rel) : /\.(vue|ts)$/.test(f) ? [rel] : []
   })
-  it('components, pages, layouts and composables name colours through Tailwind tokens or shared/palette.ts, never as hex literals', () => {
-    const offenders = ['components', 'pages', 'layouts', 'composables'].flatMap(files)
-      .flatMap((f) => [...readFileSync(join(root, f), 'utf8').matchAll(/#[0-9a-fA-F]{6}\b|#[0-9a-fA-F]{3}\b(?![\w-])/g)].map((m) => `${f}: ${m[0]}`))
+  it('components, pages, layouts, composables and the PDF maker name colours through Tailwind tokens or shared/palette.ts, never as hex or rgba literals', () => {
+    const offenders = [...['components', 'pages', 'layouts', 'composables'].flatMap(files), 'server/services/deliverables.ts']
+      .flatMap((f) => [...readFileSync(join(root, f), 'utf8').matchAll(/#[0-9a-fA-F]{6}\b|#[0-9a-fA-F]{3}\b(?![\w-])|rgba?\(\s*\d/g)].map((m) => `${f}: ${m[0]}`))
       .filter((x) => !/#fff$/i.test(x))
     expect(offenders).toEqual([])
   })
