@@ -139,6 +139,58 @@ describe('tolerance profile from page to run', () => {
   })
 })
 
+describe('σ of control in the project\'s precision unit on the Stations tab', () => {
+  // The project is now in feet with hundredths of a foot (set on screen above). Typed σ are
+  // hundredths of an international foot; the API stores metres. Expected metres are
+  // hand-computed products with 0.01 ft = 0.003048 m: 1.25 → 0.00381, 0.7 → 0.0021336,
+  // 39.37 → 0.11999976 (the last one a naive 39.37 × 0.003048 in floating point misses).
+  it('adds a control point with σ typed in hundredths; the API holds metres, the table shows hundredths', async () => {
+    await page.goto(`${base}/stations`)
+    await page.getByRole('button', { name: 'Add station' }).click()
+    const form = page.getByTestId('station-form')
+    await form.waitFor()
+    expect(await form.locator('label[for="st-se"]').innerText()).toContain('0.01 ft')
+    expect(await form.locator('legend').first().innerText()).toContain('σ at 1σ in 0.01 ft')
+    await page.locator('#st-name').fill('KF20')
+    await page.locator('#st-kind').selectOption('control')
+    await page.locator('#st-ce').fill('5000')
+    await page.locator('#st-cn').fill('6000')
+    await page.locator('#st-ch').fill('100')
+    await page.locator('#st-se').fill('1.25')
+    await page.locator('#st-sn').fill('0.7')
+    await page.locator('#st-sh').fill('39.37')
+    await form.getByRole('button', { name: 'Add station' }).click()
+    const row = page.locator('[data-station="KF20"]')
+    await row.waitFor()
+
+    const list = await (await page.request.get(`${api}/stations`)).json() as { name: string; controlEast: number; sdEast: number; sdNorth: number; sdHeight: number }[]
+    const kf = list.find((x) => x.name === 'KF20')!
+    expect(kf.controlEast).toBe(1524) // 5000 ft × 0.3048
+    expect(kf.sdEast).toBe(0.00381)
+    expect(kf.sdNorth).toBe(0.0021336)
+    expect(kf.sdHeight).toBe(0.11999976)
+
+    const head = await page.getByTestId('station-table').locator('thead').innerText()
+    expect(head).toMatch(/σE σN σH\s+0\.01 ft/)
+    expect(head).not.toMatch(/\bmm\b/)
+    expect((await row.locator('td').nth(5).innerText()).trim()).toBe('1.25 0.70 39.37')
+
+    // editing shows the same hundredths back, and saving unchanged keeps the metres
+    await page.getByRole('button', { name: 'Edit KF20' }).click()
+    expect(await page.locator('#st-se').inputValue()).toBe('1.25')
+    expect(await page.locator('#st-sh').inputValue()).toBe('39.37')
+    await page.locator('#st-sn').fill('abc')
+    await page.getByTestId('station-form').getByRole('button', { name: 'Save station' }).click()
+    await page.getByText("σ north: 'abc' is not a number of 0.01 ft").waitFor()
+    await page.locator('#st-sn').fill('0.7')
+    await page.getByTestId('station-form').getByRole('button', { name: 'Save station' }).click()
+    await page.getByTestId('station-form').waitFor({ state: 'detached' })
+    const again = (await (await page.request.get(`${api}/stations`)).json() as typeof list).find((x) => x.name === 'KF20')!
+    expect([again.sdEast, again.sdNorth, again.sdHeight]).toEqual([0.00381, 0.0021336, 0.11999976])
+    await shot(page, 'clarity-stations-hundredths')
+  })
+})
+
 describe('deleting a station on screen', () => {
   it('asks first, saying what depends on it, then deletes it', async () => {
     const [firmRow] = await useDb().select({ firmId: projects.firmId }).from(projects).where(eq(projects.id, projectId))
