@@ -38,6 +38,19 @@ afterAll(async () => {
   await closeDb()
 })
 
+/** attribute values and <option> texts on the page holding a combining circumflex (U+0302), which no font we ship places on σ */
+const hatsInText = (p: Page) => p.evaluate(() => {
+  const found: string[] = []
+  for (const el of Array.from(document.querySelectorAll('*'))) {
+    for (const a of ['title', 'aria-label', 'placeholder', 'alt']) {
+      const v = el.getAttribute(a)
+      if (v?.includes('\u0302')) found.push(`${el.tagName} ${a}: ${v}`)
+    }
+    if (el.tagName === 'OPTION' && el.textContent?.includes('\u0302')) found.push(`OPTION: ${el.textContent}`)
+  }
+  return found
+})
+
 /** a length in metres as hundredths of an international foot, 2 decimals */
 const hundredths = (m: number) => (m / 0.003048).toFixed(2)
 
@@ -82,6 +95,8 @@ describe('tolerance profile from page to run', () => {
     await select.waitFor()
     expect(await select.locator('option:checked').innerText()).toBe(`Checked against ${tolName} (project setting)`)
     expect(await page.getByTestId('run-tolerance-note').innerText()).toContain(`Source: ${tolSource}`)
+    expect(await page.locator('#run-scaling option:checked').innerText()).toBe('Scaled by σ0² estimated from the data (a posteriori) — default')
+    expect(await hatsInText(page)).toEqual([])
     await page.locator('section[aria-labelledby="new-run-heading"]').screenshot({ path: `${SCREENSHOTS}/clarity-new-run-form.png` })
     await page.getByRole('button', { name: 'Start run' }).click()
     await page.waitForURL(/\/runs\/\d+$/)
@@ -97,6 +112,7 @@ describe('tolerance profile from page to run', () => {
     await page.reload()
     await page.getByTestId('verdict').waitFor({ timeout: 30_000 })
     expect(await page.locator('main').innerText()).toContain(`Against ${tolName}`)
+    expect(await hatsInText(page)).toEqual([])
 
     const table = page.locator('[data-testid="station-table"]')
     expect(await table.locator('thead').innerText()).toContain('0.01 ft')
