@@ -167,7 +167,7 @@ describe('σ of control in the project\'s precision unit on the Stations tab', (
     await form.waitFor()
     expect(await form.locator('label[for="st-se"]').innerText()).toContain('0.01 ft')
     expect(await form.locator('legend').first().innerText()).toContain('σ at 1σ in 0.01 ft')
-    await page.locator('#st-name').fill('KF20')
+    await page.locator('#st-name').fill('CP9')
     await page.locator('#st-kind').selectOption('control')
     await page.locator('#st-ce').fill('5000')
     await page.locator('#st-cn').fill('6000')
@@ -176,11 +176,11 @@ describe('σ of control in the project\'s precision unit on the Stations tab', (
     await page.locator('#st-sn').fill('0.7')
     await page.locator('#st-sh').fill('39.37')
     await form.getByRole('button', { name: 'Add station' }).click()
-    const row = page.locator('[data-station="KF20"]')
+    const row = page.locator('[data-station="CP9"]')
     await row.waitFor()
 
     const list = await (await page.request.get(`${api}/stations`)).json() as { name: string; controlEast: number; sdEast: number; sdNorth: number; sdHeight: number }[]
-    const kf = list.find((x) => x.name === 'KF20')!
+    const kf = list.find((x) => x.name === 'CP9')!
     expect(kf.controlEast).toBe(1524) // 5000 ft × 0.3048
     expect(kf.sdEast).toBe(0.00381)
     expect(kf.sdNorth).toBe(0.0021336)
@@ -192,7 +192,7 @@ describe('σ of control in the project\'s precision unit on the Stations tab', (
     expect((await row.locator('td').nth(5).innerText()).trim()).toBe('1.25 0.70 39.37')
 
     // editing shows the same hundredths back, and saving unchanged keeps the metres
-    await page.getByRole('button', { name: 'Edit KF20' }).click()
+    await page.getByRole('button', { name: 'Edit CP9' }).click()
     expect(await page.locator('#st-se').inputValue()).toBe('1.25')
     expect(await page.locator('#st-sh').inputValue()).toBe('39.37')
     await page.locator('#st-sn').fill('abc')
@@ -201,7 +201,7 @@ describe('σ of control in the project\'s precision unit on the Stations tab', (
     await page.locator('#st-sn').fill('0.7')
     await page.getByTestId('station-form').getByRole('button', { name: 'Save station' }).click()
     await page.getByTestId('station-form').waitFor({ state: 'detached' })
-    const again = (await (await page.request.get(`${api}/stations`)).json() as typeof list).find((x) => x.name === 'KF20')!
+    const again = (await (await page.request.get(`${api}/stations`)).json() as typeof list).find((x) => x.name === 'CP9')!
     expect([again.sdEast, again.sdNorth, again.sdHeight]).toEqual([0.00381, 0.0021336, 0.11999976])
     await shot(page, 'clarity-stations-hundredths')
   })
