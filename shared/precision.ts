@@ -71,18 +71,28 @@ const DECIMAL_RE = /^([+-]?)(\d*)(?:[.,](\d*))?$/
  * not 1.25 × 0.003048 rounded twice. Blank text is null (no value).
  */
 export function parsePrecision(text: string, scale: PrecisionScale): ParsedPrecision | null {
+  const r = convert(text, scale, 1)
+  return r && (r.ok ? { ok: true, metres: r.value } : r)
+}
+
+/** The same in millimetres, for the fields the API takes in mm (a run's station holds): "5" mm stays 5, not 0.005 × 1000. */
+export function parsePrecisionMm(text: string, scale: PrecisionScale): { ok: true; mm: number } | { ok: false; message: string } | null {
+  const r = convert(text, scale, 1000)
+  return r && (r.ok ? { ok: true, mm: r.value } : r)
+}
+
+function convert(text: string, scale: PrecisionScale, perMetre: 1 | 1000): { ok: true; value: number } | { ok: false; message: string } | null {
   const t = text.trim()
   if (t === '') return null
   const m = DECIMAL_RE.exec(t)
   const int = m?.[2] ?? ''
   const frac = m?.[3] ?? ''
   if (!m || (int === '' && frac === '')) return { ok: false, message: `'${t}' is not a number of ${scale.label}` }
-  const digits = `${int}${frac}`.replace(/^0+(?=\d)/, '')
-  const n = Number(digits)
-  const [num, den] = scale.ratio
-  const divisor = den * 10 ** frac.length
+  const n = Number(`${int}${frac}`)
+  const num = scale.ratio[0] * perMetre
+  const divisor = scale.ratio[1] * 10 ** frac.length
   const exact = n * num <= Number.MAX_SAFE_INTEGER && divisor <= Number.MAX_SAFE_INTEGER && frac.length <= 22
-  const metres = exact ? (n * num) / divisor : (Number(`${int || '0'}.${frac || '0'}`) * num) / den
-  if (!Number.isFinite(metres)) return { ok: false, message: `'${t}' is not a number of ${scale.label}` }
-  return { ok: true, metres: m[1] === '-' ? -metres : metres }
+  const value = exact ? (n * num) / divisor : (Number(`${int || '0'}.${frac || '0'}`) * num) / scale.ratio[1]
+  if (!Number.isFinite(value)) return { ok: false, message: `'${t}' is not a number of ${scale.label}` }
+  return { ok: true, value: m[1] === '-' ? -value : value }
 }

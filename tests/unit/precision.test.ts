@@ -2,7 +2,7 @@
 // international foot = 0.3048 m exactly, U.S. survey foot = 1200/3937 m
 // (Federal Register 24 FR 5348, 1959; NIST Handbook 44, Appendix C).
 import { describe, expect, it } from 'vitest'
-import { formatPrecision, parsePrecision, precisionInputText, precisionScale } from '../../shared/precision'
+import { formatPrecision, parsePrecision, parsePrecisionMm, precisionInputText, precisionScale } from '../../shared/precision'
 
 describe('precision units', () => {
   it('metre projects show millimetres whatever the setting says', () => {
@@ -79,6 +79,22 @@ describe('precision units', () => {
       for (const [text, scale] of [['1.25', ft], ['0.7', ft], ['3.3333', us], ['12', us], ['2.5', mm], ['0.001', mm]] as const)
         expect(precisionInputText(metres(text, scale), scale)).toBe(text)
       expect(precisionInputText(null, ft)).toBe('')
+    })
+
+    it('in millimetres for the run holds: mm stay as typed, hundredths convert with one rounding', () => {
+      const mm = (text: string, scale: ReturnType<typeof precisionScale>) => {
+        const r = parsePrecisionMm(text, scale)
+        if (!r || !r.ok) throw new Error(`not parsed: ${text}`)
+        return r.mm
+      }
+      expect(mm('4.1', precisionScale('m', 'mm'))).toBe(4.1)
+      expect(mm('0.3', precisionScale('ft', 'mm'))).toBe(0.3)
+      // 1.25 × 3.048 mm = 3.81 mm; 39.37 × 3.048 = 119.99976; 3937 hundredths of a US foot = 12 000 mm
+      expect(mm('1.25', precisionScale('ft', 'hundredth_ft'))).toBe(3.81)
+      expect(mm('39.37', precisionScale('ft', 'hundredth_ft'))).toBe(119.99976)
+      expect(mm('3937', precisionScale('usft', 'hundredth_ft'))).toBe(12000)
+      expect(parsePrecisionMm('', precisionScale('m', 'mm'))).toBeNull()
+      expect(parsePrecisionMm('4..1', precisionScale('m', 'mm'))?.ok).toBe(false)
     })
 
     it('blank is no value; anything else that is not a plain decimal is refused, naming the unit', () => {
