@@ -95,7 +95,7 @@ describe('tolerance profile from page to run', () => {
     await select.waitFor()
     expect(await select.locator('option:checked').innerText()).toBe(`Checked against ${tolName} (project setting)`)
     expect(await page.getByTestId('run-tolerance-note').innerText()).toContain(`Source: ${tolSource}`)
-    expect(await page.locator('#run-scaling option:checked').innerText()).toBe('Scaled by σ0² estimated from the data (a posteriori) — default')
+    expect(await page.locator('#run-scaling option:checked').innerText()).toBe('Estimated σ0, a posteriori (default)')
     expect(await hatsInText(page)).toEqual([])
     // station holds: σ typed in hundredths of a foot, sent in mm (the run settings' unit): 1.25 × 3.048 = 3.81 mm
     const holds = page.getByTestId('station-holds')
