@@ -89,6 +89,20 @@ export type ReadResult =
   | { ok: true; controls: ControlRecord[]; observations: ObservationRecord[]; warnings: ReadIssue[] }
   | { ok: false; errors: ReadIssue[]; warnings: ReadIssue[] }
 
+/** What a batched reader returns once its batches are spent: everything of a ReadResult but the observations. */
+export type ReadEnd =
+  | { ok: true; controls: ControlRecord[]; warnings: ReadIssue[] }
+  | { ok: false; errors: ReadIssue[]; warnings: ReadIssue[] }
+
+/**
+ * A reader that hands its observation records out in batches as it reads, so
+ * a large file never has all of them in memory at once. Batches stop as soon
+ * as an error is found (the reading goes on, to list every error); the
+ * return value says whether the file was good. A consumer that wrote batches
+ * must discard them when it is not.
+ */
+export type RecordBatches = Generator<ObservationRecord[], ReadEnd, void>
+
 // ---- adjustment engine: settings and results ----------------------------------
 
 export interface AdjustSettings {

@@ -3,6 +3,7 @@
 // observation with its source line, list and page them, edit or exclude one
 // (the file never changes; originalValue keeps what it said), and type rows in
 // by hand. Uploads are all-or-nothing in one transaction.
+import { isUtf8 } from 'node:buffer'
 import { createHash } from 'node:crypto'
 import { and, asc, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
@@ -10,13 +11,13 @@ import Papa from 'papaparse'
 import { CHIEFS } from '../../shared/roles'
 import type { ManualObservations, ObservationPatch, ObservationQuery } from '../../shared/schemas/fielddata'
 import { readObservationCsv } from '../engine/io/csv'
-import { readLandXml } from '../engine/io/landxml'
+import { readLandXmlBatches } from '../engine/io/landxml'
 import { RAD_PER_ARCSEC, formatDms, formatGon, formatLength, parseAngle, parseLength } from '../engine/io/units'
 import { aprioriSigma } from '../engine/models/registry'
 import { formatPrecision, precisionScale } from '../../shared/precision'
-import type { BaselineVector, InstrumentProfile, ObservationRecord, ReadIssue, ReadResult } from '../engine/types'
+import type { BaselineVector, ControlRecord, InstrumentProfile, ObservationRecord, ReadEnd, ReadIssue, ReadResult, RecordBatches } from '../engine/types'
 import { useDb } from '../db/client'
-import { COPY_ROWS_PER_CHUNK, copyInto, copyNumber, copyText } from '../db/copy'
+import { chunked, copyInto, copyNumber, copyText } from '../db/copy'
 import type { Tx } from '../db/client'
 import { crewMembers, crews, instrumentProfiles, observationSets, observations, projectCrews, stations, users } from '../db/schema'
 import type { ObservationRow, ObservationSetRow, Project } from '../db/schema'
@@ -83,17 +84,28 @@ function countLines(text: string): number {
   return text.length > 0 && !text.endsWith('\n') ? n + 1 : n
 }
 
-/** UTF-8 text of an upload, or a line-numbered refusal at the first byte that is not UTF-8. */
-function decodeUtf8(bytes: Buffer): string {
-  try {
-    return new TextDecoder('utf-8', { fatal: true }).decode(bytes)
-  } catch {
-    const loose = new TextDecoder('utf-8').decode(bytes)
-    const at = loose.indexOf('\uFFFD')
-    const line = at < 0 ? 1 : countLines(loose.slice(0, at + 1))
-    throw new DomainError('invalid', 'The file is not UTF-8 text; nothing was saved', [{ line, column: 'file', message: 'holds bytes that are not UTF-8 (save the file as UTF-8)' }])
-  }
+/** Lines of UTF-8 bytes, counted like countLines without decoding them. */
+function countByteLines(bytes: Uint8Array): number {
+  let n = 0
+  for (let i = bytes.indexOf(0x0a); i !== -1; i = bytes.indexOf(0x0a, i + 1)) n++
+  return bytes.length > 0 && bytes[bytes.length - 1] !== 0x0a ? n + 1 : n
 }
+
+/**
+ * Checks that an upload is UTF-8 text without decoding it (the LandXML reader
+ * decodes it slice by slice), or refuses it, naming the line of the first
+ * byte that is not UTF-8.
+ */
+function checkUtf8(bytes: Buffer): void {
+  if (isUtf8(bytes)) return
+  const loose = new TextDecoder('utf-8').decode(bytes)
+  const at = loose.indexOf('\uFFFD')
+  const line = at < 0 ? 1 : countLines(loose.slice(0, at + 1))
+  throw new DomainError('invalid', 'The file is not UTF-8 text; nothing was saved', [{ line, column: 'file', message: 'holds bytes that are not UTF-8 (save the file as UTF-8)' }])
+}
+
+/** The whole text of a UTF-8 upload (already checked), without its byte-order mark. */
+const textOf = (bytes: Buffer) => new TextDecoder('utf-8').decode(bytes)
 
 function profileOf(row: typeof instrumentProfiles.$inferSelect): InstrumentProfile {
   return {
@@ -144,51 +156,36 @@ function storedUnit(r: ObservationRecord): string {
   return r.unit ?? (ANGLE_KINDS.has(r.kind) ? 'rad' : 'm')
 }
 
-function* copyRows(firmId: number, projectId: number, setId: number, recs: ObservationRecord[]): Generator<string> {
-  const head = `${firmId}\t${projectId}\t${setId}\t`
-  let chunk = ''
-  for (let i = 0; i < recs.length; i++) {
-    const r = recs[i]!
-    const value = copyNumber(r.value)
-    chunk += head + r.line + '\t' + r.kind + '\t' + copyText(r.at) + '\t' + copyText(r.from) + '\t' + copyText(r.to) + '\t'
-      + value + '\t' + copyText(storedUnit(r)) + '\t' + copyNumber(r.sigma) + '\t' + copyNumber(r.hi) + '\t' + copyNumber(r.ht) + '\t'
-      + copyText(r.set) + '\t' + copyNumber(r.lengthKm) + '\t' + copyText(r.note ?? '') + '\t' + (r.excluded ? 't' : 'f') + '\t' + value + '\t'
-      + copyText(r.vector ? JSON.stringify(r.vector) : null) + '\n'
-    if ((i + 1) % COPY_ROWS_PER_CHUNK === 0) {
-      yield chunk
-      chunk = ''
-    }
-  }
-  if (chunk !== '') yield chunk
+/** One observation as a line of COPY text. */
+function copyLine(head: string, r: ObservationRecord): string {
+  const value = copyNumber(r.value)
+  return head + r.line + '\t' + r.kind + '\t' + copyText(r.at) + '\t' + copyText(r.from) + '\t' + copyText(r.to) + '\t'
+    + value + '\t' + copyText(storedUnit(r)) + '\t' + copyNumber(r.sigma) + '\t' + copyNumber(r.hi) + '\t' + copyNumber(r.ht) + '\t'
+    + copyText(r.set) + '\t' + copyNumber(r.lengthKm) + '\t' + copyText(r.note ?? '') + '\t' + (r.excluded ? 't' : 'f') + '\t' + value + '\t'
+    + copyText(r.vector ? JSON.stringify(r.vector) : null) + '\n'
 }
 
 /**
  * Stores the observations of one set with COPY FROM STDIN on the
  * transaction's own connection, so a failure anywhere still rolls back the
- * set, stations and audit row with it. Rows are generated in chunks as the
- * server takes them (the stream's back-pressure), never as one big string.
+ * set, stations and audit row with it. Rows are made in chunks as the server
+ * takes them (the stream's back-pressure), never as one big string; with a
+ * batched reader the file is read only as fast as the rows are stored.
  */
-async function insertObservations(tx: Tx, firmId: number, projectId: number, setId: number, recs: ObservationRecord[]): Promise<void> {
-  if (recs.length === 0) return
-  await copyInto(tx, 'observations', COPY_COLUMNS, copyRows(firmId, projectId, setId, recs))
+async function insertObservations(tx: Tx, firmId: number, projectId: number, setId: number, recs: Iterable<ObservationRecord>): Promise<void> {
+  const head = `${firmId}\t${projectId}\t${setId}\t`
+  await copyInto(tx, 'observations', COPY_COLUMNS, chunked(recs, (r) => copyLine(head, r)))
 }
 
 /**
  * PostgreSQL text cannot hold the NUL character (U+0000), so a name or note
- * carrying one would fail in the database; it is refused here instead, with
- * its line and column, like any other bad cell.
+ * carrying one would fail in the database; it is refused instead, with its
+ * line and column, like any other bad cell.
  */
-function nulCharacters(read: Extract<ReadResult, { ok: true }>): ReadIssue[] {
-  const issues: ReadIssue[] = []
-  const check = (line: number, column: string, v: string | null | undefined) => {
+function nulIn(issues: ReadIssue[], line: number, cells: Array<[string, string | null | undefined]>): void {
+  for (const [column, v] of cells) {
     if (v && v.includes('\u0000')) issues.push({ line, column, message: 'holds a NUL character (U+0000), which cannot be stored; remove it' })
   }
-  for (const c of read.controls) check(c.line, 'at', c.station)
-  for (const o of read.observations) {
-    check(o.line, 'at', o.at); check(o.line, 'from', o.from); check(o.line, 'to', o.to)
-    check(o.line, 'set', o.set); check(o.line, 'note', o.note)
-  }
-  return issues
 }
 
 /**
@@ -198,9 +195,9 @@ function nulCharacters(read: Extract<ReadResult, { ok: true }>): ReadIssue[] {
  * and nothing is saved. The crew uploads the measurements; the chief sets the
  * control on the Stations tab or uploads it.
  */
-function controlFromCrew(ctx: FirmContext, read: Extract<ReadResult, { ok: true }>, format: FileFormat): ReadIssue[] {
+function controlFromCrew(ctx: FirmContext, controls: ControlRecord[], format: FileFormat): ReadIssue[] {
   if (CHIEFS.includes(ctx.role)) return []
-  return read.controls.map((c) => ({
+  return controls.map((c) => ({
     line: c.line,
     column: format === 'landxml' ? 'CgPoint@pntSurv' : 'kind',
     message: `sets the held coordinates of control point '${c.station}'; only a party chief or licensed surveyor may set control. Remove the control ${format === 'landxml' ? 'CgPoint' : 'row'} and ask a party chief to enter it`,
@@ -210,33 +207,82 @@ function controlFromCrew(ctx: FirmContext, read: Extract<ReadResult, { ok: true 
 /**
  * A GNSS vector lives in the Earth-centred frame of a datum; a local plane has
  * none, so the vector cannot be tied to the plane's coordinates. Each vector
- * row is refused, naming its line, before anything is written.
+ * row is refused, naming its line, and nothing is written.
  */
-function vectorsInLocalPlane(project: Project, read: Extract<ReadResult, { ok: true }>, format: FileFormat): ReadIssue[] {
-  if (project.crs !== 'local') return []
-  return read.observations.filter((o) => o.kind === 'gnss_baseline').map((o) => ({
-    line: o.line,
+function vectorInLocalPlane(line: number, format: FileFormat): ReadIssue {
+  return {
+    line,
     column: format === 'landxml' ? 'GPSVector' : 'kind',
     message: 'a GNSS baseline needs a georeferenced project: choose a projected CRS (EPSG) and set the geoid separation N in the project settings; this project uses a local plane',
-  }))
+  }
+}
+
+/**
+ * Watches the records of an upload on their way to the database and keeps
+ * what is checked once the file is read: the count, the station names, the
+ * first vector, and the records that cannot be stored. Once the reader or a
+ * check has found a problem no more records are passed on (the transaction
+ * is rolled back anyway), but the reading goes on so that every bad line is
+ * listed.
+ */
+class UploadScan {
+  count = 0
+  names = new Set<string>()
+  firstVector: ObservationRecord | null = null
+  /** cells holding NUL; then vectors in a local-plane project (each a refusal of its own, in that order) */
+  nul: ReadIssue[] = []
+  vectors: ReadIssue[] = []
+  end: ReadEnd | null = null
+
+  constructor(private project: Project, private format: FileFormat) {}
+
+  *records(batches: RecordBatches): Generator<ObservationRecord> {
+    for (;;) {
+      const step = batches.next()
+      if (step.done) {
+        this.end = step.value
+        return
+      }
+      for (const o of step.value) {
+        this.count++
+        this.names.add(o.at); this.names.add(o.to); if (o.from) this.names.add(o.from)
+        nulIn(this.nul, o.line, [['at', o.at], ['from', o.from], ['to', o.to], ['set', o.set], ['note', o.note]])
+        if (o.kind === 'gnss_baseline') {
+          this.firstVector ??= o
+          if (this.project.crs === 'local') this.vectors.push(vectorInLocalPlane(o.line, this.format))
+        }
+        if (this.nul.length === 0 && this.vectors.length === 0) yield o
+      }
+    }
+  }
+}
+
+/** A whole read result handed out as one batch (the CSV reader reads the whole text at once). */
+function* asBatches(read: ReadResult): RecordBatches {
+  if (!read.ok) return read
+  yield read.observations
+  return { ok: true, controls: read.controls, warnings: read.warnings }
 }
 
 /**
  * Parses and stores one file. Any bad line → 422 listing every one; the same
  * bytes already in the project → 409 naming the earlier set; nothing is
  * written unless everything is.
+ *
+ * A LandXML file is read while its rows are stored: records go from the
+ * reader to the COPY in batches inside the transaction, so a 10 MB file never
+ * has all its records, or its whole decoded text, in memory. A bad line found
+ * part-way rolls the transaction back, so nothing is written then either.
  */
 export async function uploadObservationSet(ctx: FirmContext, project: Project, input: UploadInput): Promise<UploadResult> {
   const { bytes } = input
   if (bytes.length === 0) throw new DomainError('invalid', 'The file is empty; nothing was saved', [{ line: 1, column: 'file', message: 'the file is empty' }])
   if (bytes.length > MAX_UPLOAD_BYTES) throw tooLarge()
-  // `let` so the decoded text (as large as the file) can be let go once the
-  // records exist: only they live on while rows stream to the database.
-  let text: string | undefined = decodeUtf8(bytes)
-  const lines = countLines(text)
+  const lines = countByteLines(bytes)
   if (lines > MAX_UPLOAD_LINES) {
     throw new DomainError('too_large', `The file has ${lines.toLocaleString('en')} lines; the limit is ${MAX_UPLOAD_LINES.toLocaleString('en')} lines per upload. Split it into several files.`)
   }
+  checkUtf8(bytes)
   const sha256 = createHash('sha256').update(bytes).digest('hex')
   const db = useDb()
   const earlier = await findBySha(ctx, project, sha256)
@@ -244,28 +290,13 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
 
   const profileRow = await loadProfile(ctx, input.instrumentProfileId)
   const crewId = await resolveCrew(ctx, project, input.crewId)
-  const format: FileFormat = input.format ?? detectFormat(input.name, text)
-  const read = format === 'landxml' ? readLandXml(text) : readObservationCsv(text, { heightUnit: project.units, ...(profileRow ? { profile: profileOf(profileRow) } : {}) })
-  text = undefined
-  if (!read.ok) refuse(read)
-  const unstorable = nulCharacters(read)
-  if (unstorable.length > 0) refuse({ ok: false, errors: unstorable, warnings: read.warnings })
-  const control = controlFromCrew(ctx, read, format)
-  if (control.length > 0) refuse({ ok: false, errors: control, warnings: read.warnings })
-  const vectors = vectorsInLocalPlane(project, read, format)
-  if (vectors.length > 0) refuse({ ok: false, errors: vectors, warnings: read.warnings })
-  const firstVector = read.observations.find((o) => o.kind === 'gnss_baseline')
-  if (firstVector && project.geoidSeparationM === 0) {
-    // 0 is the setting's default: say so once, since a forgotten N shifts every height by N
-    read.warnings.push({ line: firstVector.line, column: 'kind', message: 'the project\'s geoid separation N is 0 m (the default): vectors tie heights through ellipsoidal heights h = H + N, so set the site\'s N in the project settings before adjusting' })
-  }
-
-  const names = new Set<string>()
-  for (const o of read.observations) { names.add(o.at); names.add(o.to); if (o.from) names.add(o.from) }
+  const format: FileFormat = input.format ?? detectFormat(input.name, textOf(bytes.subarray(0, 400)))
+  // The CSV reader reads the whole text at once, so its errors are known before anything is written.
+  const csv = format === 'landxml' ? null : readObservationCsv(textOf(bytes), { heightUnit: project.units, ...(profileRow ? { profile: profileOf(profileRow) } : {}) })
+  if (csv && !csv.ok) refuse(csv)
 
   try {
     return await db.transaction(async (tx) => {
-      const parseReport = { lines, observations: read.observations.length, controls: read.controls.length, warnings: read.warnings.slice(0, 500), warningCount: read.warnings.length }
       const [set] = await tx.insert(observationSets).values({
         firmId: ctx.firm.id,
         projectId: project.id,
@@ -277,17 +308,35 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
         crewId,
         instrumentProfileId: profileRow?.id ?? null,
         uploadedBy: ctx.user.id,
-        parseReport,
+        parseReport: {},
       }).returning({ id: observationSets.id })
+      const batches = csv ? asBatches(csv) : readLandXmlBatches(bytes)
+      const scan = new UploadScan(project, format)
+      await insertObservations(tx, ctx.firm.id, project.id, set!.id, scan.records(batches))
+      // Every refusal below throws inside the transaction: the set and its rows go with it.
+      const read = scan.end
+      if (!read) throw new Error('the file was not read to its end')
+      if (!read.ok) refuse(read)
+      for (const c of read.controls) nulIn(scan.nul, c.line, [['at', c.station]])
+      if (scan.nul.length > 0) refuse({ ok: false, errors: scan.nul.sort((x, y) => x.line - y.line), warnings: read.warnings })
+      const control = controlFromCrew(ctx, read.controls, format)
+      if (control.length > 0) refuse({ ok: false, errors: control, warnings: read.warnings })
+      if (scan.vectors.length > 0) refuse({ ok: false, errors: scan.vectors, warnings: read.warnings })
+      if (scan.firstVector && project.geoidSeparationM === 0) {
+        // 0 is the setting's default: say so once, since a forgotten N shifts every height by N
+        read.warnings.push({ line: scan.firstVector.line, column: 'kind', message: 'the project\'s geoid separation N is 0 m (the default): vectors tie heights through ellipsoidal heights h = H + N, so set the site\'s N in the project settings before adjusting' })
+      }
+
+      const parseReport = { lines, observations: scan.count, controls: read.controls.length, warnings: read.warnings.slice(0, 500), warningCount: read.warnings.length }
+      await tx.update(observationSets).set({ parseReport }).where(and(eq(observationSets.firmId, ctx.firm.id), eq(observationSets.id, set!.id)))
       const controlChanges = await applyControls(tx, ctx.firm.id, project.id, read.controls)
-      const created = await ensureStations(tx, ctx.firm.id, project.id, names)
-      await insertObservations(tx, ctx.firm.id, project.id, set!.id, read.observations)
+      const created = await ensureStations(tx, ctx.firm.id, project.id, scan.names)
       await audit(tx, {
         firmId: ctx.firm.id, userId: ctx.user.id, action: 'observation_set.upload', entityType: 'observation_set', entityId: set!.id, projectId: project.id,
-        after: { name: input.name, format, sha256, sizeBytes: bytes.length, observations: read.observations.length, controls: read.controls.length, stationsCreated: created, crewId, instrumentProfileId: profileRow?.id ?? null },
+        after: { name: input.name, format, sha256, sizeBytes: bytes.length, observations: scan.count, controls: read.controls.length, stationsCreated: created, crewId, instrumentProfileId: profileRow?.id ?? null },
         ...(controlChanges.length ? { before: { controls: controlChanges.map((c) => c.before) } } : {}),
       })
-      return { id: set!.id, name: input.name, format, sha256, observations: read.observations.length, controls: read.controls.length, stationsCreated: created, warnings: read.warnings }
+      return { id: set!.id, name: input.name, format, sha256, observations: scan.count, controls: read.controls.length, stationsCreated: created, warnings: read.warnings }
     })
   } catch (error) {
     // Two uploads of the same bytes at once: the unique index decides.
@@ -337,7 +386,7 @@ export async function addManualObservations(ctx: FirmContext, project: Project, 
     throw new DomainError('invalid', `${new Set(read.errors.map((e) => e.line)).size} typed-in row(s) are not valid; nothing was saved`,
       read.errors.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.${e.column}`, message: `row ${e.line - 1}, ${e.column}: ${e.message}` })))
   }
-  const control = controlFromCrew(ctx, read, 'manual')
+  const control = controlFromCrew(ctx, read.controls, 'manual')
   if (control.length) {
     throw new DomainError('invalid', `${control.length} typed-in row(s) set control; nothing was saved`,
       control.map((e) => ({ line: e.line, column: e.column, field: `rows.${e.line - 2}.kind`, message: `row ${e.line - 1}, kind: ${e.message}` })))

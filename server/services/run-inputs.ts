@@ -41,6 +41,60 @@ export function canonicalJson(v: unknown): string {
   return `{${Object.keys(o).filter((k) => o[k] !== undefined).sort().map((k) => `${JSON.stringify(k)}:${canonicalJson(o[k])}`).join(',')}}`
 }
 
+/** A list whose items are made one at a time while it is hashed (never held as a second array). */
+export class MappedList<T> {
+  constructor(readonly items: readonly T[], readonly map: (item: T) => unknown) {}
+}
+
+/**
+ * SHA-256 of canonicalJson(v), fed to the hash in pieces of about 64 KiB:
+ * the same bytes, so the same digest, without the whole text (tens of MB at
+ * 10,000 stations) ever being one string. A MappedList is hashed as the
+ * array of its mapped items.
+ */
+export function canonicalSha256(v: unknown): string {
+  const hash = createHash('sha256')
+  let buf = ''
+  const put = (s: string) => {
+    buf += s
+    if (buf.length >= 1 << 16) {
+      hash.update(buf)
+      buf = ''
+    }
+  }
+  const walk = (x: unknown): void => {
+    if (x instanceof MappedList) {
+      put('[')
+      for (let i = 0; i < x.items.length; i++) {
+        if (i > 0) put(',')
+        walk(x.map(x.items[i]))
+      }
+      put(']')
+    } else if (x === null || typeof x !== 'object') put(JSON.stringify(x ?? null))
+    else if (Array.isArray(x)) {
+      put('[')
+      for (let i = 0; i < x.length; i++) {
+        if (i > 0) put(',')
+        walk(x[i])
+      }
+      put(']')
+    } else {
+      const o = x as Record<string, unknown>
+      put('{')
+      let first = true
+      for (const k of Object.keys(o).filter((key) => o[key] !== undefined).sort()) {
+        put(`${first ? '' : ','}${JSON.stringify(k)}:`)
+        first = false
+        walk(o[k])
+      }
+      put('}')
+    }
+  }
+  walk(v)
+  hash.update(buf)
+  return hash.digest('hex')
+}
+
 const profileOf = (p: typeof instrumentProfiles.$inferSelect): InstrumentProfile => ({
   distanceMm: p.distanceMm, distancePpm: p.distancePpm, directionArcsec: p.directionArcsec, zenithArcsec: p.zenithArcsec,
   centeringInstrumentMm: p.centeringInstrumentMm, centeringTargetMm: p.centeringTargetMm, levellingMmPerSqrtKm: p.levellingMmPerSqrtKm,
@@ -184,19 +238,19 @@ export async function loadRunInputs(firmId: number, projectId: number, settings:
     settings: resolved,
     sets: usedSets.map((s) => ({ id: s.id, sha256: s.sha256, instrumentProfileId: s.instrumentProfileId })),
     profiles: [...profiles].sort((a, b) => a[0] - b[0]),
-    observations: obsRows.map((o) => ({
+    observations: new MappedList(obsRows, (o) => ({
       id: o.id, setId: o.setId, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to, value: o.value, sigma: o.sigma,
       hi: o.hi, ht: o.ht, setName: o.setName, lengthKm: o.lengthKm, excluded: o.excluded,
       // only vector rows carry the key, so the hash of a run without vectors is what it always was
       ...(o.vector ? { vector: o.vector } : {}),
     })),
-    stations: stationRows.map((s) => ({
+    stations: new MappedList(stationRows, (s) => ({
       name: s.name, kind: s.kind, controlEast: s.controlEast, controlNorth: s.controlNorth, controlHeight: s.controlHeight,
       sdEast: s.sdEast, sdNorth: s.sdNorth, sdHeight: s.sdHeight, approxEast: s.approxEast, approxNorth: s.approxNorth, approxHeight: s.approxHeight,
     })),
     tolerance,
   }
-  const hash = createHash('sha256').update(canonicalJson(hashed)).digest('hex')
+  const hash = canonicalSha256(hashed)
   const mainProfile = mainProfileId === null ? undefined : profiles.get(mainProfileId)
 
   // What weighted each set: its own profile, the run's main profile (a set

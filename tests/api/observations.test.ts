@@ -348,6 +348,63 @@ describe('what is stored for each observation', () => {
   })
 })
 
+describe('large LandXML, stored while it is read', () => {
+  // A LandXML file written here (LandXML 1.2 schema: Units, CgPoints,
+  // Survey/InstrumentSetup/RawObservation) with more RawObservations than the
+  // reader hands out per batch, so rows reach the database before the end of
+  // the file is read. Counts follow from how the file is built: two
+  // RawObservations per set-up, each a direction and a slope distance.
+  const SETUPS = 1500
+  function bigXml(opts: { badAt?: number; controlLast?: boolean } = {}) {
+    const out = ['<?xml version="1.0" encoding="UTF-8"?>', '<LandXML version="1.2">',
+      '<Units><Metric linearUnit="meter" angularUnit="decimal degrees"/></Units>']
+    if (!opts.controlLast) out.push('<CgPoints><CgPoint name="L0" pntSurv="control">5000 1000</CgPoint></CgPoints>')
+    out.push('<Survey>')
+    for (let s = 0; s < SETUPS; s++) {
+      out.push(`<InstrumentSetup id="U${s}" stationName="L${s % 40}">`)
+      for (let k = 1; k <= 2; k++) {
+        const d = s === opts.badAt && k === 2 ? '12O.5' : (120 + k + (s % 7) / 10).toFixed(3)
+        out.push(`<RawObservation horizAngle="${k * 90}" slopeDistance="${d}"><TargetPoint pntRef="L${(s + k) % 40}"/></RawObservation>`)
+      }
+      out.push('</InstrumentSetup>')
+    }
+    out.push('</Survey>')
+    if (opts.controlLast) out.push('<CgPoints><CgPoint name="L0" pntSurv="control">5000 1000</CgPoint></CgPoints>')
+    out.push('</LandXML>', '')
+    return out.join('\n')
+  }
+  /** 1-based line of a substring in the text, counted here. */
+  const lineOf = (text: string, needle: string) => text.slice(0, text.indexOf(needle)).split('\n').length
+
+  it('stores every observation of a file larger than one batch', async () => {
+    const p = await freshProject(chief, 'Large LandXML')
+    const r = await chief.post(`${base(p)}/observation-sets`, fileForm('large.xml', bigXml()))
+    expect(r.status).toBe(201)
+    expect(r.body.observations).toBe(SETUPS * 2 * 2)
+    expect(await counts(p)).toEqual({ observations: SETUPS * 4, sets: 1, stations: 40 })
+  })
+
+  it('a bad value near the end, after earlier rows went to the database, answers 422 with its line and writes nothing', async () => {
+    const p = await freshProject(chief, 'Large LandXML bad tail')
+    const xml = bigXml({ badAt: SETUPS - 3 })
+    const r = await chief.post(`${base(p)}/observation-sets`, fileForm('bad-tail.xml', xml))
+    expect(r.status).toBe(422)
+    expect(r.body.errors).toEqual([expect.objectContaining({ line: lineOf(xml, 'slopeDistance="12O.5"'), column: expect.stringMatching(/InstrumentSetup\[1498\]\/RawObservation\[2\]@slopeDistance$/) })])
+    expect(await counts(p)).toEqual({ observations: 0, sets: 0, stations: 0 })
+    const audits = await useDb().select().from(auditLog).where(and(eq(auditLog.projectId, p), eq(auditLog.action, 'observation_set.upload')))
+    expect(audits).toHaveLength(0)
+  })
+
+  it("a field crew's file whose control point comes after the survey is refused and writes nothing", async () => {
+    const p = await freshProject(chief, 'Large LandXML crew control')
+    const xml = bigXml({ controlLast: true })
+    const r = await crew.post(`${base(p)}/observation-sets`, fileForm('crew-control.xml', xml))
+    expect(r.status).toBe(422)
+    expect(r.body.errors).toEqual([expect.objectContaining({ line: lineOf(xml, '<CgPoint name="L0"'), column: 'CgPoint@pntSurv' })])
+    expect(await counts(p)).toEqual({ observations: 0, sets: 0, stations: 0 })
+  })
+})
+
 describe('σ used (the engine\'s own σ function)', () => {
   it('a profile-weighted angle shows the σ with centering at its lengths from the stored positions, not √2·σ_dir (regression)', async () => {
     const firm = `/api/firms/${DEMO.firm}`

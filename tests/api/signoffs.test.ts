@@ -100,6 +100,18 @@ describe('the preview a page at a time', () => {
     expect(big.body.control.map((c: any) => c.name).sort()).toEqual(r.stations.filter((s) => s.fixed).map((s) => s.name).sort())
     expect(big.body.check.itemCount).toBe(r.relative.length)
     expect(big.body.check.items.length).toBeLessThan(r.relative.length)
+
+    // signing it without a list of names signs that whole default set, in one record whose hash recomputes
+    const signed729 = await surveyor.post(`/api/firms/${DEMO.firm}/projects/${project!.id}/adjustments/${number}/signoffs`,
+      { statement: 'Signed whole: invented 729-station test run.', password: 'tiepoint-demo', acknowledgeFailedTests: true })
+    expect(signed729.status, JSON.stringify(signed729.body).slice(0, 300)).toBe(201)
+    const newNames = r.stations.filter((s) => s.kind === 'new').map((s) => s.name).sort()
+    expect(signed729.body.stations.map((s: SignedStation) => s.name).sort()).toEqual(newNames)
+    const [row] = await db.select().from(signoffs).where(eq(signoffs.id, signed729.body.id))
+    expect((row!.stations as unknown as SignedStation[]).length).toBe(big.body.defaultCount)
+    expect(signoffHash(row!.stations as unknown as SignedStation[], row!.inputHash)).toBe(row!.sha256)
+    const listed = await surveyor.get(`/api/firms/${DEMO.firm}/projects/${project!.id}/signoffs`)
+    expect(listed.body.map((x: { id: number }) => x.id)).toContain(signed729.body.id)
   })
 })
 

@@ -42,6 +42,13 @@ function resetPeak(pid: number): boolean {
   try { writeFileSync(`/proc/${pid}/clear_refs`, '5'); return true } catch { return false }
 }
 
+/** The app process's resident set now, for the figures' lines. */
+const appRss = () => {
+  const pid = appPid()
+  const mb = pid ? rss(pid) : null
+  return mb === null ? '' : `; app RSS ${mb.toFixed(0)} MB`
+}
+
 async function newProject(chief: Client, name: string): Promise<string> {
   const created = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `${name} ${Date.now()}`, crs: 'local', units: 'm' })
   if (created.status !== 201 && created.status !== 200) throw new Error(`project: ${created.status} ${JSON.stringify(created.body)}`)
@@ -58,7 +65,7 @@ async function apiPath(chief: Client) {
   const up = await chief.post(`${project}/observation-sets`, form)
   const tUpload = performance.now() - t0
   if (up.status !== 201 && up.status !== 200) throw new Error(`upload answered ${up.status}: ${JSON.stringify(up.body).slice(0, 300)}`)
-  console.log(`  upload (multipart, parse, COPY of ${up.body.observations} rows): ${tUpload.toFixed(0)} ms`)
+  console.log(`  upload (multipart, parse, COPY of ${up.body.observations} rows): ${tUpload.toFixed(0)} ms${appRss()}`)
   const t1 = performance.now()
   const post = await chief.post(`${project}/adjustments`, { observationSetIds: [up.body.id] })
   if (post.status !== 202) throw new Error(`POST answered ${post.status}: ${JSON.stringify(post.body)}`)
@@ -72,7 +79,7 @@ async function apiPath(chief: Client) {
   const first = await timed(chief, run)
   const body = JSON.parse(first.text)
   const s = body.summary ?? {}
-  console.log(`  run ${post.body.number} ${status}${body.errorText ? ` (${body.errorText})` : ''}: POST → done ${tDone.toFixed(0)} ms (engine ${s.engineMs ?? '?'} ms, storing results by COPY ${s.storeMs ?? '?'} ms — target < 5,000 ms); σ̂0 ${s.sigma0?.toFixed?.(3) ?? '—'}; load average ${load()}`)
+  console.log(`  run ${post.body.number} ${status}${body.errorText ? ` (${body.errorText})` : ''}: POST → done ${tDone.toFixed(0)} ms (engine ${s.engineMs ?? '?'} ms, storing results by COPY ${s.storeMs ?? '?'} ms — target < 5,000 ms); σ̂0 ${s.sigma0?.toFixed?.(3) ?? '—'}; load average ${load()}${appRss()}`)
   if (status !== 'done') return null
   console.log(`  run GET: ${first.ms.toFixed(0)} ms, ${kib(first.bytes)}; rows ${JSON.stringify(body.totals)}`)
   for (const table of ['stations', 'observations', 'relative']) {
@@ -83,7 +90,7 @@ async function apiPath(chief: Client) {
   console.log(`  overview (map + histograms): ${overview.ms.toFixed(0)} ms, ${kib(overview.bytes)}`)
   const preview = await timed(chief, `${project}/signoffs/preview?run=${post.body.number}`)
   console.log(`  sign-off preview (summary, check, control points, first page of stations): ${preview.ms.toFixed(0)} ms, ${kib(preview.bytes)} (HTTP ${preview.status})`)
-  console.log(`  upload → run done → first page of the run report: ${(tUpload + tDone + first.ms).toFixed(0)} ms`)
+  console.log(`  upload → run done → first page of the run report: ${(tUpload + tDone + first.ms).toFixed(0)} ms${appRss()}`)
   return run.replace(`/api/firms/${DEMO.firm}/projects/`, `/f/${DEMO.firm}/projects/`).replace('/adjustments/', '/runs/')
 }
 
@@ -120,7 +127,7 @@ async function runPage(pagePath: string) {
       })
       const ms = (v: number | undefined) => (v === undefined ? '?' : v.toFixed(0))
       const timeline = `HTML ${ms(info.html)} ms, DOMContentLoaded ${ms(info.dcl)} ms, overview request ${ms(info.ovStart)}–${ms(info.ovEnd)} ms (${info.ovBytes !== undefined ? (info.ovBytes / 1024).toFixed(0) : '?'} KiB), map built and drawn ${ms(info.drawStart)}–${ms(info.drawEnd)} ms`
-      console.log(`  run page, ${label} (headless Chromium): verdict visible ${verdict.toFixed(0)} ms, first table page ${table.toFixed(0)} ms, map drawn ${map.toFixed(0)} ms (target 2,000 ms); map ${info.stations} stations, ${info.lines} lines; ${info.nodes.toLocaleString('en')} DOM elements; load average ${load()}`)
+      console.log(`  run page, ${label} (headless Chromium): verdict visible ${verdict.toFixed(0)} ms, first table page ${table.toFixed(0)} ms, map drawn ${map.toFixed(0)} ms (target 2,000 ms); map ${info.stations} stations, ${info.lines} lines; ${info.nodes.toLocaleString('en')} DOM elements; load average ${load()}${appRss()}`)
       console.log(`    in the page's own clock from navigation start: ${timeline}`)
     }
     // the sign-off page of the same run: the preview is one page of stations, the control points and counts
@@ -130,7 +137,7 @@ async function runPage(pagePath: string) {
     const signoff = performance.now() - t1
     const rows = await page.locator('[data-testid="signoff-stations"] tbody tr').count()
     const checkRows = await page.locator('[data-testid="accuracy-table"] tbody tr').count()
-    console.log(`  sign-off page of the run: stations table shown ${signoff.toFixed(0)} ms; ${rows} station rows, ${checkRows} accuracy-check rows in the DOM; load average ${load()}`)
+    console.log(`  sign-off page of the run: stations table shown ${signoff.toFixed(0)} ms; ${rows} station rows, ${checkRows} accuracy-check rows in the DOM; load average ${load()}${appRss()}`)
     await page.goto(pagePath, { waitUntil: 'commit', timeout: 120_000 })
     await page.locator('[data-testid="network-map"] canvas').first().waitFor({ timeout: 120_000 })
     // zoom in three steps with Leaflet's button, then read the names and ellipses drawn: the time to redraw
@@ -147,19 +154,28 @@ async function runPage(pagePath: string) {
   }
 }
 
-async function landxmlUpload(chief: Client) {
+/** Resident set of a process now, in MB. */
+function rss(pid: number): number | null {
+  try {
+    const m = /VmRSS:\s+(\d+) kB/.exec(readFileSync(`/proc/${pid}/status`, 'utf8'))
+    return m ? Number(m[1]) / 1024 : null
+  } catch { return null }
+}
+
+async function landxmlUpload(chief: Client, when: string) {
   const pid = appPid()
   const project = await newProject(chief, 'Big LandXML upload')
   const bytes = Buffer.from(xmlText(10 * 1024 * 1024), 'utf8')
   const before = pid ? peakRss(pid) : null
   const reset = pid ? resetPeak(pid) : false
+  const resident = pid ? rss(pid) : null
   const form = new FormData()
   form.append('file', new Blob([bytes]), 'big.xml')
   const t0 = performance.now()
   const up = await chief.post(`${project}/observation-sets`, form)
   const ms = performance.now() - t0
   const peak = pid ? peakRss(pid) : null
-  console.log(`  LandXML ${(bytes.length / 1048576).toFixed(1)} MB through the upload route: HTTP ${up.status}, ${up.body?.observations ?? '?'} observations in ${ms.toFixed(0)} ms; app process peak RSS ${peak?.toFixed(0) ?? '?'} MB during the upload${reset ? '' : ` (peak since start: could not reset it; ${before?.toFixed(0) ?? '?'} MB before)`} (target < 300 MB); load average ${load()}`)
+  console.log(`  LandXML ${(bytes.length / 1048576).toFixed(1)} MB through the upload route (${when}): HTTP ${up.status}, ${up.body?.observations ?? '?'} observations in ${ms.toFixed(0)} ms; app process RSS ${resident?.toFixed(0) ?? '?'} MB before, peak ${peak?.toFixed(0) ?? '?'} MB during the upload${reset ? '' : ` (peak since start: could not reset it; ${before?.toFixed(0) ?? '?'} MB before)`} (target < 300 MB, ratio ${peak ? (peak / 300).toFixed(2) : '?'}); load average ${load()}`)
 }
 
 async function main() {
@@ -167,9 +183,11 @@ async function main() {
   await setup()
   try {
     const chief = await as(DEMO.chief)
+    // the upload on the app as started, then again once it has served the big run (its heap is larger then)
+    await landxmlUpload(chief, 'app as started')
     const pagePath = await apiPath(chief)
     if (pagePath) await runPage(pagePath)
-    await landxmlUpload(chief)
+    await landxmlUpload(chief, 'after the big run')
   } finally {
     await teardown()
     await closeDb()

@@ -21,7 +21,7 @@
 // - The reader never throws, whatever bytes it is given.
 
 import { SaxesParser } from 'saxes'
-import type { ControlRecord, ObservationKind, ObservationRecord, ReadIssue, ReadResult } from '../types'
+import type { ControlRecord, ObservationKind, ObservationRecord, ReadIssue, ReadResult, RecordBatches } from '../types'
 import { RAD_PER_DEG, RAD_PER_GON, clip, parseNumber, parsePackedDms, type Parsed } from './units'
 
 type Attrs = Record<string, string>
@@ -100,61 +100,66 @@ const FULL_CIRCLE = 2 * Math.PI
 
 /** Reads LandXML 1.2 raw observations and control points. Never throws. */
 export function readLandXml(text: string): ReadResult {
-  try {
-    return read(typeof text === 'string' ? text : String(text))
-  } catch (err) {
-    return {
-      ok: false,
-      errors: [{ line: 1, column: 'xml', message: `could not be read (${err instanceof Error ? err.message : String(err)})` }],
-      warnings: [],
-    }
+  const batches = readLandXmlBatches(typeof text === 'string' ? text : String(text))
+  const observations: ObservationRecord[] = []
+  for (;;) {
+    const step = batches.next()
+    if (step.done) return step.value.ok ? { ...step.value, observations } : step.value
+    for (const o of step.value) observations.push(o)
   }
 }
 
-function read(input: string): ReadResult {
-  const text = input.charCodeAt(0) === 0xfeff ? input.slice(1) : input
+/** Observation records handed out per batch by readLandXmlBatches. */
+export const LANDXML_BATCH = 2_000
+
+/**
+ * Reads LandXML 1.2 like readLandXml, handing the observation records out in
+ * batches while it reads, from a string or from the file's UTF-8 bytes
+ * (decoded slice by slice, so no copy of the whole text is made). Each
+ * survey set-up is turned into records as soon as its end tag is read and its
+ * elements are let go, so memory stays flat however long the file is. (That
+ * needs the units, so when the Units element comes after the survey the
+ * elements before it are kept until it is read.) Never throws.
+ */
+export function* readLandXmlBatches(source: string | Uint8Array, batchSize = LANDXML_BATCH): RecordBatches {
   const errors: ReadIssue[] = []
   const warnings: ReadIssue[] = []
-
-  if (text.trim() === '') {
-    return { ok: false, errors: [{ line: 1, column: 'xml', message: 'the file is empty' }], warnings }
-  }
-  // One streaming pass (saxes, a strict SAX parser: well-formedness errors
-  // with their line, no DTD and no entity expansion) builds only the small
-  // tree below; no full DOM of the file is ever made.
-  const tree = buildTree(text)
-  if (!tree.ok) return { ok: false, errors: [tree.issue], warnings }
-  const roots = tree.roots
-  const root = roots.find((n) => n.name === 'LandXML')
-  if (!root) {
-    const first = roots.find((n) => !n.name.startsWith('?'))
-    return {
-      ok: false,
-      errors: [{ line: first?.line ?? 1, column: 'xml', message: `the root element is '${clip(first?.name ?? '')}', not LandXML` }],
-      warnings,
-    }
-  }
-
   const ctx = new Context(errors, warnings)
-  // Units first: every number below depends on them, wherever they sit.
-  const units = root.children.find((c) => c.name === 'Units')
-  if (!units) {
-    errors.push({ line: root.line, column: pathOf(root), message: 'has no Units element: the reader will not guess units' })
-    return { ok: false, errors, warnings }
+  const tree = new TreeBuilder((node) => ctx.closed(node))
+  try {
+    let first = true
+    for (const slice of slicesOf(source)) {
+      // a byte-order mark is not part of the document
+      const part = first && slice.charCodeAt(0) === 0xfeff ? slice.slice(1) : slice
+      first = false
+      if (!tree.write(part)) break
+      if (ctx.out.length >= batchSize) {
+        const batch = ctx.take()
+        if (errors.length === 0) yield batch
+      }
+    }
+    if (!tree.issue) tree.close()
+    if (!tree.issue && ctx.unitsRead) ctx.finish()
+  } catch (err) {
+    return { ok: false, errors: [{ line: 1, column: 'xml', message: `could not be read (${err instanceof Error ? err.message : String(err)})` }], warnings: [] }
   }
-  ctx.readUnits(units)
-  for (const child of root.children) {
-    if (child.name === 'Units') continue
-    else if (child.name === 'CgPoints') ctx.readCgPoints(child)
-    else if (child.name === 'Survey') ctx.readSurvey(child)
-    else ctx.unknown(child)
+  if (tree.issue) return { ok: false, errors: [tree.issue], warnings: [] }
+  if (tree.empty) return { ok: false, errors: [{ line: 1, column: 'xml', message: 'the file is empty' }], warnings: [] }
+  const root = tree.roots.find((n) => n.name === 'LandXML')
+  if (!root) {
+    const first = tree.roots[0]
+    return { ok: false, errors: [{ line: first?.line ?? 1, column: 'xml', message: `the root element is '${clip(first?.name ?? '')}', not LandXML` }], warnings: [] }
   }
-  ctx.finish()
+  if (!ctx.unitsRead) {
+    return { ok: false, errors: [{ line: root.line, column: pathOf(root), message: 'has no Units element: the reader will not guess units' }], warnings: [] }
+  }
+  const rest = ctx.take()
   if (errors.length > 0) return { ok: false, errors, warnings }
-  if (ctx.controls.length === 0 && ctx.observations.length === 0) {
+  if (rest.length > 0) yield rest
+  if (ctx.controls.length === 0 && ctx.emitted === 0) {
     warnings.push({ line: root.line, column: pathOf(root), message: 'holds no control points or raw observations' })
   }
-  return { ok: true, controls: ctx.controls, observations: ctx.observations, warnings }
+  return { ok: true, controls: ctx.controls, warnings }
 }
 
 /** Characters fed to the parser at a time: the text is read in slices, never copied whole. */
@@ -163,6 +168,27 @@ const SLICE = 1 << 16
 const MAX_DEPTH = 256
 /** Thrown inside a parser handler to stop at the first problem. */
 const STOP = Symbol('stop')
+
+/** The text in slices of about SLICE characters, from a string or from UTF-8 bytes. */
+function* slicesOf(source: string | Uint8Array): Generator<string> {
+  if (typeof source === 'string') {
+    for (let i = 0; i < source.length;) {
+      // never split a surrogate pair between two slices
+      let end = Math.min(i + SLICE, source.length)
+      const last = source.charCodeAt(end - 1)
+      if (end < source.length && last >= 0xd800 && last <= 0xdbff) end++
+      yield source.slice(i, end)
+      i = end
+    }
+    return
+  }
+  // stream mode keeps a character split between two byte slices whole
+  const decoder = new TextDecoder('utf-8')
+  for (let i = 0; i < source.length; i += SLICE) {
+    const end = Math.min(i + SLICE, source.length)
+    yield decoder.decode(source.subarray(i, end), { stream: end < source.length })
+  }
+}
 
 /** The local part of a qualified name (namespace prefixes are dropped, as LandXML files use them freely). */
 const local = (name: string) => {
@@ -173,76 +199,95 @@ const local = (name: string) => {
 /**
  * Builds the small element tree the reader walks, with each element's source
  * line (where its start tag begins), ordinal among same-named siblings and
- * trimmed text, in one SAX pass over the text.
+ * trimmed text, in one SAX pass over the text fed to it slice by slice.
+ * `closed` is told of each element when its end tag is read; it may take the
+ * element out of its parent's children to let it go.
  */
-function buildTree(text: string): { ok: true; roots: XNode[] } | { ok: false; issue: ReadIssue } {
-  const parser = new SaxesParser({ position: true })
-  const roots: XNode[] = []
-  const stack: XNode[] = []
-  const siblings: Map<string, number>[] = [new Map()]
-  const parts: string[][] = []
-  let current = ''
-  let tagLine = 1
-  let issue: ReadIssue | null = null
-  const flush = () => {
-    const t = current.trim()
-    if (t !== '' && parts.length > 0) parts[parts.length - 1]!.push(t)
-    current = ''
+class TreeBuilder {
+  readonly roots: XNode[] = []
+  issue: ReadIssue | null = null
+  /** no element and nothing but white space so far */
+  empty = true
+  private parser = new SaxesParser({ position: true })
+  private stack: XNode[] = []
+  private siblings: Map<string, number>[] = [new Map()]
+  private parts: string[][] = []
+  private current = ''
+  private tagLine = 1
+
+  constructor(private closed: (node: XNode) => void) {
+    const parser = this.parser
+    parser.on('error', (e) => {
+      const msg = e.message.replace(/^[^:]*:\d+:\d+: /, '')
+      this.issue ??= { line: Math.max(1, parser.line), column: 'xml', message: `is not well-formed XML (column ${parser.column}): ${msg}` }
+      throw STOP
+    })
+    // Fired once the name is read, so the parser already stands past the
+    // character after it; when that was a line break (column 0), the tag began on the line before.
+    parser.on('opentagstart', () => { this.tagLine = parser.column === 0 ? parser.line - 1 : parser.line })
+    parser.on('opentag', (tag) => this.open(tag.name, tag.attributes as Record<string, string>))
+    parser.on('text', (t) => { this.current += t })
+    parser.on('cdata', (t) => { this.current += t })
+    parser.on('closetag', () => this.close1())
   }
-  parser.on('error', (e) => {
-    const msg = e.message.replace(/^[^:]*:\d+:\d+: /, '')
-    issue ??= { line: Math.max(1, parser.line), column: 'xml', message: `is not well-formed XML (column ${parser.column}): ${msg}` }
-    throw STOP
-  })
-  // Fired once the name is read, so the parser already stands past the
-  // character after it; when that was a line break (column 0), the tag began on the line before.
-  parser.on('opentagstart', () => { tagLine = parser.column === 0 ? parser.line - 1 : parser.line })
-  parser.on('opentag', (tag) => {
-    flush()
-    if (stack.length >= MAX_DEPTH) {
-      issue ??= { line: tagLine, column: 'xml', message: `nests elements more than ${MAX_DEPTH} deep` }
+
+  /** Feeds one slice; false once the text is known not to be well-formed. */
+  write(slice: string): boolean {
+    if (this.empty && slice.trim() !== '') this.empty = false
+    return this.run(() => this.parser.write(slice))
+  }
+
+  close(): boolean {
+    // an empty document is reported as such, not as a parser error
+    return this.empty || this.run(() => this.parser.close())
+  }
+
+  private run(step: () => void): boolean {
+    try {
+      step()
+    } catch (e) {
+      if (e !== STOP) throw e
+    }
+    return this.issue === null
+  }
+
+  private flush() {
+    const t = this.current.trim()
+    if (t !== '' && this.parts.length > 0) this.parts[this.parts.length - 1]!.push(t)
+    this.current = ''
+  }
+
+  private open(qname: string, attributes: Record<string, string>) {
+    this.flush()
+    if (this.stack.length >= MAX_DEPTH) {
+      this.issue ??= { line: this.tagLine, column: 'xml', message: `nests elements more than ${MAX_DEPTH} deep` }
       throw STOP
     }
-    const name = local(tag.name)
-    const counts = siblings[siblings.length - 1]!
+    const name = local(qname)
+    const counts = this.siblings[this.siblings.length - 1]!
     const ordinal = (counts.get(name) ?? 0) + 1
     counts.set(name, ordinal)
     const attrs: Attrs = {}
-    for (const [k, v] of Object.entries(tag.attributes as Record<string, string>)) {
+    for (const k in attributes) {
       if (k === 'xmlns' || k.startsWith('xmlns:')) continue
-      attrs[local(k)] = v
+      attrs[local(k)] = attributes[k]!
     }
-    const parent = stack[stack.length - 1] ?? null
-    const node: XNode = { name, attrs, text: '', children: [], line: tagLine, parent, ordinal }
-    ;(parent ? parent.children : roots).push(node)
-    stack.push(node)
-    siblings.push(new Map())
-    parts.push([])
-  })
-  parser.on('text', (t) => { current += t })
-  parser.on('cdata', (t) => { current += t })
-  parser.on('closetag', () => {
-    flush()
-    const node = stack.pop()
-    siblings.pop()
-    const own = parts.pop()
-    if (node && own && own.length > 0) node.text = own.join(' ')
-  })
-  try {
-    for (let i = 0; i < text.length; i += SLICE) {
-      // never split a surrogate pair between two slices
-      let end = Math.min(i + SLICE, text.length)
-      const last = text.charCodeAt(end - 1)
-      if (end < text.length && last >= 0xd800 && last <= 0xdbff) end++
-      parser.write(text.slice(i, end))
-      i = end - SLICE
-    }
-    parser.close()
-  } catch (e) {
-    if (e !== STOP) throw e
+    const parent = this.stack[this.stack.length - 1] ?? null
+    const node: XNode = { name, attrs, text: '', children: [], line: this.tagLine, parent, ordinal }
+    ;(parent ? parent.children : this.roots).push(node)
+    this.stack.push(node)
+    this.siblings.push(new Map())
+    this.parts.push([])
   }
-  if (issue) return { ok: false, issue }
-  return { ok: true, roots }
+
+  private close1() {
+    this.flush()
+    const node = this.stack.pop()
+    this.siblings.pop()
+    const own = this.parts.pop()
+    if (node && own && own.length > 0) node.text = own.join(' ')
+    if (node) this.closed(node)
+  }
 }
 
 interface PendingObservation {
@@ -252,29 +297,78 @@ interface PendingObservation {
 }
 
 interface Setup {
-  node: XNode
   set: string
   station: string
   hi: number | null
 }
 
+const isRoot = (node: XNode | null): boolean => node !== null && node.parent === null && node.name === 'LandXML'
+
 class Context {
   controls: ControlRecord[] = []
-  observations: ObservationRecord[] = []
+  /** records read and not yet taken by the batch consumer */
+  out: ObservationRecord[] = []
+  /** records handed out so far */
+  emitted = 0
+  unitsRead = false
   private metresPerUnit = 1
   private linearSymbol = 'm'
   private angular: AngularUnit = 'decimal degrees'
   private direction: AngularUnit = 'decimal degrees'
   private setups = new Map<string, Setup>()
+  // RawObservations wait here, in document order, until their set-up is known
   private pending: PendingObservation[] = []
+  private pendingHead = 0
   private setupCount = 0
-  private approximate: XNode[] = []
+  private approximateFirst: XNode | null = null
+  private approximateCount = 0
   private controlNames = new Set<string>()
 
   constructor(
     private errors: ReadIssue[],
     private warnings: ReadIssue[],
   ) {}
+
+  take(): ObservationRecord[] {
+    const batch = this.out
+    this.out = []
+    this.emitted += batch.length
+    return batch
+  }
+
+  /**
+   * Told of each element as its end tag is read. Once the units are known,
+   * every child of LandXML (and every child of a Survey) is read as it closes
+   * and taken out of the tree, in document order. Until then elements are
+   * kept, and read when the Units element closes.
+   */
+  closed(node: XNode) {
+    const parent = node.parent
+    if (parent && isRoot(parent)) {
+      if (node.name === 'Units') {
+        // the first Units element counts; a later one is passed over, as before streaming
+        if (this.unitsRead) return
+        this.unitsRead = true
+        this.readUnits(node)
+        for (const earlier of parent.children) if (earlier !== node) this.rootChild(earlier)
+        parent.children.length = 0
+        return
+      }
+      if (!this.unitsRead) return
+      this.rootChild(node)
+      parent.children.pop()
+    } else if (parent?.name === 'Survey' && isRoot(parent.parent) && this.unitsRead) {
+      this.surveyChild(node)
+      parent.children.pop()
+    }
+  }
+
+  private rootChild(node: XNode) {
+    if (node.name === 'Units') return
+    if (node.name === 'CgPoints') this.readCgPoints(node)
+    else if (node.name === 'Survey') this.readSurvey(node)
+    else this.unknown(node)
+  }
 
   private err(node: XNode, attr: string | null, message: string) {
     this.errors.push({ line: node.line, column: attr ? `${pathOf(node)}@${attr}` : pathOf(node), message })
@@ -373,7 +467,8 @@ class Context {
       return
     }
     if ((node.attrs.pntSurv ?? '').toLowerCase() !== 'control') {
-      this.approximate.push(node)
+      this.approximateFirst ??= node
+      this.approximateCount++
       return
     }
     const parts = node.text === '' ? [] : node.text.split(/\s+/)
@@ -408,12 +503,17 @@ class Context {
     })
   }
 
+  /** The children of a Survey not yet read (those that closed before the units were known). */
   readSurvey(survey: XNode) {
-    for (const c of survey.children) {
-      if (c.name === 'InstrumentSetup') this.readSetup(c)
-      else if (c.name === 'ObservationGroup') this.readGroup(c)
-      else this.unknown(c)
-    }
+    for (const c of survey.children) this.surveyChild(c)
+    survey.children.length = 0
+  }
+
+  private surveyChild(c: XNode) {
+    if (c.name === 'InstrumentSetup') this.readSetup(c)
+    else if (c.name === 'ObservationGroup') this.readGroup(c)
+    else this.unknown(c)
+    this.drain(false)
   }
 
   private readSetup(node: XNode) {
@@ -432,7 +532,7 @@ class Context {
       }
     }
     const id = (node.attrs.id ?? '').trim()
-    const setup: Setup = { node, set: id !== '' ? id : `setup ${this.setupCount}`, station, hi }
+    const setup: Setup = { set: id !== '' ? id : `setup ${this.setupCount}`, station, hi }
     if (id !== '') {
       if (this.setups.has(id)) this.err(node, 'id', `set-up id '${clip(id)}' is used twice`)
       this.setups.set(id, setup)
@@ -453,16 +553,37 @@ class Context {
     }
   }
 
-  // RawObservations are resolved once every set-up is known, because an
-  // ObservationGroup may come before the InstrumentSetup it refers to.
+  /**
+   * Reads the waiting RawObservations in document order while their set-up
+   * is known; one that names a set-up id not yet read waits (an
+   * ObservationGroup may come before the InstrumentSetup it refers to), and
+   * so does everything after it, until `all` at the end of the file.
+   */
+  private drain(all: boolean) {
+    const q = this.pending
+    while (this.pendingHead < q.length) {
+      const p = q[this.pendingHead]!
+      if (!all && p.setupId !== null && !this.setups.has(p.setupId)) break
+      q[this.pendingHead++] = undefined as unknown as PendingObservation
+      this.readRaw(p)
+    }
+    if (this.pendingHead === q.length) {
+      q.length = 0
+      this.pendingHead = 0
+    } else if (this.pendingHead > 4096 && this.pendingHead * 2 > q.length) {
+      q.splice(0, this.pendingHead)
+      this.pendingHead = 0
+    }
+  }
+
   finish() {
-    for (const p of this.pending) this.readRaw(p)
-    if (this.approximate.length > 0) {
-      const first = this.approximate[0]!
+    this.drain(true)
+    if (this.approximateFirst) {
+      const first = this.approximateFirst
       this.warn(
         first,
         null,
-        `${this.approximate.length} CgPoint(s) not marked pntSurv="control" give approximate positions only and are not held (first: '${clip(first.attrs.name ?? '')}')`,
+        `${this.approximateCount} CgPoint(s) not marked pntSurv="control" give approximate positions only and are not held (first: '${clip(first.attrs.name ?? '')}')`,
       )
     }
   }
@@ -527,7 +648,7 @@ class Context {
       return
     }
     for (const [kind, value] of found) {
-      this.observations.push({
+      this.out.push({
         line: node.line,
         kind,
         at: setup.station,
