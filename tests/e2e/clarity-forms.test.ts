@@ -131,6 +131,12 @@ describe('tolerance profile from page to run', () => {
     await page.getByTestId('verdict').waitFor({ timeout: 30_000 })
     expect(await page.locator('main').innerText()).toContain(`Against ${tolName}`)
     expect(await hatsInText(page)).toEqual([])
+    // the map and the summary speak the project's foot too: a scale bar of round hundredths read as feet,
+    // a grid step in feet, the project height also in feet
+    const scaleText = await page.getByTestId('ellipse-scale').innerText({ timeout: 30_000 })
+    expect(scaleText).toMatch(/the black bar = [\d.]+ ft of ellipse/)
+    expect(await page.getByText(/Local plane grid every/).innerText()).toMatch(/grid every [\d,]+ ft$/)
+    expect(await page.getByTestId('run-plane-reduction').innerText()).toMatch(/project height [\d.]+ m \([\d.]+ ft\)/)
 
     const table = page.locator('[data-testid="station-table"]')
     expect(await table.locator('thead').innerText()).toContain('0.01 ft')
@@ -163,6 +169,12 @@ describe('tolerance profile from page to run', () => {
     await narrow.goto(`${base}/signoff`)
     await narrow.getByTestId('signoff-units').waitFor({ timeout: 30_000 })
     await shot(narrow, 'clarity-signoff-390')
+    // at 390 px the Stations tab keeps Edit and Delete of every row inside the screen
+    await narrow.goto(`${base}/stations`)
+    const del = narrow.getByRole('button', { name: 'Delete CP1' })
+    await del.waitFor()
+    const box = await del.boundingBox()
+    expect(box!.x + box!.width).toBeLessThanOrEqual(390)
     await narrow.goto(`/f/${DEMO.firm}/tolerances`)
     await narrow.locator(`[data-tolerance="${tolName}"]`).waitFor()
     await shot(narrow, 'clarity-tolerances-390')
