@@ -12,7 +12,7 @@ import PDFDocument from 'pdfkit'
 import { XMLBuilder } from 'fast-xml-parser'
 import { METRES_PER } from '../engine/io/units'
 import { formatPrecision, precisionScale, type PrecisionUnit } from '../../shared/precision'
-import { CHART, VERDICT } from '../../shared/palette'
+import { CHART, SLATE, VERDICT } from '../../shared/palette'
 import { naturalSortBy } from '../../shared/natural-sort'
 import type { AccuracyCheck } from './accuracy-check'
 import type { FlaggedObservation, NetworkDrawing, RunSummaryDto, SignedStation } from './signoffs'
@@ -538,11 +538,15 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     doc.save()
     doc.rect(left, top, width, boxH).lineWidth(0.5).strokeColor('#cbd5e1').stroke()
     const at = new Map(net.stations.map((s) => [s.name, s]))
-    doc.lineWidth(0.4).strokeColor('#94a3b8')
-    for (const [a, b] of net.lines) {
+    for (const { a, b, style: line } of networkLineOps(net)) {
       const p = at.get(a); const q = at.get(b)
-      if (p && q) doc.moveTo(px(p.east), py(p.north)).lineTo(px(q.east), py(q.north)).stroke()
+      if (!p || !q) continue
+      doc.lineWidth(line.width).strokeColor(line.color)
+      if (line.dash) doc.dash(line.dash.length, { space: line.dash.space })
+      else doc.undash()
+      doc.moveTo(px(p.east), py(p.north)).lineTo(px(q.east), py(q.north)).stroke()
     }
+    doc.undash()
     // exaggerate so the largest ellipse is about 6 % of the drawing's width
     const maxA = Math.max(0, ...net.stations.map((s) => s.semiMajor95 ?? 0))
     const factor = maxA > 0 ? nice((0.06 * width) / scale / maxA) : 0
@@ -572,15 +576,64 @@ export async function buildPdf(input: DeliverableInput): Promise<Buffer> {
     doc.lineWidth(0.8).moveTo(left + 10, by - 3).lineTo(left + 10, by + 3).stroke().moveTo(left + 10 + barPt, by - 3).lineTo(left + 10 + barPt, by + 3).stroke()
     style('body', 6.5, '#0f172a')
     cell(`${barUnits.toLocaleString('en-US')} ${UNIT_LABEL[u]}`, left + 14 + barPt, by - 4, 80)
-    const legend = factor > 0
-      ? `triangles: held control · dots: adjusted · error ellipses at 95 % confidence, drawn ${factor.toLocaleString('en-US')} × true size · grid north up`
-      : 'triangles: held control · dots: adjusted · grid north up'
-    cell(legend, left + 90 + barPt, by - 4, width - 100 - barPt, 'right')
+    const legend = networkLegend(net, factor)
+    const room = width - 100 - barPt
+    if (widthOf(legend) <= room) cell(legend, left + 90 + barPt, by - 4, room, 'right')
+    else {
+      // too long for one line beside the scale bar: two right-aligned lines, split at the separator nearest the middle
+      const parts = legend.split(' · ')
+      let cut = 1
+      while (cut < parts.length - 1 && parts.slice(0, cut + 1).join(' · ').length <= legend.length / 2) cut++
+      cell(parts.slice(0, cut).join(' · '), left + 90 + barPt, by - 11, room, 'right')
+      cell(parts.slice(cut).join(' · '), left + 90 + barPt, by - 4, room, 'right')
+    }
+    if (net.vectors?.length) {
+      // a sample of the vector line in the drawing's upper left corner, so the legend's words have a key
+      const ky = top + 9
+      const v = NETWORK_LINE.vector
+      doc.lineWidth(v.width).strokeColor(v.color).dash(v.dash!.length, { space: v.dash!.space }).moveTo(left + 8, ky).lineTo(left + 30, ky).stroke().undash()
+      style('body', 6.5, '#0f172a')
+      cell('GNSS vector', left + 34, ky - 3.5, 80)
+    }
     doc.restore()
     doc.x = left
     doc.y = top + boxH + 6
     style('body', 9)
   }
+}
+
+// ── the network drawing's lines ─────────────────────────────────────────────
+
+export interface NetworkLineStyle { color: string; width: number; dash: { length: number; space: number } | null }
+/**
+ * How the PDF tells lines apart: terrestrial observations as thin solid grey
+ * lines, GNSS vectors dashed in the violet the on-screen map uses for its
+ * vector band (CHART.vector), so the same colour means "GNSS vector" on
+ * screen and on paper. The dash, not only the colour, sets vectors apart
+ * (a grey-scale print keeps the difference).
+ */
+export const NETWORK_LINE: Readonly<Record<'observed' | 'vector', NetworkLineStyle>> = {
+  observed: { color: SLATE[400], width: 0.4, dash: null },
+  vector: { color: CHART.vector, width: 0.9, dash: { length: 3, space: 2 } },
+}
+
+/** What the drawing strokes, in order: terrestrial lines first, then vectors over them (a pair with both shows both). */
+export function networkLineOps(net: NetworkDrawing): { a: string; b: string; kind: 'observed' | 'vector'; style: NetworkLineStyle }[] {
+  return [
+    ...net.lines.map(([a, b]) => ({ a, b, kind: 'observed' as const, style: NETWORK_LINE.observed })),
+    ...(net.vectors ?? []).map(([a, b]) => ({ a, b, kind: 'vector' as const, style: NETWORK_LINE.vector })),
+  ]
+}
+
+/** The legend under the drawing; it names vectors only when the network has them. */
+export function networkLegend(net: NetworkDrawing, ellipseFactor: number): string {
+  const vectors = net.vectors?.length ?? 0
+  return [
+    'triangles: held control · dots: adjusted',
+    ...(vectors > 0 ? [`dashed violet: GNSS vector${vectors === 1 ? '' : 's'} (${vectors})`] : []),
+    ...(ellipseFactor > 0 ? [`error ellipses at 95 % confidence, drawn ${ellipseFactor.toLocaleString('en-US')} × true size`] : []),
+    'grid north up',
+  ].join(' · ')
 }
 
 // ── all formats ────────────────────────────────────────────────────────────

@@ -444,6 +444,68 @@ const SAME_OBSERVATION = `coalesce(x.observation_id, -1) = coalesce(y.observatio
   and x.at = y.at and x."to" = y."to" and coalesce(x.component::text, '') = coalesce(y.component::text, '')`
 const CHANGE_LIMIT = 200
 
+/** A vector's whole-vector test in one run: 'untested' when it had no redundancy, absent (null) when the run does not hold it. */
+export type VectorVerdict = 'pass' | 'fail' | 'untested' | 'excluded'
+export interface VectorSideTest { statistic: number | null; critical: number | null; distribution: 'chi2' | 'F' | null; verdict: VectorVerdict }
+export interface VectorChange {
+  id: number | null
+  line: number
+  at: string
+  to: string
+  a: VectorSideTest | null
+  b: VectorSideTest | null
+  /**
+   * statistic in run B − statistic in run A; null unless both runs tested the
+   * vector with the same distribution (a χ² statistic, σ0 known, and an F
+   * statistic, σ0 estimated, are on different scales)
+   */
+  change: number | null
+}
+type VectorChangeSql = {
+  id: number | null; line: number; at: string; to: string
+  inA: boolean; sA: number | null; cA: number | null; dA: string | null; vA: VectorVerdict | null
+  inB: boolean; sB: number | null; cB: number | null; dB: string | null; vB: VectorVerdict | null
+  change: number | null
+}
+
+/**
+ * The GNSS vectors of two runs side by side, one row per vector (its three
+ * component rows folded, as on the vectors route), matched like the other
+ * observations: by stored observation, line and marks. Rows whose verdict
+ * changed come first, then the largest change of the test statistic. Null
+ * when neither run holds a vector.
+ */
+async function compareVectors(firmId: number, a: Adjustment, b: Adjustment, page: number, size: number): Promise<Page<VectorChange> | null> {
+  const db = useDb()
+  const side = (runId: number) => sql`select observation_id as id, min(line) as line, at, "to", bool_or(excluded) as excluded,
+      max(vector_statistic) as s, max(vector_critical) as c, max(vector_distribution) as d, bool_or(vector_flagged) as f
+    from observation_results where ${runScope(firmId, runId)} and kind = 'gnss_baseline' group by observation_id, at, "to"`
+  const verdict = (t: string) => sql.raw(`case when ${t}.line is null then null when ${t}.excluded then 'excluded' when ${t}.s is null or ${t}.c is null then 'untested' when ${t}.f then 'fail' else 'pass' end`)
+  const pairs = sql`with x as (${side(a.id)}), y as (${side(b.id)}), p as (
+      select coalesce(y.id, x.id) as id, coalesce(y.line, x.line) as line, coalesce(y.at, x.at) as at, coalesce(y."to", x."to") as "to",
+        x.line is not null as "inA", x.s as "sA", x.c as "cA", x.d as "dA", ${verdict('x')} as "vA",
+        y.line is not null as "inB", y.s as "sB", y.c as "cB", y.d as "dB", ${verdict('y')} as "vB",
+        case when x.excluded or y.excluded or x.d is distinct from y.d then null else y.s - x.s end as change
+      from x full join y on coalesce(x.id, -1) = coalesce(y.id, -1) and x.line = y.line and x.at = y.at and x."to" = y."to")`
+  const [rows, count] = await Promise.all([
+    db.execute<VectorChangeSql>(sql`${pairs} select * from p
+      order by ("vA" is distinct from "vB") desc, abs(change) desc nulls last, line, id limit ${size} offset ${(page - 1) * size}`),
+    db.execute<{ n: number }>(sql`${pairs} select count(*)::int as n from p`),
+  ])
+  const total = count.rows[0]?.n ?? 0
+  if (total === 0) return null
+  const dist = (s: number | null, d: string | null) => (s === null ? null : d === 'F' ? 'F' as const : 'chi2' as const)
+  return {
+    page, size, total, sort: 'verdict-change',
+    rows: rows.rows.map((r) => ({
+      id: r.id, line: r.line, at: r.at, to: r.to,
+      a: r.inA ? { statistic: r.sA, critical: r.cA, distribution: dist(r.sA, r.dA), verdict: r.vA! } : null,
+      b: r.inB ? { statistic: r.sB, critical: r.cB, distribution: dist(r.sB, r.dB), verdict: r.vB! } : null,
+      change: r.change,
+    })),
+  }
+}
+
 export async function compareRuns(firmId: number, a: Adjustment, b: Adjustment, q: CompareQuery) {
   const db = useDb()
   const offset = (q.page - 1) * q.size
@@ -464,10 +526,11 @@ export async function compareRuns(firmId: number, a: Adjustment, b: Adjustment, 
       order by x.line, x.id limit ${CHANGE_LIMIT}`)
     return Promise.all([onlyIn(b, a), onlyIn(a, b)])
   }
-  const [st, [flagAdded, flagRemoved], [exclAdded, exclRemoved]] = await Promise.all([
+  const [st, [flagAdded, flagRemoved], [exclAdded, exclRemoved], vectors] = await Promise.all([
     shifts,
     changed('(not $excluded and ($flagged or $tau_flagged))'),
     changed('$excluded'),
+    compareVectors(firmId, a, b, q.vpage, q.size),
   ])
   const list = (res: { rows: (ChangedObservation & { total: number })[] }) => ({
     total: res.rows[0]?.total ?? 0,
@@ -477,6 +540,8 @@ export async function compareRuns(firmId: number, a: Adjustment, b: Adjustment, 
     stations: { page: q.page, size: q.size, total: st.rows[0]?.total ?? (q.page === 1 ? 0 : await countShiftRows(firmId, a.id, b.id)), rows: st.rows.map(({ total: _t, ...r }) => r) },
     flags: { added: list(flagAdded), removed: list(flagRemoved) },
     exclusions: { added: list(exclAdded), removed: list(exclRemoved) },
+    /** the GNSS vectors' whole-vector tests in both runs, by page; null when neither run holds a vector */
+    vectors,
   }
 }
 

@@ -163,17 +163,25 @@ export async function runReportExtras(run: Adjustment): Promise<{ network: Netwo
   const stations = (await allStations(run.firmId, run.id)).filter((s) => s.east !== null && s.north !== null)
     .map((s) => ({ name: s.name, east: s.east!, north: s.north!, fixed: s.fixed, semiMajor95: s.ellipse95?.semiMajor ?? null, semiMinor95: s.ellipse95?.semiMinor ?? null, azimuthDeg: s.ellipse95?.azimuthDeg ?? null }))
   // observed lines, one per pair, and the observations still flagged (largest |w| first; a failed GNSS vector once, by its ΔX row)
-  const pairs = await useDb().execute<{ a: string; b: string }>(sql`select distinct least("at", "to") as a, greatest("at", "to") as b from observation_results
-    where firm_id = ${run.firmId} and adjustment_id = ${run.id} and kind <> 'control' and not excluded`)
+  const pairs = await useDb().execute<{ a: string; b: string; terrestrial: boolean; vector: boolean }>(sql`select least("at", "to") as a, greatest("at", "to") as b,
+      bool_or(kind <> 'gnss_baseline') as terrestrial, bool_or(kind = 'gnss_baseline') as vector from observation_results
+    where firm_id = ${run.firmId} and adjustment_id = ${run.id} and kind <> 'control' and not excluded group by 1, 2`)
   const flaggedRows = await useDb().execute<{ line: number; kind: string; at: string; from: string | null; to: string | null; w: number | null }>(sql`select line, kind, "at", "from", "to", w from observation_results
     where firm_id = ${run.firmId} and adjustment_id = ${run.id} and not excluded
       and (flagged or tau_flagged or (coalesce(vector_flagged, false) and component = 'dx')) order by abs(coalesce(w, 0)) desc limit 500`)
-  return { network: { stations, lines: pairs.rows.map((r) => [r.a, r.b] as [string, string]) }, flagged: flaggedRows.rows }
+  const pair = (r: { a: string; b: string }) => [r.a, r.b] as [string, string]
+  return {
+    network: { stations, lines: pairs.rows.filter((r) => r.terrestrial).map(pair), vectors: pairs.rows.filter((r) => r.vector).map(pair) },
+    flagged: flaggedRows.rows,
+  }
 }
 
 export interface NetworkDrawing {
   stations: { name: string; east: number; north: number; fixed: boolean; semiMajor95: number | null; semiMinor95: number | null; azimuthDeg: number | null }[]
+  /** pairs joined by terrestrial observations (directions, angles, distances, levelling…) */
   lines: [string, string][]
+  /** pairs joined by a GNSS vector (a pair may be in both lists) */
+  vectors?: [string, string][]
 }
 export interface FlaggedObservation { line: number; kind: string; at: string; from: string | null; to: string | null; w: number | null }
 

@@ -66,5 +66,7 @@ export const compareQuery = z.object({
   a: z.coerce.number().int().min(1, 'must be a run number'),
   b: z.coerce.number().int().min(1, 'must be a run number'),
   page, size,
+  /** page of the GNSS vector rows (same size as the station shifts) */
+  vpage: page,
 }).strict()
 export type CompareQuery = z.output<typeof compareQuery>

@@ -176,6 +176,8 @@ describe('a run on the demo network', () => {
     expect(c.exclusions.removed.total).toBe(0)
     expect(c.flags.removed.rows.map((o: any) => o.line)).toContain(BLUNDER.line)
     expect(c.flags.added.total).toBe(0)
+    // neither run holds a GNSS vector: no vector rows at all
+    expect(c.vectors).toBeNull()
     expect((await chief.get(`${base}/adjustments/compare?a=1&b=999`)).status).toBe(404)
     expect((await chief.get(`${base}/adjustments/compare?a=1`)).status).toBe(422)
   })

@@ -123,6 +123,101 @@ describe('vectors in a local-plane project', () => {
   })
 })
 
+describe('LandXML 1.2 vectors (public/formats/tiepoint-example-gnss.xml) into a georeferenced project, adjusted', () => {
+  // The example file: pillar W01 held, four vectors W01→W02, W01→W03, W02→W03, W01→T1 (counted by hand),
+  // each covariance D·R·D of the CSV example's σ and ρ, in m².
+  const xml = readFileSync('public/formats/tiepoint-example-gnss.xml')
+  let api: string
+  let number: number
+  beforeAll(async () => {
+    const r = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS LandXML ${Date.now()}`, crs: 'EPSG:25833', units: 'm' })
+    api = base(r.body.id)
+    await chief.patch(api, { geoidSeparationM: 44.87 })
+  })
+
+  it('the upload stores each GPSVector as one vector with σ = √variance and ρ = covariance / (σ·σ)', async () => {
+    const up = await chief.post(`${api}/observation-sets`, fileForm('vectors.xml', xml))
+    expect(up.status, JSON.stringify(up.body)).toBe(201)
+    expect(up.body.observations).toBe(4)
+    const list = await chief.get(`${api}/observations?kind=gnss_baseline&sort=line`)
+    expect(list.body.rows.map((o: any) => [o.at, o.to])).toEqual([['W01', 'W02'], ['W01', 'W03'], ['W02', 'W03'], ['W01', 'T1']])
+    const v = list.body.rows[0].vector
+    expect(v.d).toEqual([-1755.75, 1963.3372, 884.397])
+    // covarianceXX = 1.56816e-5 m² → σX = 3.96 mm; covarianceXY = 2.46518316e-6 → ρXY = 2.46518316e-6 / (0.00396·0.00263) = 0.2367 (by hand)
+    expect(v.sigma[0]).toBeCloseTo(0.00396, 12)
+    expect(v.correlation[0]).toBeCloseTo(0.2367, 9)
+  })
+
+  it('a run adjusts the four vectors in 3D; the triangle\'s vectors are tested, T1\'s lone vector (no redundancy) is not', async () => {
+    const q = await chief.post(`${api}/adjustments`, {})
+    expect(q.status, JSON.stringify(q.body)).toBe(202)
+    number = q.body.number
+    await runDone(chief, `${api}/adjustments/${number}/status`, 120_000)
+    const v = await chief.get(`${api}/adjustments/${number}/vectors?sort=line`)
+    expect(v.body.total).toBe(4)
+    expect(v.body.rows.map((x: any) => x.test !== null)).toEqual([true, true, true, false])
+  })
+
+  it('compare: later sessions give T1\'s vector a test; each vector\'s T in both runs and its change, server-side, paged', async () => {
+    // two more vectors, invented: T1 − W03 and T1 − W02 from the example's vectors, plus about 2 mm of noise
+    const header = 'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note,correlation\n'
+    const session = async (name: string, row: string) => {
+      expect((await chief.post(`${api}/observation-sets`, fileForm(name, header + row + '\n'))).status).toBe(201)
+      const q = await chief.post(`${api}/adjustments`, {})
+      await runDone(chief, `${api}/adjustments/${q.body.number}/status`, 120_000)
+      return q.body.number as number
+    }
+    const second = await session('second.csv', 'gnss_baseline,W03,,T1,562.0130 -3474.3150 241.2150,m,3 3 5,,,,,second session,')
+    const c = await chief.get(`${api}/adjustments/compare?a=${number}&b=${second}&size=2`)
+    expect(c.status, JSON.stringify(c.body)).toBe(200)
+    expect(c.body.vectors.total).toBe(5)
+    // the two whose verdict changed come first: W01→T1 (not tested → tested) and the new W03→T1 (not in run A)
+    const first = c.body.vectors.rows
+    expect(first.map((x: any) => `${x.at}-${x.to}`).sort()).toEqual(['W01-T1', 'W03-T1'])
+    expect(first.find((x: any) => x.at === 'W03').a).toBeNull()
+    const w01t1 = first.find((x: any) => x.at === 'W01')
+    expect(w01t1.a).toMatchObject({ verdict: 'untested', statistic: null, distribution: null })
+    expect(['pass', 'fail']).toContain(w01t1.b.verdict)
+    expect(w01t1.change).toBeNull()
+    // run A has r = 3 = q: its vectors are tested with χ² (σ0 taken as known); run B with F. T on different scales: no change given
+    const triangle = (await chief.get(`${api}/adjustments/compare?a=${number}&b=${second}&size=5`)).body.vectors.rows.slice(2)
+    for (const x of triangle) {
+      expect([x.a.distribution, x.b.distribution]).toEqual(['chi2', 'F'])
+      expect(x.change).toBeNull()
+    }
+
+    const third = await session('third.csv', 'gnss_baseline,W02,,T1,1787.8371 -1519.7410 -990.0785,m,3 3 5,,,,,third session,')
+    const page = async (vpage: number) => (await chief.get(`${api}/adjustments/compare?a=${second}&b=${third}&size=2&vpage=${vpage}`)).body.vectors
+    const p1 = await page(1)
+    expect(p1.total).toBe(6)
+    const rows = [...p1.rows, ...(await page(2)).rows, ...(await page(3)).rows]
+    expect(rows[0]).toMatchObject({ at: 'W02', to: 'T1', a: null }) // the one new vector: its verdict "changed" from absent
+    const both = rows.slice(1)
+    // each T is the run's own vectors route value; change = T(B) − T(A); largest |change| first
+    const tests = async (n: number) => new Map<string, any>((await chief.get(`${api}/adjustments/${n}/vectors?size=50`)).body.rows.map((x: any) => [`${x.at}-${x.to}`, x.test]))
+    const [tb, tc] = await Promise.all([tests(second), tests(third)])
+    for (const x of both) {
+      const k = `${x.at}-${x.to}`
+      expect([x.a.distribution, x.b.distribution]).toEqual(['F', 'F'])
+      expect(x.a.statistic).toBe(tb.get(k).statistic)
+      expect(x.b.statistic).toBe(tc.get(k).statistic)
+      expect(x.change).toBeCloseTo(tc.get(k).statistic - tb.get(k).statistic, 9)
+    }
+    const sizes = both.map((x) => Math.abs(x.change))
+    expect(sizes).toEqual([...sizes].sort((p, q) => q - p))
+    expect((await other.get(`${api}/adjustments/compare?a=${second}&b=${third}`)).status).toBe(404)
+  })
+
+  it('a local-plane project refuses the same file, naming each vector\'s line; nothing is written', async () => {
+    const r0 = await chief.post(`/api/firms/${DEMO.firm}/projects`, { name: `GNSS LandXML local ${Date.now()}`, crs: 'local', units: 'm' })
+    const r = await chief.post(`${base(r0.body.id)}/observation-sets`, fileForm('vectors.xml', xml))
+    expect(r.status).toBe(422)
+    // the GPSVector start tags in the example file (counted by hand)
+    expect(r.body.errors.map((e: any) => [e.line, e.column])).toEqual([[16, 'GPSVector'], [21, 'GPSVector'], [26, 'GPSVector'], [31, 'GPSVector']])
+    expect(await counts(r0.body.id)).toEqual({ observations: 0, sets: 0, stations: 0 })
+  })
+})
+
 describe('a run whose results hold vector rows', () => {
   let fx: Awaited<ReturnType<typeof finishedRun>>
   let runId: number

@@ -14,13 +14,16 @@ let browser: Browser
 let page: Page
 let base: string
 let georeferenced: string
+let demoApi: string
+let chief: Awaited<ReturnType<typeof as>>
 
 beforeAll(async () => {
-  const chief = await as(DEMO.chief)
+  chief = await as(DEMO.chief)
   const projects = await chief.get(`/api/firms/${DEMO.firm}/projects`)
   const demo = projects.body.find((p: { name: string }) => p.name === GNSS_DEMO.name)
   if (!demo) throw new Error('the seeded GNSS demo project is missing')
   const api = `/api/firms/${DEMO.firm}/projects/${demo.id}`
+  demoApi = api
   // the seed queued run 1; the worker adjusts it in 3D
   await runDone(chief, `${api}/adjustments/1/status`, 120_000)
   base = `/f/${DEMO.firm}/projects/${demo.id}/runs/1`
@@ -72,5 +75,25 @@ describe('GNSS vectors in the run report', () => {
     const cell = page.locator('[data-testid="observation-table"] tbody tr').first()
     await cell.getByText('ΔX −1755.7500').waitFor({ timeout: 20_000 })
     expect(await cell.innerText()).toContain('ρXY 0.237')
+  })
+})
+
+describe('GNSS vectors on the compare page', () => {
+  it('lists each vector\'s whole-vector test in both runs, the excluded one marked', async () => {
+    // run 2 of the demo project: run 1 with the vector of line 11 excluded
+    const v = (await chief.get(`${demoApi}/adjustments/1/vectors?sort=line`)).body.rows.find((x: { line: number }) => x.line === 11)
+    const r = await chief.post(`${demoApi}/adjustments/1/exclude`, { observationId: v.id })
+    expect(r.status).toBe(202)
+    await runDone(chief, `${demoApi}/adjustments/${r.body.number}/status`, 120_000)
+    await page.goto(`${base.replace(/\/runs\/1$/, '')}/compare?a=1&b=${r.body.number}`)
+    const table = page.getByTestId('vector-compare-table')
+    await table.waitFor({ timeout: 30_000 })
+    expect(await table.locator('tbody tr[data-line]').count()).toBe(6) // six vectors in the demo file
+    // its verdict changed, so it comes first
+    const first = table.locator('tbody tr[data-line]').first()
+    expect(await first.getAttribute('data-line')).toBe('11')
+    expect(await first.innerText()).toMatch(/passes|flagged/)
+    expect(await first.innerText()).toContain('excluded')
+    await shot(page, 'compare-gnss-vectors')
   })
 })

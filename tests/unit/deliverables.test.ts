@@ -9,7 +9,8 @@ import { extractText, getDocumentProxy } from 'unpdf'
 import { describe, expect, it } from 'vitest'
 import { findCrs } from '../../shared/crs'
 import { readLandXml } from '../../server/engine/io/landxml'
-import { buildCsv, buildDeliverables, buildGeoJson, buildLandXml, buildPdf, CAUTION, pdfSafe } from '../../server/services/deliverables'
+import { buildCsv, buildDeliverables, buildGeoJson, buildLandXml, buildPdf, CAUTION, networkLegend, networkLineOps, pdfSafe } from '../../server/services/deliverables'
+import { CHART } from '../../shared/palette'
 import type { DeliverableInput, Units } from '../../server/services/deliverables'
 import type { SignedStation } from '../../server/services/signoffs'
 import { sha256Hex } from '../../server/services/passwords'
@@ -208,6 +209,46 @@ describe('PDF report', () => {
   it('embeds IBM Plex Sans', async () => {
     const pdf = await buildPdf(local)
     expect(pdf.toString('latin1')).toMatch(/IBMPlexSans/)
+  })
+})
+
+describe('the PDF network drawing marks GNSS vectors apart', () => {
+  const stations = [
+    { name: 'W01', east: 1000, north: 5000, fixed: true, semiMajor95: null, semiMinor95: null, azimuthDeg: null },
+    { name: 'W02', east: 1400, north: 5300, fixed: false, semiMajor95: 0.006, semiMinor95: 0.004, azimuthDeg: 20 },
+    { name: 'T1', east: 1100, north: 5400, fixed: false, semiMajor95: 0.005, semiMinor95: 0.003, azimuthDeg: 80 },
+  ]
+  // W01–T1 is a distance only, W01–W02 a vector only, W02–T1 both
+  const net = { stations, lines: [['W01', 'T1'], ['T1', 'W02']] as [string, string][], vectors: [['W01', 'W02'], ['T1', 'W02']] as [string, string][] }
+
+  it('a vector is stroked dashed in the map\'s vector violet; a distance line solid and not violet', () => {
+    const ops = networkLineOps(net)
+    const distance = ops.find((o) => o.a === 'W01' && o.b === 'T1')!
+    const vector = ops.find((o) => o.a === 'W01' && o.b === 'W02')!
+    expect(distance.kind).toBe('observed')
+    expect(distance.style.dash).toBeNull()
+    expect(distance.style.color).not.toBe(CHART.vector)
+    expect(vector.kind).toBe('vector')
+    expect(vector.style.color).toBe(CHART.vector)
+    expect(vector.style.dash!.length).toBeGreaterThan(0)
+    expect(vector.style.dash!.space).toBeGreaterThan(0)
+  })
+  it('a pair with both is stroked twice, the vector last so its dashes stay visible', () => {
+    const both = networkLineOps(net).filter((o) => o.a === 'T1' && o.b === 'W02').map((o) => o.kind)
+    expect(both).toEqual(['observed', 'vector'])
+  })
+  it('the legend names vectors (with their count) only when the network has some', () => {
+    expect(networkLegend(net, 500)).toContain('dashed violet: GNSS vectors (2)')
+    expect(networkLegend({ stations, lines: net.lines }, 500)).not.toMatch(/GNSS/)
+    expect(networkLegend({ stations, lines: net.lines, vectors: [] }, 0)).toBe('triangles: held control · dots: adjusted · grid north up')
+  })
+  it('the PDF prints the vector key and legend beside the drawing', async () => {
+    const inp = input('local', 'm', [st('W02', 1400, 5300, 10)])
+    inp.network = net
+    const { text } = await extractText(await getDocumentProxy(new Uint8Array(await buildPdf(inp))), { mergePages: true })
+    const flat = text.replace(/\s+/g, ' ')
+    expect(flat).toContain('GNSS vector')
+    expect(flat).toContain('dashed violet: GNSS vectors (2)')
   })
 })
 

@@ -14,6 +14,8 @@
 //   slope_distance, horizDistance → horizontal_distance, azimuth → azimuth.
 //   instrumentHeight and targetHeight become hi and ht.
 // - RawObservations in an ObservationGroup find their set-up by setupID.
+// - GPSSetup and GPSVector (with its GPSQCInfoLevel2 covariance) become
+//   gnss_baseline records; the mapping and its sources are in ./landxml-gnss.ts.
 // - Every issue carries the real source line of the element (where its start
 //   tag begins, from the SAX parser) and, as its column, the element path with ordinals, e.g.
 //   "Survey[1]/InstrumentSetup[2]/RawObservation[4]@horizAngle".
@@ -23,6 +25,7 @@
 import { SaxesParser } from 'saxes'
 import type { ControlRecord, ObservationKind, ObservationRecord, ReadIssue, ReadResult, RecordBatches } from '../types'
 import { RAD_PER_DEG, RAD_PER_GON, clip, parseNumber, parsePackedDms, type Parsed } from './units'
+import { GnssVectors } from './landxml-gnss'
 
 type Attrs = Record<string, string>
 interface XNode {
@@ -157,7 +160,7 @@ export function* readLandXmlBatches(source: string | Uint8Array, batchSize = LAN
   if (errors.length > 0) return { ok: false, errors, warnings }
   if (rest.length > 0) yield rest
   if (ctx.controls.length === 0 && ctx.emitted === 0) {
-    warnings.push({ line: root.line, column: pathOf(root), message: 'holds no control points or raw observations' })
+    warnings.push({ line: root.line, column: pathOf(root), message: 'holds no control points, raw observations or GNSS vectors' })
   }
   return { ok: true, controls: ctx.controls, warnings }
 }
@@ -323,6 +326,13 @@ class Context {
   private approximateFirst: XNode | null = null
   private approximateCount = 0
   private controlNames = new Set<string>()
+  // GPSSetup / GPSVector / GPSPosition of a Survey (./landxml-gnss.ts)
+  private gnss = new GnssVectors<XNode>({
+    err: (n, a, m) => this.err(n, a, m),
+    warn: (n, a, m) => this.warn(n, a, m),
+    unknown: (n) => this.unknown(n),
+    unit: () => ({ metres: this.metresPerUnit, symbol: this.linearSymbol }),
+  })
 
   constructor(
     private errors: ReadIssue[],
@@ -380,11 +390,12 @@ class Context {
 
   unknown(node: XNode) {
     if (METADATA.has(node.name)) return
-    // Satellite elements carry the vectors the network would be adjusted with;
-    // ignoring them would adjust a different network than the file describes,
-    // so the file is refused until the reader maps them (CSV reads vectors).
+    // Satellite elements outside the places the reader maps them (GPSSetup,
+    // GPSVector, GPSPosition directly in Survey) may carry vectors the network
+    // would be adjusted with; ignoring them could adjust a different network
+    // than the file describes, so the file is refused.
     if (/^GPS/i.test(node.name)) {
-      this.err(node, null, `element ${node.name}: GNSS vectors in LandXML are not read yet; nothing was read. Write the vectors as gnss_baseline rows of a Tiepoint CSV (value ΔX ΔY ΔZ, sigma σX σY σZ, correlation)`)
+      this.err(node, null, `element ${node.name} is not read here: Tiepoint reads GNSS vectors as GPSSetup and GPSVector elements directly inside Survey; nothing was read`)
       return
     }
     this.warn(node, null, `element ${node.name} is not read by Tiepoint; ignored`)
@@ -512,6 +523,9 @@ class Context {
   private surveyChild(c: XNode) {
     if (c.name === 'InstrumentSetup') this.readSetup(c)
     else if (c.name === 'ObservationGroup') this.readGroup(c)
+    else if (c.name === 'GPSSetup') this.gnss.setup(c)
+    else if (c.name === 'GPSVector') this.gnss.vector(c)
+    else if (c.name === 'GPSPosition') this.gnss.position(c)
     else this.unknown(c)
     this.drain(false)
   }
@@ -578,6 +592,8 @@ class Context {
 
   finish() {
     this.drain(true)
+    // GNSS vectors are few: they are kept until the end, as a vector may name a set-up that comes after it
+    for (const r of this.gnss.finish()) this.out.push(r)
     if (this.approximateFirst) {
       const first = this.approximateFirst
       this.warn(

@@ -161,7 +161,7 @@ describe('errors and warnings name the element and its source line', () => {
       [7, 'LandXML[1]/Survey[1]/InstrumentSetup[1]/RawObservation[1]@vertDistance'],
     ])
   })
-  it('satellite vector elements refuse the file with line and path (the reader does not map them yet; ignoring them would adjust another network)', () => {
+  it('satellite elements outside Survey\'s GPSSetup/GPSVector refuse the file with line and path (ignoring them could adjust another network)', () => {
     const body = [
       '<Survey>', // 4
       '<InstrumentSetup stationName="A"><RawObservation horizAngle="1"><TargetPoint pntRef="B"/></RawObservation></InstrumentSetup>', // 5
@@ -171,7 +171,7 @@ describe('errors and warnings name the element and its source line', () => {
       '</Survey>',
     ].join('\n')
     const errs = errorsOf(readLandXml(doc(body)))
-    expect(errs).toEqual([expect.objectContaining({ line: 7, column: 'LandXML[1]/Survey[1]/ObservationGroup[1]/GPSVector[1]', message: expect.stringMatching(/not read yet.*gnss_baseline rows/) })])
+    expect(errs).toEqual([expect.objectContaining({ line: 7, column: 'LandXML[1]/Survey[1]/ObservationGroup[1]/GPSVector[1]', message: expect.stringMatching(/GPSVector is not read here.*directly inside Survey/) })])
   })
   it('control CgPoints with bad text or duplicate names are errors', () => {
     const body = '<CgPoints>\n<CgPoint name="A" pntSurv="control">1 2 3 4</CgPoint>\n<CgPoint name="B" pntSurv="control">1 x</CgPoint>\n<CgPoint name="C" pntSurv="control">1 2</CgPoint>\n<CgPoint name="C" pntSurv="control">1 2</CgPoint>\n<CgPoint pntSurv="control">1 2</CgPoint>\n</CgPoints>'
