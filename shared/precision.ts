@@ -20,9 +20,14 @@ export interface PrecisionScale {
   key: string
   /** in words, for captions and the PDF */
   words: string
+  /**
+   * one displayed unit is ratio[0] / ratio[1] metres, both integers, so a typed
+   * value converts to metres with a single rounding (parsePrecision)
+   */
+  ratio: readonly [number, number]
 }
 
-const MM: PrecisionScale = { perMetre: 1000, decimals: 1, label: 'mm', key: 'mm', words: 'millimetres (mm)' }
+const MM: PrecisionScale = { perMetre: 1000, decimals: 1, label: 'mm', key: 'mm', words: 'millimetres (mm)', ratio: [1, 1000] }
 
 /** Decides the scale: the only place that knows the rule. */
 export function precisionScale(units: LengthUnit, setting: PrecisionUnit | null | undefined): PrecisionScale {
@@ -35,6 +40,8 @@ export function precisionScale(units: LengthUnit, setting: PrecisionUnit | null 
     label: us ? '0.01 US ft' : '0.01 ft',
     key: us ? 'cusft' : 'cft',
     words: us ? 'hundredths of a US survey foot (0.01 US ft)' : 'hundredths of an international foot (0.01 ft)',
+    // 0.01 ft = 0.003048 m = 3048 / 1 000 000 m; 0.01 US ft = 12/3937 m (1 US ft = 1200/3937 m)
+    ratio: us ? [12, 3937] : [3048, 1_000_000],
   }
 }
 
@@ -42,4 +49,50 @@ export function precisionScale(units: LengthUnit, setting: PrecisionUnit | null 
 export function formatPrecision(metres: number | null | undefined, scale: PrecisionScale, decimals = scale.decimals): string {
   if (metres === null || metres === undefined || !Number.isFinite(metres)) return '—'
   return (metres * scale.perMetre).toFixed(decimals)
+}
+
+/** A small length held in metres, as text for an input in the scale's unit (up to two more decimals than shown, no trailing zeros). */
+export function precisionInputText(metres: number | null | undefined, scale: PrecisionScale): string {
+  if (metres === null || metres === undefined || !Number.isFinite(metres)) return ''
+  return String(Number((metres * scale.perMetre).toFixed(scale.decimals + 2)))
+}
+
+export type ParsedPrecision = { ok: true; metres: number } | { ok: false; message: string }
+
+// A plain decimal number as people type it; a comma is read as the decimal
+// mark. No exponent: nobody types a σ in scientific notation.
+const DECIMAL_RE = /^([+-]?)(\d*)(?:[.,](\d*))?$/
+
+/**
+ * Text typed in the scale's unit to metres. The decimal digits are taken as an
+ * integer n with d decimals, so metres = n · ratio[0] / (ratio[1] · 10^d): the
+ * product and the divisor are exact integers in a double, and the one division
+ * rounds once — "1.25" hundredths of a foot gives the double nearest 0.00381 m,
+ * not 1.25 × 0.003048 rounded twice. Blank text is null (no value).
+ */
+export function parsePrecision(text: string, scale: PrecisionScale): ParsedPrecision | null {
+  const r = convert(text, scale, 1)
+  return r && (r.ok ? { ok: true, metres: r.value } : r)
+}
+
+/** The same in millimetres, for the fields the API takes in mm (a run's station holds): "5" mm stays 5, not 0.005 × 1000. */
+export function parsePrecisionMm(text: string, scale: PrecisionScale): { ok: true; mm: number } | { ok: false; message: string } | null {
+  const r = convert(text, scale, 1000)
+  return r && (r.ok ? { ok: true, mm: r.value } : r)
+}
+
+function convert(text: string, scale: PrecisionScale, perMetre: 1 | 1000): { ok: true; value: number } | { ok: false; message: string } | null {
+  const t = text.trim()
+  if (t === '') return null
+  const m = DECIMAL_RE.exec(t)
+  const int = m?.[2] ?? ''
+  const frac = m?.[3] ?? ''
+  if (!m || (int === '' && frac === '')) return { ok: false, message: `'${t}' is not a number of ${scale.label}` }
+  const n = Number(`${int}${frac}`)
+  const num = scale.ratio[0] * perMetre
+  const divisor = scale.ratio[1] * 10 ** frac.length
+  const exact = n * num <= Number.MAX_SAFE_INTEGER && divisor <= Number.MAX_SAFE_INTEGER && frac.length <= 22
+  const value = exact ? (n * num) / divisor : (Number(`${int || '0'}.${frac || '0'}`) * num) / scale.ratio[1]
+  if (!Number.isFinite(value)) return { ok: false, message: `'${t}' is not a number of ${scale.label}` }
+  return { ok: true, value: m[1] === '-' ? -value : value }
 }

@@ -343,8 +343,10 @@ export const adjustedStations = pgTable('adjusted_stations', {
   controlledNorth: boolean().notNull().default(false),
   controlledHeight: boolean().notNull().default(false),
 }, (t) => [runResultKey('adjusted_stations_run_fk', t), 
-  // one run's rows in stored order: the paged tables' default order and the CSV read it without a sort
-  index('adjusted_stations_run_order').on(t.firmId, t.adjustmentId, t.id)])
+  // one run's rows in stored order: the "as adjusted" order and the CSV read it without a sort
+  index('adjusted_stations_run_order').on(t.firmId, t.adjustmentId, t.id),
+  // the coordinates table's default order, names natural (KF2 before KF10; collation from migration 0008), read without a sort
+  index('adjusted_stations_run_name').on(t.firmId, t.adjustmentId, sql`${t.name} collate "tiepoint_natural"`, t.id)])
 
 export const observationResults = pgTable('observation_results', {
   id: id(),

@@ -14,6 +14,7 @@ import { readObservationCsv } from '../engine/io/csv'
 import { readLandXmlBatches } from '../engine/io/landxml'
 import { RAD_PER_ARCSEC, formatDms, formatGon, formatLength, parseAngle, parseLength } from '../engine/io/units'
 import { aprioriSigma } from '../engine/models/registry'
+import { formatPrecision, precisionScale } from '../../shared/precision'
 import type { BaselineVector, ControlRecord, InstrumentProfile, ObservationRecord, ReadEnd, ReadIssue, ReadResult, RecordBatches } from '../engine/types'
 import { useDb } from '../db/client'
 import { chunked, copyInto, copyNumber, copyText } from '../db/copy'
@@ -487,9 +488,19 @@ function sigmaFor(o: ObservationRow, profile: InstrumentProfile | null, lengthOf
   return value === null ? { value: null, source: 'none' } : { value, source: 'profile' }
 }
 
-function sigmaText(kind: string, sigma: number | null): string {
+/**
+ * A σ as the run pages show it: lengths in the project's precision unit (mm, or hundredths of its
+ * foot: shared/precision.ts), angles in arcseconds or, in gon projects, centesimal seconds
+ * (1 gon = 3240″ = 10 000 cc, so cc = ″ · 10 000 / 3240).
+ */
+function sigmaText(kind: string, sigma: number | null, project: Pick<Project, 'units' | 'angleFormat' | 'precisionUnit'>): string {
   if (sigma === null) return ''
-  return ANGLE_KINDS.has(kind) ? `${(sigma / RAD_PER_ARCSEC).toFixed(1)}″` : `${(sigma * 1000).toFixed(1)} mm`
+  if (ANGLE_KINDS.has(kind)) {
+    const arcsec = sigma / RAD_PER_ARCSEC
+    return project.angleFormat === 'gon' ? `${((arcsec * 10_000) / 3240).toFixed(1)} cc` : `${arcsec.toFixed(1)}″`
+  }
+  const scale = precisionScale(project.units, project.precisionUnit)
+  return `${formatPrecision(sigma, scale)} ${scale.label}`
 }
 
 /** A vector's three components in metres (its frame's unit, whatever the project's), and its three σ in mm. */
@@ -518,7 +529,7 @@ function observationDto(o: ObservationRow, project: Project, profile: Instrument
     id: o.id, setId: o.setId, line: o.line, kind: o.kind, at: o.at, from: o.from, to: o.to,
     value: o.value, originalValue: o.originalValue, edited: o.originalValue !== null && o.originalValue !== o.value,
     display: f.text, displayUnit: f.unit,
-    sigmaUsed: s.value, sigmaDisplay: sigmaText(o.kind, s.value), sigmaSource: s.source,
+    sigmaUsed: s.value, sigmaDisplay: sigmaText(o.kind, s.value, project), sigmaSource: s.source,
     hi: o.hi, ht: o.ht, setName: o.setName, lengthKm: o.lengthKm, note: o.note, excluded: o.excluded, vector: null,
   }
 }

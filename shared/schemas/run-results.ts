@@ -20,7 +20,8 @@ function sortOf<const K extends readonly [string, ...string[]]>(keys: K, fallbac
 export const STATION_SORTS = ['order', 'name', 'east', 'north', 'height', 'sdEast', 'sdNorth', 'sdHeight', 'semiMajor95'] as const
 export const stationPageQuery = z.object({
   page, size, q: search,
-  sort: sortOf(STATION_SORTS, 'order'),
+  /** default: station names in natural order (KF2 before KF10), as surveyors look them up; `order` is as adjusted */
+  sort: sortOf(STATION_SORTS, 'name'),
   kind: z.enum(['control', 'new']).optional(),
   fixed: flag.optional(),
 }).strict()

@@ -308,6 +308,36 @@ describe('a run on the demo network', () => {
   })
 })
 
+describe('the coordinates table\'s default order', () => {
+  it('is natural by station name (KF2 before KF10) on the run GET and the paged route; "as adjusted" stays a choice', async () => {
+    // the demo network with unpadded names, so code-unit order (KF10 before KF2) and natural order differ
+    const csv = DEMO_CSV.replace(/\bKF0(\d)\b/g, 'KF$1')
+    const nat = await projectWithNetwork(DEMO.firm, 'Natural order', csv)
+    const natBase = `/api/firms/${DEMO.firm}/projects/${nat.projectId}/adjustments`
+    const started = await chief.post(natBase, {})
+    expect(started.status).toBe(202)
+    await waitForRun(async () => (await chief.get(`${natBase}/${started.body.number}/status`)).body)
+    const natRun = (await chief.get(`${natBase}/${started.body.number}`)).body
+    expect(natRun.status, natRun.errorText).toBe('done')
+    const natural = ['BM1', 'CP1', 'CP2', ...Array.from({ length: 22 }, (_, i) => `KF${i + 1}`)]
+    expect(natRun.stations.map((s: any) => s.name)).toEqual(natural)
+    const p1 = (await chief.get(`${natBase}/${started.body.number}/stations?size=10`)).body
+    expect(p1.sort).toBe('name')
+    expect(p1.rows.map((s: any) => s.name)).toEqual(natural.slice(0, 10))
+    const p2 = (await chief.get(`${natBase}/${started.body.number}/stations?size=10&page=2`)).body
+    expect(p2.rows.map((s: any) => s.name)).toEqual(natural.slice(10, 20))
+    // the other orders still answer: as adjusted is the stored order, which is not the natural one here
+    const [row] = await useDb().select().from(adjustments).where(and(eq(adjustments.projectId, nat.projectId), eq(adjustments.number, started.body.number)))
+    const stored = (await useDb().select({ id: adjustedStations.id, name: adjustedStations.name }).from(adjustedStations)
+      .where(and(eq(adjustedStations.firmId, nat.firmId), eq(adjustedStations.adjustmentId, row!.id)))).sort((x, y) => x.id - y.id).map((x) => x.name)
+    const asAdjusted = (await chief.get(`${natBase}/${started.body.number}/stations?sort=order&size=50`)).body.rows.map((s: any) => s.name)
+    expect(asAdjusted).toEqual(stored)
+    expect(asAdjusted).not.toEqual(natural)
+    const reversed = (await chief.get(`${natBase}/${started.body.number}/stations?sort=-name&size=3`)).body.rows.map((s: any) => s.name)
+    expect(reversed).toEqual(['KF22', 'KF21', 'KF20'])
+  })
+})
+
 describe('settings and numbering', () => {
   it('422 names the field of an invalid setting', async () => {
     const r = await chief.post(`${base}/adjustments`, { confidence: 2 })

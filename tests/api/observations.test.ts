@@ -425,3 +425,22 @@ describe('σ used (the engine\'s own σ function)', () => {
     expect(rows[1]).toMatchObject({ sigmaUsed: null, sigmaSource: 'none' })
   })
 })
+
+describe('σ used in the project\'s units', () => {
+  // 3.048 mm is exactly one hundredth of an international foot (0.3048 m, Federal Register 24 FR 5348, 1959);
+  // 3.24″ is 10 cc (1 gon = 3240″ = 10 000 cc, ISO 80000-3)
+  const text = `${HEADER}\nslope_distance,A,,B,100.0,m,3.048,,,,,\ndirection,A,,B,10 00 00,dms,3.24,,,,,\n`
+  it('a feet project in hundredths and gon shows 1.00 0.01 ft and 10.0 cc; a metre project 3.0 mm and 3.2″', async () => {
+    const ft = await freshProject(chief, 'Sigma feet', 'ft')
+    const patched = await chief.patch(base(ft), { precisionUnit: 'hundredth_ft', angleFormat: 'gon' })
+    expect(patched.status, JSON.stringify(patched.body)).toBe(200)
+    expect((await chief.post(`${base(ft)}/observation-sets`, fileForm('s.csv', text))).status).toBe(201)
+    const ftRows = (await chief.get(`${base(ft)}/observations?sort=line`)).body.rows
+    expect(ftRows.map((o: { sigmaDisplay: string }) => o.sigmaDisplay)).toEqual(['1.00 0.01 ft', '10.0 cc'])
+
+    const m = await freshProject(chief, 'Sigma metres')
+    expect((await chief.post(`${base(m)}/observation-sets`, fileForm('s.csv', text))).status).toBe(201)
+    const mRows = (await chief.get(`${base(m)}/observations?sort=line`)).body.rows
+    expect(mRows.map((o: { sigmaDisplay: string }) => o.sigmaDisplay)).toEqual(['3.0 mm', '3.2″'])
+  })
+})

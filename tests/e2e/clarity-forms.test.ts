@@ -38,6 +38,19 @@ afterAll(async () => {
   await closeDb()
 })
 
+/** attribute values and <option> texts on the page holding a combining circumflex (U+0302), which no font we ship places on σ */
+const hatsInText = (p: Page) => p.evaluate(() => {
+  const found: string[] = []
+  for (const el of Array.from(document.querySelectorAll('*'))) {
+    for (const a of ['title', 'aria-label', 'placeholder', 'alt']) {
+      const v = el.getAttribute(a)
+      if (v?.includes('\u0302')) found.push(`${el.tagName} ${a}: ${v}`)
+    }
+    if (el.tagName === 'OPTION' && el.textContent?.includes('\u0302')) found.push(`OPTION: ${el.textContent}`)
+  }
+  return found
+})
+
 /** a length in metres as hundredths of an international foot, 2 decimals */
 const hundredths = (m: number) => (m / 0.003048).toFixed(2)
 
@@ -82,6 +95,26 @@ describe('tolerance profile from page to run', () => {
     await select.waitFor()
     expect(await select.locator('option:checked').innerText()).toBe(`Checked against ${tolName} (project setting)`)
     expect(await page.getByTestId('run-tolerance-note').innerText()).toContain(`Source: ${tolSource}`)
+    expect(await page.locator('#run-scaling option:checked').innerText()).toBe('Estimated σ0, a posteriori (default)')
+    expect(await hatsInText(page)).toEqual([])
+    // station holds: σ typed in hundredths of a foot, sent in mm (the run settings' unit): 1.25 × 3.048 = 3.81 mm
+    const holds = page.getByTestId('station-holds')
+    expect(await holds.locator('thead').innerText()).toContain('0.01 ft')
+    await page.getByLabel('How CP2 is held').selectOption('weighted')
+    await page.getByLabel('σE of CP2 in 0.01 ft').fill('1.25')
+    await page.getByLabel('σN of CP2 in 0.01 ft').fill('39.37')
+    let sent: unknown = null
+    await page.route(`**${api}/adjustments`, (route) => {
+      sent = route.request().postDataJSON()
+      return route.fulfill({ status: 422, contentType: 'application/json', body: JSON.stringify({ statusCode: 422, message: 'held back by the test' }) })
+    }, { times: 1 })
+    await page.getByRole('button', { name: 'Start run' }).click()
+    await expect.poll(() => sent).not.toBeNull()
+    expect(sent).toMatchObject({ holds: [{ station: 'CP2', hold: 'weighted', sdEastMm: 3.81, sdNorthMm: 119.99976 }] })
+    await page.getByLabel('σE of CP2 in 0.01 ft').fill('4000')
+    await page.getByRole('button', { name: 'Start run' }).click()
+    await holds.getByText('σE must be at most 3 280.84 0.01 ft').waitFor()
+    await page.getByLabel('How CP2 is held').selectOption('stored')
     await page.locator('section[aria-labelledby="new-run-heading"]').screenshot({ path: `${SCREENSHOTS}/clarity-new-run-form.png` })
     await page.getByRole('button', { name: 'Start run' }).click()
     await page.waitForURL(/\/runs\/\d+$/)
@@ -97,6 +130,13 @@ describe('tolerance profile from page to run', () => {
     await page.reload()
     await page.getByTestId('verdict').waitFor({ timeout: 30_000 })
     expect(await page.locator('main').innerText()).toContain(`Against ${tolName}`)
+    expect(await hatsInText(page)).toEqual([])
+    // the map and the summary speak the project's foot too: a scale bar of round hundredths read as feet,
+    // a grid step in feet, the project height also in feet
+    const scaleText = await page.getByTestId('ellipse-scale').innerText({ timeout: 30_000 })
+    expect(scaleText).toMatch(/the black bar = [\d.]+ ft of ellipse/)
+    expect(await page.getByText(/Local plane grid every/).innerText()).toMatch(/grid every [\d,]+ ft$/)
+    expect(await page.getByTestId('run-plane-reduction').innerText()).toMatch(/project height [\d.]+ m \([\d.]+ ft\)/)
 
     const table = page.locator('[data-testid="station-table"]')
     expect(await table.locator('thead').innerText()).toContain('0.01 ft')
@@ -129,6 +169,12 @@ describe('tolerance profile from page to run', () => {
     await narrow.goto(`${base}/signoff`)
     await narrow.getByTestId('signoff-units').waitFor({ timeout: 30_000 })
     await shot(narrow, 'clarity-signoff-390')
+    // at 390 px the Stations tab keeps Edit and Delete of every row inside the screen
+    await narrow.goto(`${base}/stations`)
+    const del = narrow.getByRole('button', { name: 'Delete CP1' })
+    await del.waitFor()
+    const box = await del.boundingBox()
+    expect(box!.x + box!.width).toBeLessThanOrEqual(390)
     await narrow.goto(`/f/${DEMO.firm}/tolerances`)
     await narrow.locator(`[data-tolerance="${tolName}"]`).waitFor()
     await shot(narrow, 'clarity-tolerances-390')
@@ -136,6 +182,58 @@ describe('tolerance profile from page to run', () => {
     await narrow.locator('#run-tolerance').waitFor()
     await shot(narrow, 'clarity-runs-390')
     await narrow.context().close()
+  })
+})
+
+describe('σ of control in the project\'s precision unit on the Stations tab', () => {
+  // The project is now in feet with hundredths of a foot (set on screen above). Typed σ are
+  // hundredths of an international foot; the API stores metres. Expected metres are
+  // hand-computed products with 0.01 ft = 0.003048 m: 1.25 → 0.00381, 0.7 → 0.0021336,
+  // 39.37 → 0.11999976 (the last one a naive 39.37 × 0.003048 in floating point misses).
+  it('adds a control point with σ typed in hundredths; the API holds metres, the table shows hundredths', async () => {
+    await page.goto(`${base}/stations`)
+    await page.getByRole('button', { name: 'Add station' }).click()
+    const form = page.getByTestId('station-form')
+    await form.waitFor()
+    expect(await form.locator('label[for="st-se"]').innerText()).toContain('0.01 ft')
+    expect(await form.locator('legend').first().innerText()).toContain('σ at 1σ in 0.01 ft')
+    await page.locator('#st-name').fill('CP9')
+    await page.locator('#st-kind').selectOption('control')
+    await page.locator('#st-ce').fill('5000')
+    await page.locator('#st-cn').fill('6000')
+    await page.locator('#st-ch').fill('100')
+    await page.locator('#st-se').fill('1.25')
+    await page.locator('#st-sn').fill('0.7')
+    await page.locator('#st-sh').fill('39.37')
+    await form.getByRole('button', { name: 'Add station' }).click()
+    const row = page.locator('[data-station="CP9"]')
+    await row.waitFor()
+
+    const list = await (await page.request.get(`${api}/stations`)).json() as { name: string; controlEast: number; sdEast: number; sdNorth: number; sdHeight: number }[]
+    const kf = list.find((x) => x.name === 'CP9')!
+    expect(kf.controlEast).toBe(1524) // 5000 ft × 0.3048
+    expect(kf.sdEast).toBe(0.00381)
+    expect(kf.sdNorth).toBe(0.0021336)
+    expect(kf.sdHeight).toBe(0.11999976)
+
+    const head = await page.getByTestId('station-table').locator('thead').innerText()
+    expect(head).toMatch(/σE σN σH\s+0\.01 ft/)
+    expect(head).not.toMatch(/\bmm\b/)
+    expect((await row.locator('td').nth(5).innerText()).trim()).toBe('1.25 0.70 39.37')
+
+    // editing shows the same hundredths back, and saving unchanged keeps the metres
+    await page.getByRole('button', { name: 'Edit CP9' }).click()
+    expect(await page.locator('#st-se').inputValue()).toBe('1.25')
+    expect(await page.locator('#st-sh').inputValue()).toBe('39.37')
+    await page.locator('#st-sn').fill('abc')
+    await page.getByTestId('station-form').getByRole('button', { name: 'Save station' }).click()
+    await page.getByText("σ north: 'abc' is not a number of 0.01 ft").waitFor()
+    await page.locator('#st-sn').fill('0.7')
+    await page.getByTestId('station-form').getByRole('button', { name: 'Save station' }).click()
+    await page.getByTestId('station-form').waitFor({ state: 'detached' })
+    const again = (await (await page.request.get(`${api}/stations`)).json() as typeof list).find((x) => x.name === 'CP9')!
+    expect([again.sdEast, again.sdNorth, again.sdHeight]).toEqual([0.00381, 0.0021336, 0.11999976])
+    await shot(page, 'clarity-stations-hundredths')
   })
 })
 

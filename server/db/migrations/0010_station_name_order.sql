@@ -1,0 +1,1 @@
+CREATE INDEX "adjusted_stations_run_name" ON "adjusted_stations" USING btree ("firm_id","adjustment_id","name" collate "tiepoint_natural","id");
