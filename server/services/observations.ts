@@ -229,7 +229,7 @@ class UploadScan {
   count = 0
   names = new Set<string>()
   firstVector: ObservationRecord | null = null
-  /** cells holding NUL; then vectors in a local-plane project (each a refusal of its own, in that order) */
+  /** cells holding NUL, and vectors in a local-plane project */
   nul: ReadIssue[] = []
   vectors: ReadIssue[] = []
   end: ReadEnd | null = null
@@ -317,11 +317,10 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
       const read = scan.end
       if (!read) throw new Error('the file was not read to its end')
       if (!read.ok) refuse(read)
+      // cells that cannot be stored, control set by field crew, vectors in a local plane: listed together, so one fix does it
       for (const c of read.controls) nulIn(scan.nul, c.line, [['at', c.station]])
-      if (scan.nul.length > 0) refuse({ ok: false, errors: scan.nul.sort((x, y) => x.line - y.line), warnings: read.warnings })
-      const control = controlFromCrew(ctx, read.controls, format)
-      if (control.length > 0) refuse({ ok: false, errors: control, warnings: read.warnings })
-      if (scan.vectors.length > 0) refuse({ ok: false, errors: scan.vectors, warnings: read.warnings })
+      const problems = [...scan.nul, ...controlFromCrew(ctx, read.controls, format), ...scan.vectors]
+      if (problems.length > 0) refuse({ ok: false, errors: problems.sort((x, y) => x.line - y.line), warnings: read.warnings })
       if (scan.firstVector && project.geoidSeparationM === 0) {
         // 0 is the setting's default: say so once, since a forgotten N shifts every height by N
         read.warnings.push({ line: scan.firstVector.line, column: 'kind', message: 'the project\'s geoid separation N is 0 m (the default): vectors tie heights through ellipsoidal heights h = H + N, so set the site\'s N in the project settings before adjusting' })

@@ -14,7 +14,7 @@ import { adjustments, observationResults, observations, projects, runOverviews }
 import { unpackMap } from '../../shared/map-overview'
 import { readLandXml } from '../../server/engine/io/landxml'
 import { as, DEMO, type Client } from '../support/http'
-import { counts, fileForm } from './fielddata-helpers'
+import { counts, fileForm, freshProject } from './fielddata-helpers'
 import { readFileSync } from 'node:fs'
 import { runDone } from '../support/http'
 import { finishedRun } from './signoffs-fixture'
@@ -215,6 +215,16 @@ describe('LandXML 1.2 vectors (public/formats/tiepoint-example-gnss.xml) into a 
     // the GPSVector start tags in the example file (counted by hand)
     expect(r.body.errors.map((e: any) => [e.line, e.column])).toEqual([[16, 'GPSVector'], [21, 'GPSVector'], [26, 'GPSVector'], [31, 'GPSVector']])
     expect(await counts(r0.body.id)).toEqual({ observations: 0, sets: 0, stations: 0 })
+  })
+
+  it('field crew uploading it to a local-plane project get every problem at once: the control CgPoint and each vector, by line', async () => {
+    const p = await freshProject(chief, 'GNSS LandXML crew local')
+    const crew = await as(DEMO.crew)
+    const r = await crew.post(`${base(p)}/observation-sets`, fileForm('vectors.xml', xml))
+    expect(r.status).toBe(422)
+    // line 8: the example's control CgPoint; then its GPSVector start tags (counted by hand)
+    expect(r.body.errors.map((e: any) => [e.line, e.column])).toEqual([[8, 'CgPoint@pntSurv'], [16, 'GPSVector'], [21, 'GPSVector'], [26, 'GPSVector'], [31, 'GPSVector']])
+    expect(await counts(p)).toEqual({ observations: 0, sets: 0, stations: 0 })
   })
 })
 
