@@ -59,6 +59,32 @@ describe('station holds in the new-run form', () => {
     expect(posted).toBe(0)
   })
 
+  it('clears a σ error once its row is corrected or set back to as stored, not only at the next Start run', async () => {
+    const row = page.locator('[data-station="CP2"]')
+    const message = row.getByText('σE must be a number of mm greater than 0')
+    const summary = page.getByText('Some station σ values are not valid')
+    await summary.waitFor()
+    // still wrong: the message stays
+    await page.getByLabel('σE of CP2 in mm').fill('-1')
+    expect(await message.count()).toBe(1)
+    expect(await summary.count()).toBe(1)
+    // corrected: the field's message and the summary go
+    await page.getByLabel('σE of CP2 in mm').fill('4')
+    await message.waitFor({ state: 'detached' })
+    await summary.waitFor({ state: 'detached' })
+    expect(await page.getByLabel('σE of CP2 in mm').getAttribute('aria-invalid')).not.toBe('true')
+
+    // wrong again, then the row set back to "as stored": no σ applies, so no message
+    await page.getByLabel('σE of CP2 in mm').fill('0')
+    await page.getByRole('button', { name: 'Start run' }).click()
+    await message.waitFor()
+    await page.getByLabel('How CP2 is held').selectOption('stored')
+    await summary.waitFor({ state: 'detached' })
+    expect(await message.count()).toBe(0)
+    expect(await page.getByRole('alert').count()).toBe(0)
+    await page.getByLabel('How CP2 is held').selectOption('weighted')
+  })
+
   it('places an API validation error (errors[].field) beside the station field it names', async () => {
     await page.route(`**${api}/adjustments`, (route) => route.fulfill({
       status: 422, contentType: 'application/json',
