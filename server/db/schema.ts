@@ -436,7 +436,9 @@ export const relativePrecisions = pgTable('relative_precisions', {
   allowable: doublePrecision(),
   passes: boolean(),
 }, (t) => [runResultKey('relative_precisions_run_fk', t), 
-  index('relative_precisions_run_order').on(t.firmId, t.adjustmentId, t.id)])
+  index('relative_precisions_run_order').on(t.firmId, t.adjustmentId, t.id),
+  // the relative-precision table's default order, the pair's names natural (from, then to), read without a sort
+  index('relative_precisions_run_pair').on(t.firmId, t.adjustmentId, sql`${t.fromStation} collate "tiepoint_natural"`, sql`${t.toStation} collate "tiepoint_natural"`, t.id)])
 
 // ── sign-off, release, audit ────────────────────────────────────────────────
 

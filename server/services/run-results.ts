@@ -195,12 +195,13 @@ export interface Page<T> { page: number; size: number; total: number; sort: stri
  * `table.id`, qualified: a bare `id` in ORDER BY names an output column first, and the observation
  * page selects observation_id AS "id" (null on control and vector rows), which left them unordered.
  */
-function orderBy(table: string, sort: string, columns: Record<string, string>): SQL {
+function orderBy(table: string, sort: string, columns: Record<string, string | readonly string[]>): SQL {
   const desc = sort.startsWith('-')
   const id = `${table}.id`
   const col = columns[desc ? sort.slice(1) : sort] ?? 'id'
-  const expr = col === 'id' ? id : col
-  return sql.raw(`${expr} ${desc ? 'desc' : 'asc'} nulls last, ${id} asc`)
+  // a sort of several columns (a pair: from, then to) goes the one way in each
+  const exprs = (typeof col === 'string' ? [col] : col).map((c) => `${c === 'id' ? id : c} ${desc ? 'desc' : 'asc'} nulls last`)
+  return sql.raw(`${exprs.join(', ')}, ${id} asc`)
 }
 
 /** `needle` inside `column`, case-insensitive, with no LIKE wildcards to escape. */
@@ -313,8 +314,10 @@ export async function pageVectors(firmId: number, runId: number, q: VectorPageQu
   return { page: q.page, size: q.size, total: count.rows[0]?.n ?? 0, sort: q.sort, rows: (rows.rows as unknown as VectorSqlRow[]).map(vectorOf) }
 }
 
-const RELATIVE_SORT_SQL: Record<string, string> = {
-  order: 'id', from: NAME('from_station'), to: NAME('to_station'), distance: 'distance', semiMajor95: 'semi_major95', ratio: 'semi_major95 / nullif(allowable, 0)',
+// `from` (the default) is the pair by its names, from then to, both natural, so a
+// surveyor finds KF2–KF3 before KF10–KF11 (index relative_precisions_run_pair); `to` the other way round
+const RELATIVE_SORT_SQL: Record<string, string | readonly string[]> = {
+  order: 'id', from: [NAME('from_station'), NAME('to_station')], to: [NAME('to_station'), NAME('from_station')], distance: 'distance', semiMajor95: 'semi_major95', ratio: 'semi_major95 / nullif(allowable, 0)',
 }
 export function pageRelative(firmId: number, runId: number, known: number | undefined, q: RelativePageQuery): Promise<Page<RelativeRow>> {
   const where = [runScope(firmId, runId)]

@@ -56,7 +56,8 @@ export type VectorPageQuery = z.output<typeof vectorPageQuery>
 export const RELATIVE_SORTS = ['order', 'from', 'to', 'distance', 'semiMajor95', 'ratio'] as const
 export const relativePageQuery = z.object({
   page, size, q: search,
-  sort: sortOf(RELATIVE_SORTS, 'order'),
+  /** default: by the pair's station names in natural order, from then to (KF2 before KF10); `order` is as adjusted */
+  sort: sortOf(RELATIVE_SORTS, 'from'),
   /** 1: pairs that pass, 0: pairs that fail (unrated pairs match neither) */
   passes: flag.optional(),
 }).strict()

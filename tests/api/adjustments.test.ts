@@ -11,6 +11,7 @@ import { adjustNetwork } from '../../server/engine/index'
 import { as, DEMO, type Client } from '../support/http'
 import { BLUNDER, DEMO_CSV, projectWithNetwork, readCsv, waitForRun } from './adjustments-fixture'
 import { unpackMap } from '../../shared/map-overview'
+import { naturalCompare } from '../../shared/natural-sort'
 
 let chief: Client
 let fx: Awaited<ReturnType<typeof projectWithNetwork>>
@@ -308,7 +309,7 @@ describe('a run on the demo network', () => {
   })
 })
 
-describe('the coordinates table\'s default order', () => {
+describe('the coordinates and relative-precision tables\' default order', () => {
   it('is natural by station name (KF2 before KF10) on the run GET and the paged route; "as adjusted" stays a choice', async () => {
     // the demo network with unpadded names, so code-unit order (KF10 before KF2) and natural order differ
     const csv = DEMO_CSV.replace(/\bKF0(\d)\b/g, 'KF$1')
@@ -335,6 +336,29 @@ describe('the coordinates table\'s default order', () => {
     expect(asAdjusted).not.toEqual(natural)
     const reversed = (await chief.get(`${natBase}/${started.body.number}/stations?sort=-name&size=3`)).body.rows.map((s: any) => s.name)
     expect(reversed).toEqual(['KF22', 'KF21', 'KF20'])
+
+    // relative precisions: by default the pair's names in natural order, from then to, on the run GET and the paged route
+    const relBase = `${natBase}/${started.body.number}/relative`
+    const storedPairs = (await chief.get(`${relBase}?sort=order&size=500`)).body
+    expect(storedPairs.total).toBeLessThanOrEqual(500)
+    const pair = (p: { from: string; to: string }) => `${p.from}–${p.to}`
+    // expected: ordered in JavaScript by Intl.Collator (ICU, numeric), not by the database
+    const naturalPairs = [...storedPairs.rows].sort((x: any, y: any) => naturalCompare(x.from, y.from) || naturalCompare(x.to, y.to)).map(pair)
+    expect(storedPairs.rows.map(pair)).not.toEqual(naturalPairs)
+    const froms = naturalPairs.map((p) => p.split('–')[0])
+    expect(froms.indexOf('KF2')).toBeGreaterThanOrEqual(0)
+    expect(froms.indexOf('KF2')).toBeLessThan(froms.indexOf('KF11'))
+    expect(naturalPairs.indexOf('CP1–KF9')).toBeGreaterThanOrEqual(0)
+    expect(naturalPairs.indexOf('CP1–KF9')).toBeLessThan(naturalPairs.indexOf('CP1–KF10'))
+    expect(natRun.relative.length).toBeGreaterThanOrEqual(20)
+    expect(natRun.relative.map(pair)).toEqual(naturalPairs.slice(0, natRun.relative.length))
+    const r1 = (await chief.get(`${relBase}?size=10`)).body
+    expect(r1.sort).toBe('from')
+    expect(r1.rows.map(pair)).toEqual(naturalPairs.slice(0, 10))
+    const r2 = (await chief.get(`${relBase}?size=10&page=2`)).body
+    expect(r2.rows.map(pair)).toEqual(naturalPairs.slice(10, 20))
+    const lastFirst = (await chief.get(`${relBase}?sort=-from&size=3`)).body.rows.map(pair)
+    expect(lastFirst).toEqual(naturalPairs.slice(-3).reverse())
   })
 })
 

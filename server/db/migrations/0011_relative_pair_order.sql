@@ -1,0 +1,1 @@
+CREATE INDEX "relative_precisions_run_pair" ON "relative_precisions" USING btree ("firm_id","adjustment_id","from_station" collate "tiepoint_natural","to_station" collate "tiepoint_natural","id");
