@@ -6,7 +6,9 @@ import { readFileSync } from 'node:fs'
 import { extractText, getDocumentProxy } from 'unpdf'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
-import { closeDb } from '../../server/db/client'
+import { and, eq } from 'drizzle-orm'
+import { closeDb, useDb } from '../../server/db/client'
+import { adjustedStations, adjustments } from '../../server/db/schema'
 import { launch, newPage, shot, signIn } from '../support/browser'
 import { as, DEMO } from '../support/http'
 import { finishedRun } from '../api/signoffs-fixture'
@@ -96,9 +98,15 @@ describe('sign-off to client download', () => {
     expect((await chief.patch(feet.base, { units: 'ft' })).status).toBe(200)
     const run = (await chief.get(`${feet.base}/adjustments/${feet.runNumber}`)).body
     const station = run.stations.find((s: { fixed: boolean; east: number | null }) => !s.fixed && s.east !== null)
+    const plan = run.stations.find((s: { fixed: boolean; east: number | null; name: string }) => !s.fixed && s.east !== null && s.name !== station.name)
+    const [stored] = await useDb().select({ id: adjustments.id }).from(adjustments).where(and(eq(adjustments.projectId, feet.projectId), eq(adjustments.number, feet.runNumber)))
+    await useDb().update(adjustedStations).set({ height: null, sdHeight: null })
+      .where(and(eq(adjustedStations.adjustmentId, stored!.id), eq(adjustedStations.name, plan.name)))
     const p = await newPage(browser)
     await signIn(p, DEMO.surveyor)
     await p.goto(`/f/${DEMO.firm}/projects/${feet.projectId}/signoff`)
+    const rowOf = (name: string) => p.locator('[data-testid="signoff-stations"] tbody tr').filter({ has: p.getByRole('cell', { name, exact: true }) })
+    const planRow = rowOf(plan.name)
     await expect.poll(() => p.getByTestId('accuracy-table').count()).toBe(1)
     expect(await p.getByTestId('signoff-units').innerText()).toContain('international feet (ft)')
     const header = await p.locator('[data-testid="signoff-stations"] thead').innerText()
@@ -107,6 +115,15 @@ describe('sign-off to client download', () => {
     // international foot = 0.3048 m exactly (NIST Handbook 44, Appendix C)
     const row = p.locator('[data-testid="signoff-stations"] tbody tr', { hasText: station.name }).first()
     expect(await row.innerText()).toContain((station.east / 0.3048).toFixed(4))
+    // σH beside σE and σN, in the project's precision unit: hundredths of the foot, 1 ft = 0.3048 m (NIST Handbook 44)
+    expect(header).toMatch(/σH\s+0\.01 ft/)
+    const withHeight = run.stations.find((s: { fixed: boolean; east: number | null; sdHeight: number | null }) => !s.fixed && s.east !== null && s.sdHeight !== null && s.name !== plan.name)
+    expect(withHeight).toBeTruthy()
+    const sdH = await rowOf(withHeight.name).locator('[data-col="sdHeight"]').innerText()
+    expect(sdH.trim()).toBe((withHeight.sdHeight / 0.003048).toFixed(2))
+    // a station adjusted in plan only (the demo network has none, so one is made so in the stored result): σH blank
+    expect(await planRow.locator('[data-col="sdHeight"]').innerText()).toBe('')
+    expect(await planRow.locator('[data-col="sdEast"]').innerText()).not.toBe('')
     await shot(p, 'signoff-feet')
     await p.context().close()
   })
