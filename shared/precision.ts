@@ -81,7 +81,19 @@ export function parsePrecisionMm(text: string, scale: PrecisionScale): { ok: tru
   return r && (r.ok ? { ok: true, mm: r.value } : r)
 }
 
-function convert(text: string, scale: PrecisionScale, perMetre: 1 | 1000): { ok: true; value: number } | { ok: false; message: string } | null {
+/**
+ * A length typed in a project's own unit (a project height, a geoid separation) to metres, with the
+ * same single rounding: 1 ft = 3048/10 000 m, 1 US ft = 1200/3937 m (see the header of units.ts).
+ */
+const LENGTH_RATIO: Record<LengthUnit, { ratio: readonly [number, number]; label: string }> = {
+  m: { ratio: [1, 1], label: 'm' }, ft: { ratio: [3048, 10_000], label: 'ft' }, usft: { ratio: [1200, 3937], label: 'US ft' },
+}
+export function parseLength(text: string, units: LengthUnit): ParsedPrecision | null {
+  const r = convert(text, LENGTH_RATIO[units], 1)
+  return r && (r.ok ? { ok: true, metres: r.value } : r)
+}
+
+function convert(text: string, scale: Pick<PrecisionScale, 'ratio' | 'label'>, perMetre: 1 | 1000): { ok: true; value: number } | { ok: false; message: string } | null {
   const t = text.trim()
   if (t === '') return null
   const m = DECIMAL_RE.exec(t)

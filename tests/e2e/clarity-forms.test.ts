@@ -26,7 +26,8 @@ beforeAll(async () => {
   const fx = await projectWithNetwork(DEMO.firm, 'Forms e2e feet', DEMO_CSV)
   projectId = fx.projectId
   // a feet project still showing mm: the setting is changed on screen below
-  await useDb().update(projects).set({ units: 'ft', precisionUnit: 'mm' }).where(eq(projects.id, fx.projectId))
+  // a project height whose foot text (405.041667) does not convert back to the same metres: an unchanged save must keep it
+  await useDb().update(projects).set({ units: 'ft', precisionUnit: 'mm', projectHeightM: 123.4567 }).where(eq(projects.id, fx.projectId))
   base = `/f/${DEMO.firm}/projects/${fx.projectId}`
   api = `/api/firms/${DEMO.firm}/projects/${fx.projectId}`
   browser = await launch()
@@ -87,6 +88,32 @@ describe('tolerance profile from page to run', () => {
     const [p] = await useDb().select().from(projects).where(eq(projects.id, projectId))
     expect(p!.precisionUnit).toBe('hundredth_ft')
     await shot(page, 'clarity-project-settings')
+  })
+
+  it('takes the project height in the project\'s foot, and an unchanged save keeps the metres it was shown from', async () => {
+    // 1 ft = 0.3048 m exactly (NIST Handbook 44, Appendix C)
+    const [before] = await useDb().select().from(projects).where(eq(projects.id, projectId))
+    expect(before!.projectHeightM).toBe(123.4567)
+    await page.getByRole('button', { name: 'Edit', exact: true }).click()
+    const height = page.getByLabel(/^Project height\s+ft$/)
+    expect(Math.abs(Number(await height.inputValue()) * 0.3048 - 123.4567)).toBeLessThan(1e-6)
+    await page.getByRole('button', { name: 'Save' }).click()
+    await page.getByText('Saved.').waitFor()
+    const [same] = await useDb().select().from(projects).where(eq(projects.id, projectId))
+    expect(same!.projectHeightM).toBe(123.4567)
+
+    await page.getByRole('button', { name: 'Edit', exact: true }).click()
+    await height.fill('328.084')
+    // the form's unit switched to metres shows the same height in metres, and back in feet as typed
+    await page.getByLabel('Units').selectOption('m')
+    expect(await page.getByLabel(/^Project height\s+m$/).inputValue()).toBe('100.0000032')
+    await page.getByLabel('Units').selectOption('ft')
+    expect(await height.inputValue()).toBe('328.084')
+    await page.getByRole('button', { name: 'Save' }).click()
+    await page.getByText('Saved.').waitFor()
+    const [typed] = await useDb().select().from(projects).where(eq(projects.id, projectId))
+    expect(typed!.projectHeightM).toBe(100.0000032)
+    expect(await page.getByTestId('project-height').innerText()).toMatch(/100\.0000032 m \(328\.084 ft\)/)
   })
 
   it('the new-run form names the project profile; the finished run names it too and shows hundredths', async () => {

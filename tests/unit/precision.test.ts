@@ -2,7 +2,7 @@
 // international foot = 0.3048 m exactly, U.S. survey foot = 1200/3937 m
 // (Federal Register 24 FR 5348, 1959; NIST Handbook 44, Appendix C).
 import { describe, expect, it } from 'vitest'
-import { formatPrecision, parsePrecision, parsePrecisionMm, precisionInputText, precisionScale } from '../../shared/precision'
+import { formatPrecision, parseLength, parsePrecision, parsePrecisionMm, precisionInputText, precisionScale } from '../../shared/precision'
 
 describe('precision units', () => {
   it('metre projects show millimetres whatever the setting says', () => {
@@ -106,5 +106,18 @@ describe('precision units', () => {
         if (r && !r.ok) expect(r.message).toContain('0.01 ft')
       }
     })
+  })
+})
+
+describe('lengths typed in a project\'s own unit (project height, geoid separation)', () => {
+  // 1 ft = 0.3048 m and 1 US ft = 1200/3937 m exactly (NIST Handbook 44, Appendix C)
+  it('converts feet to metres with one rounding: the double nearest the exact product', () => {
+    // 328.084 ft × 0.3048 = 100.0000032 m exactly in decimals; 328.084 * 0.3048 in doubles is 100.00000320000001
+    expect(parseLength('328.084', 'ft')).toEqual({ ok: true, metres: 100.0000032 })
+    expect(parseLength('0.1', 'ft')).toEqual({ ok: true, metres: 0.03048 })
+    expect(parseLength('3937', 'usft')).toEqual({ ok: true, metres: 1200 })
+    expect(parseLength('-12,5', 'm')).toEqual({ ok: true, metres: -12.5 })
+    expect(parseLength('  ', 'ft')).toBeNull()
+    expect(parseLength('1e3', 'ft')).toEqual({ ok: false, message: "'1e3' is not a number of ft" })
   })
 })
