@@ -10,7 +10,7 @@ import type { SQL } from 'drizzle-orm'
 import Papa from 'papaparse'
 import { CHIEFS } from '../../shared/roles'
 import type { ManualObservations, ObservationPatch, ObservationQuery } from '../../shared/schemas/fielddata'
-import { readObservationCsv } from '../engine/io/csv'
+import { readObservationCsv, readObservationCsvBatches } from '../engine/io/csv'
 import { readLandXmlBatches } from '../engine/io/landxml'
 import { RAD_PER_ARCSEC, formatDms, formatGon, formatLength, parseAngle, parseLength } from '../engine/io/units'
 import { aprioriSigma } from '../engine/models/registry'
@@ -257,22 +257,15 @@ class UploadScan {
   }
 }
 
-/** A whole read result handed out as one batch (the CSV reader reads the whole text at once). */
-function* asBatches(read: ReadResult): RecordBatches {
-  if (!read.ok) return read
-  yield read.observations
-  return { ok: true, controls: read.controls, warnings: read.warnings }
-}
-
 /**
  * Parses and stores one file. Any bad line → 422 listing every one; the same
  * bytes already in the project → 409 naming the earlier set; nothing is
  * written unless everything is.
  *
- * A LandXML file is read while its rows are stored: records go from the
- * reader to the COPY in batches inside the transaction, so a 10 MB file never
- * has all its records, or its whole decoded text, in memory. A bad line found
- * part-way rolls the transaction back, so nothing is written then either.
+ * The file is read while its rows are stored: records go from the reader to
+ * the COPY in batches inside the transaction, so a large file never has all
+ * its records in memory (nor, for LandXML, its whole decoded text). A bad line
+ * found part-way rolls the transaction back, so nothing is written then either.
  */
 export async function uploadObservationSet(ctx: FirmContext, project: Project, input: UploadInput): Promise<UploadResult> {
   const { bytes } = input
@@ -291,9 +284,6 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
   const profileRow = await loadProfile(ctx, input.instrumentProfileId)
   const crewId = await resolveCrew(ctx, project, input.crewId)
   const format: FileFormat = input.format ?? detectFormat(input.name, textOf(bytes.subarray(0, 400)))
-  // The CSV reader reads the whole text at once, so its errors are known before anything is written.
-  const csv = format === 'landxml' ? null : readObservationCsv(textOf(bytes), { heightUnit: project.units, ...(profileRow ? { profile: profileOf(profileRow) } : {}) })
-  if (csv && !csv.ok) refuse(csv)
 
   try {
     return await db.transaction(async (tx) => {
@@ -310,7 +300,9 @@ export async function uploadObservationSet(ctx: FirmContext, project: Project, i
         uploadedBy: ctx.user.id,
         parseReport: {},
       }).returning({ id: observationSets.id })
-      const batches = csv ? asBatches(csv) : readLandXmlBatches(bytes)
+      const batches = format === 'landxml'
+        ? readLandXmlBatches(bytes)
+        : readObservationCsvBatches(textOf(bytes), { heightUnit: project.units, ...(profileRow ? { profile: profileOf(profileRow) } : {}) })
       const scan = new UploadScan(project, format)
       await insertObservations(tx, ctx.firm.id, project.id, set!.id, scan.records(batches))
       // Every refusal below throws inside the transaction: the set and its rows go with it.

@@ -1,7 +1,7 @@
 // Helpers shared by the field-data API tests: fresh projects, a field-crew
 // user made directly in the database, counts of what a project holds.
 import { createHash } from 'node:crypto'
-import { and, eq, sql } from 'drizzle-orm'
+import { and, asc, eq, sql } from 'drizzle-orm'
 import { useDb } from '../../server/db/client'
 import { crewMembers, crews, firms, memberships, observationSets, observations, stations, users } from '../../server/db/schema'
 import { hashPassword } from '../../server/services/passwords'
@@ -57,5 +57,6 @@ export async function outsiderCrewClient(): Promise<Client> {
 export async function auditRows(entityType: string, entityId: string | number) {
   const db = useDb()
   const { auditLog } = await import('../../server/db/schema')
-  return db.select().from(auditLog).where(and(eq(auditLog.entityType, entityType), eq(auditLog.entityId, String(entityId))))
+  // in the order they were written (without ORDER BY PostgreSQL may return them in any order)
+  return db.select().from(auditLog).where(and(eq(auditLog.entityType, entityType), eq(auditLog.entityId, String(entityId)))).orderBy(asc(auditLog.id))
 }

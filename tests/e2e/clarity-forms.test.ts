@@ -11,7 +11,7 @@ import { eq } from 'drizzle-orm'
 import { closeDb, useDb } from '../../server/db/client'
 import { projects, stations } from '../../server/db/schema'
 import { launch, newPage, SCREENSHOTS, shot, signIn } from '../support/browser'
-import { DEMO } from '../support/http'
+import { as, DEMO } from '../support/http'
 import { DEMO_CSV, projectWithNetwork } from '../api/adjustments-fixture'
 
 let browser: Browser
@@ -196,12 +196,17 @@ describe('tolerance profile from page to run', () => {
     await narrow.goto(`${base}/signoff`)
     await narrow.getByTestId('signoff-units').waitFor({ timeout: 30_000 })
     await shot(narrow, 'clarity-signoff-390')
-    // at 390 px the Stations tab keeps Edit and Delete of every row inside the screen
+    // at 390 px the Stations tab keeps Edit and Delete of every row inside the table's frame
+    // (not cut off by it), here with a control point far from the origin (wide coordinates)
+    expect((await (await as(DEMO.chief)).post(`${api}/stations`, { name: 'FAR1', controlEast: 4475336.636, controlNorth: 16029206.532 })).status).toBe(201)
     await narrow.goto(`${base}/stations`)
-    const del = narrow.getByRole('button', { name: 'Delete CP1' })
-    await del.waitFor()
-    const box = await del.boundingBox()
-    expect(box!.x + box!.width).toBeLessThanOrEqual(390)
+    const frame = await narrow.getByTestId('station-table').locator('xpath=..').boundingBox()
+    for (const name of ['Edit FAR1', 'Delete FAR1', 'Delete CP1']) {
+      const button = narrow.getByRole('button', { name })
+      await button.waitFor()
+      const box = await button.boundingBox()
+      expect(box!.x + box!.width, name).toBeLessThanOrEqual(Math.min(390, frame!.x + frame!.width))
+    }
     await narrow.goto(`/f/${DEMO.firm}/tolerances`)
     await narrow.locator(`[data-tolerance="${tolName}"]`).waitFor()
     await shot(narrow, 'clarity-tolerances-390')

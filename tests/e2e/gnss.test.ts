@@ -78,6 +78,28 @@ describe('GNSS vectors in the run report', () => {
   })
 })
 
+describe('GNSS vectors at phone width (390 px)', () => {
+  it('the observations tab and the run report stay within the screen; a vector\'s ΔX ΔY ΔZ wrap instead of widening the table', async () => {
+    const narrow = await newPage(browser, 390, 800)
+    await signIn(narrow, DEMO.chief)
+    const project = base.replace(/\/runs\/1$/, '')
+    for (const path of [`${project}/observations`, base]) {
+      await narrow.goto(path)
+      await narrow.waitForLoadState('networkidle')
+      // nothing, not even a table header's screen-reader text, makes the page scroll sideways
+      expect(await narrow.evaluate(() => document.documentElement.scrollWidth), path).toBeLessThanOrEqual(390)
+    }
+    await narrow.goto(`${project}/observations`)
+    const cell = narrow.locator('[data-testid="observation-table"] tbody tr', { hasText: 'ΔX −1755.7500' }).locator('td.num').filter({ hasText: 'ΔX' }).first()
+    await cell.waitFor({ timeout: 30_000 })
+    const dx = await cell.getByText('ΔX −1755.7500').boundingBox()
+    const dz = await cell.getByText(/^ΔZ /).boundingBox()
+    // the components sit on lines of their own, not side by side
+    expect(dz!.y).toBeGreaterThan(dx!.y + dx!.height / 2)
+    await narrow.context().close()
+  })
+})
+
 describe('GNSS vectors on the compare page', () => {
   it('lists each vector\'s whole-vector test in both runs, the excluded one marked', async () => {
     // run 2 of the demo project: run 1 with the vector of line 11 excluded

@@ -25,6 +25,7 @@ import type {
   ObservationRecord,
   ReadIssue,
   ReadResult,
+  RecordBatches,
 } from '../types'
 import { gnssBaseline } from '../models/gnss-baseline'
 import {
@@ -80,8 +81,29 @@ type Row = (column: Column) => string
 
 /** Reads a Tiepoint observation CSV. Never throws. */
 export function readObservationCsv(text: string, options: CsvReadOptions = {}): ReadResult {
+  const batches = readObservationCsvBatches(text, options)
+  const observations: ObservationRecord[] = []
+  for (;;) {
+    const step = batches.next()
+    if (step.done) return step.value.ok ? { ...step.value, observations } : step.value
+    for (const o of step.value) observations.push(o)
+  }
+}
+
+/** Observation records handed out per batch by readObservationCsvBatches. */
+export const CSV_BATCH = 2_000
+
+/**
+ * Reads a Tiepoint observation CSV like readObservationCsv, handing the
+ * observation records out in batches while it reads (the parser pauses after
+ * each batch), so an upload never holds all of them at once. Records are
+ * handed out only while no error has been found; the reading goes on to list
+ * every error, and the end says whether the file was good (see
+ * RecordBatches). Never throws.
+ */
+export function* readObservationCsvBatches(text: string, options: CsvReadOptions = {}, batchSize = CSV_BATCH): RecordBatches {
   try {
-    return readCsv(typeof text === 'string' ? text : String(text), options)
+    return yield* readCsv(typeof text === 'string' ? text : String(text), options, batchSize)
   } catch (err) {
     // Last resort so that a bug here becomes a clear refusal, not a crash.
     return {
@@ -92,7 +114,7 @@ export function readObservationCsv(text: string, options: CsvReadOptions = {}): 
   }
 }
 
-function readCsv(input: string, options: CsvReadOptions): ReadResult {
+function* readCsv(input: string, options: CsvReadOptions, batchSize: number): RecordBatches {
   // One newline convention keeps papaparse from leaving '\r' in the last field
   // of mixed-ending files; line counts are unchanged by this.
   const text = (input.charCodeAt(0) === 0xfeff ? input.slice(1) : input).replace(/\r\n?/g, '\n')
@@ -115,63 +137,89 @@ function readCsv(input: string, options: CsvReadOptions): ReadResult {
     return newlinesBefore + 1
   }
 
+  // The parser pauses once a batch is full; the loop below hands it out and resumes it.
+  let paused: Papa.Parser | null = null
+  let resumedAt = 0
+  let complete = false
+  let emitted = 0
   Papa.parse<string[]>(text, {
     delimiter: ',',
     newline: '\n',
     quoteChar: '"',
     comments: '#',
     skipEmptyLines: false,
-    step: (result) => {
-      const fields = result.data
-      while (rowStart < text.length && text.charCodeAt(rowStart) === 35 /* # */) {
-        const nl = text.indexOf('\n', rowStart)
-        rowStart = nl === -1 ? text.length : nl + 1
+    complete: () => { complete = true },
+    step: (result, parser) => {
+      takeRow(result)
+      if (observations.length >= batchSize) {
+        // papaparse resumes on the rest of the text from this row's end, and
+        // counts its cursor from there (papaparse 5: ParserHandle.pause)
+        resumedAt += result.meta.cursor
+        paused = parser
+        parser.pause()
       }
-      const line = lineAt(rowStart)
-      rowStart = Math.max(rowStart, result.meta.cursor)
-
-      const first = (fields[0] ?? '').trim()
-      if (first.startsWith('#')) return
-      if (fields.every((f) => f.trim() === '')) return
-
-      for (const e of result.errors) {
-        errors.push({ line, column: 'row', message: quoteErrorMessage(e.code) })
-      }
-      if (result.errors.length > 0) return
-
-      if (header === null) {
-        const h = readHeader(fields, line, errors, warnings)
-        header = h
-        headerWidth = fields.length
-        return
-      }
-      if (header.size === 0) return // header unusable: its errors are already listed
-
-      if (fields.length > headerWidth && fields.slice(headerWidth).some((f) => f.trim() !== '')) {
-        errors.push({
-          line,
-          column: 'row',
-          message: `has ${fields.length} fields but the header has ${headerWidth} (a comma too many, or a note that needs quotes)`,
-        })
-        return
-      }
-      const cols = header
-      const row: Row = (c) => {
-        const i = cols.get(c)
-        return i === undefined ? '' : (fields[i] ?? '').trim()
-      }
-      readRow(row, line, options, errors, warnings, controls, observations, controlSeen)
     },
   })
+  function takeRow(result: Papa.ParseStepResult<string[]>) {
+    const fields = result.data
+    while (rowStart < text.length && text.charCodeAt(rowStart) === 35 /* # */) {
+      const nl = text.indexOf('\n', rowStart)
+      rowStart = nl === -1 ? text.length : nl + 1
+    }
+    const line = lineAt(rowStart)
+    rowStart = Math.max(rowStart, resumedAt + result.meta.cursor)
+
+    const first = (fields[0] ?? '').trim()
+    if (first.startsWith('#')) return
+    if (fields.every((f) => f.trim() === '')) return
+
+    for (const e of result.errors) {
+      errors.push({ line, column: 'row', message: quoteErrorMessage(e.code) })
+    }
+    if (result.errors.length > 0) return
+
+    if (header === null) {
+      const h = readHeader(fields, line, errors, warnings)
+      header = h
+      headerWidth = fields.length
+      return
+    }
+    if (header.size === 0) return // header unusable: its errors are already listed
+
+    if (fields.length > headerWidth && fields.slice(headerWidth).some((f) => f.trim() !== '')) {
+      errors.push({
+        line,
+        column: 'row',
+        message: `has ${fields.length} fields but the header has ${headerWidth} (a comma too many, or a note that needs quotes)`,
+      })
+      return
+    }
+    const cols = header
+    const row: Row = (c) => {
+      const i = cols.get(c)
+      return i === undefined ? '' : (fields[i] ?? '').trim()
+    }
+    readRow(row, line, options, errors, warnings, controls, observations, controlSeen)
+  }
+  while (!complete) {
+    const batch = observations.splice(0)
+    emitted += batch.length
+    if (batch.length > 0 && errors.length === 0) yield batch
+    const parser = paused as Papa.Parser | null
+    paused = null
+    if (!parser) throw new Error('the CSV parser stopped before the end of the text')
+    parser.resume()
+  }
 
   if (header === null) {
     errors.push({ line: 1, column: 'header', message: 'no header row found: the file is empty or holds only comments' })
   }
   if (errors.length > 0) return { ok: false, errors, warnings }
-  if (controls.length === 0 && observations.length === 0) {
+  if (controls.length === 0 && observations.length === 0 && emitted === 0) {
     warnings.push({ line: 1, column: 'file', message: 'holds a header but no control or observation rows' })
   }
-  return { ok: true, controls, observations, warnings }
+  if (observations.length > 0) yield observations
+  return { ok: true, controls, warnings }
 }
 
 function quoteErrorMessage(code: string): string {
