@@ -117,7 +117,7 @@ describe('sign-off to client download', () => {
     expect(await row.innerText()).toContain((station.east / 0.3048).toFixed(4))
     // σH beside σE and σN, in the project's precision unit: hundredths of the foot, 1 ft = 0.3048 m (NIST Handbook 44)
     expect(header).toMatch(/σH\s+0\.01 ft/)
-    const withHeight = run.stations.find((s: { fixed: boolean; east: number | null; sdHeight: number | null }) => !s.fixed && s.east !== null && s.sdHeight !== null && s.name !== plan.name)
+    const withHeight = run.stations.find((s: { fixed: boolean; east: number | null; sdHeight: number | null; name: string }) => !s.fixed && s.east !== null && s.sdHeight !== null && s.name !== plan.name)
     expect(withHeight).toBeTruthy()
     const sdH = await rowOf(withHeight.name).locator('[data-col="sdHeight"]').innerText()
     expect(sdH.trim()).toBe((withHeight.sdHeight / 0.003048).toFixed(2))
