@@ -28,6 +28,7 @@ import type {
   RecordBatches,
 } from '../types'
 import { gnssBaseline } from '../models/gnss-baseline'
+import { READ_BATCH, collectBatches } from './batches'
 import {
   ANGLE_UNITS,
   LENGTH_UNITS,
@@ -81,17 +82,8 @@ type Row = (column: Column) => string
 
 /** Reads a Tiepoint observation CSV. Never throws. */
 export function readObservationCsv(text: string, options: CsvReadOptions = {}): ReadResult {
-  const batches = readObservationCsvBatches(text, options)
-  const observations: ObservationRecord[] = []
-  for (;;) {
-    const step = batches.next()
-    if (step.done) return step.value.ok ? { ...step.value, observations } : step.value
-    for (const o of step.value) observations.push(o)
-  }
+  return collectBatches(readObservationCsvBatches(text, options))
 }
-
-/** Observation records handed out per batch by readObservationCsvBatches. */
-export const CSV_BATCH = 2_000
 
 /**
  * Reads a Tiepoint observation CSV like readObservationCsv, handing the
@@ -101,7 +93,7 @@ export const CSV_BATCH = 2_000
  * every error, and the end says whether the file was good (see
  * RecordBatches). Never throws.
  */
-export function* readObservationCsvBatches(text: string, options: CsvReadOptions = {}, batchSize = CSV_BATCH): RecordBatches {
+export function* readObservationCsvBatches(text: string, options: CsvReadOptions = {}, batchSize = READ_BATCH): RecordBatches {
   try {
     return yield* readCsv(typeof text === 'string' ? text : String(text), options, batchSize)
   } catch (err) {

@@ -160,17 +160,9 @@ export class GnssVectors<E extends GnssElement> {
 
     const d: number[] = []
     for (const attr of ['dX', 'dY', 'dZ'] as const) {
-      const text = node.attrs[attr]
-      if (text === undefined) {
-        this.sink.err(node, attr, 'is missing: a vector needs dX, dY and dZ')
-        ok = false
-        continue
-      }
-      const p = parseNumber(text)
-      if (!p.ok) {
-        this.sink.err(node, attr, p.message)
-        ok = false
-      } else d.push(p.value * metres)
+      const v = this.numberAttr(node, attr, 'is missing: a vector needs dX, dY and dZ')
+      if (v === null) ok = false
+      else d.push(v * metres)
     }
     if (d.length === 3 && Math.hypot(...d) > MAX_BASELINE_M) {
       this.sink.err(node, null, `is too long for a baseline (over ${MAX_BASELINE_M / 1000} km)`)
@@ -203,6 +195,21 @@ export class GnssVectors<E extends GnssElement> {
     return record
   }
 
+  /** A number attribute that must be there, or null with the problem reported (`missing` when absent). */
+  private numberAttr(node: E, attr: string, missing: string): number | null {
+    const text = node.attrs[attr]
+    if (text === undefined) {
+      this.sink.err(node, attr, missing)
+      return null
+    }
+    const p = parseNumber(text)
+    if (!p.ok) {
+      this.sink.err(node, attr, p.message)
+      return null
+    }
+    return p.value
+  }
+
   /**
    * σX σY σZ (metres) and ρXY ρXZ ρYZ from the six covariance terms of
    * GPSQCInfoLevel2, given in the file's linear unit squared:
@@ -212,19 +219,9 @@ export class GnssVectors<E extends GnssElement> {
     const c = {} as Record<CovarianceTerm, number>
     let ok = true
     for (const attr of COVARIANCE) {
-      const text = qc.attrs[attr]
-      if (text === undefined) {
-        this.sink.err(qc, attr, 'is missing: the vector\'s covariance needs all six terms (covarianceXX, XY, XZ, YY, YZ, ZZ)')
-        ok = false
-        continue
-      }
-      const p = parseNumber(text)
-      if (!p.ok) {
-        this.sink.err(qc, attr, p.message)
-        ok = false
-        continue
-      }
-      c[attr] = p.value
+      const v = this.numberAttr(qc, attr, 'is missing: the vector\'s covariance needs all six terms (covarianceXX, XY, XZ, YY, YZ, ZZ)')
+      if (v === null) ok = false
+      else c[attr] = v
     }
     if (!ok) return null
     for (const attr of ['covarianceXX', 'covarianceYY', 'covarianceZZ'] as const) {

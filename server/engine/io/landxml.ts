@@ -23,6 +23,7 @@
 // - The reader never throws, whatever bytes it is given.
 
 import { SaxesParser } from 'saxes'
+import { READ_BATCH, collectBatches } from './batches'
 import type { ControlRecord, ObservationKind, ObservationRecord, ReadIssue, ReadResult, RecordBatches } from '../types'
 import { RAD_PER_DEG, RAD_PER_GON, clip, parseNumber, parsePackedDms, type Parsed } from './units'
 import { GnssVectors } from './landxml-gnss'
@@ -103,17 +104,8 @@ const FULL_CIRCLE = 2 * Math.PI
 
 /** Reads LandXML 1.2 raw observations and control points. Never throws. */
 export function readLandXml(text: string): ReadResult {
-  const batches = readLandXmlBatches(typeof text === 'string' ? text : String(text))
-  const observations: ObservationRecord[] = []
-  for (;;) {
-    const step = batches.next()
-    if (step.done) return step.value.ok ? { ...step.value, observations } : step.value
-    for (const o of step.value) observations.push(o)
-  }
+  return collectBatches(readLandXmlBatches(typeof text === 'string' ? text : String(text)))
 }
-
-/** Observation records handed out per batch by readLandXmlBatches. */
-export const LANDXML_BATCH = 2_000
 
 /**
  * Reads LandXML 1.2 like readLandXml, handing the observation records out in
@@ -124,7 +116,7 @@ export const LANDXML_BATCH = 2_000
  * needs the units, so when the Units element comes after the survey the
  * elements before it are kept until it is read.) Never throws.
  */
-export function* readLandXmlBatches(source: string | Uint8Array, batchSize = LANDXML_BATCH): RecordBatches {
+export function* readLandXmlBatches(source: string | Uint8Array, batchSize = READ_BATCH): RecordBatches {
   const errors: ReadIssue[] = []
   const warnings: ReadIssue[] = []
   const ctx = new Context(errors, warnings)

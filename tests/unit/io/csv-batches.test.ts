@@ -4,20 +4,11 @@
 // counts and line numbers are counted from how each file is built.
 import { describe, expect, it } from 'vitest'
 import { readObservationCsvBatches } from '../../../server/engine/io/csv'
-import type { ObservationRecord, ReadEnd, RecordBatches } from '../../../server/engine/types'
+import type { ObservationRecord } from '../../../server/engine/types'
+import { drain } from './read-helpers'
 
 const HEADER = 'kind,at,from,to,value,unit,sigma,hi,ht,set,length,note'
 
-function drain(batches: RecordBatches): { sizes: number[]; records: ObservationRecord[]; end: ReadEnd } {
-  const sizes: number[] = []
-  const records: ObservationRecord[] = []
-  for (;;) {
-    const step = batches.next()
-    if (step.done) return { sizes, records, end: step.value }
-    sizes.push(step.value.length)
-    records.push(...step.value)
-  }
-}
 
 /** `n` horizontal distances A→Ti, one per line from line 3 (line 2 is a comment); every 7th with a note over two lines. */
 function distances(n: number): string {

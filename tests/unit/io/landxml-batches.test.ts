@@ -6,7 +6,8 @@
 // zenith angle and one slope distance per RawObservation).
 import { describe, expect, it } from 'vitest'
 import { readLandXml, readLandXmlBatches } from '../../../server/engine/io/landxml'
-import type { ObservationRecord, ReadEnd, RecordBatches } from '../../../server/engine/types'
+import type { ObservationRecord } from '../../../server/engine/types'
+import { drain } from './read-helpers'
 
 const UNITS = '<Units><Metric linearUnit="meter" angularUnit="decimal degrees"/></Units>'
 const CONTROL = '<CgPoints><CgPoint name="P0" pntSurv="control">5000 1000</CgPoint></CgPoints>'
@@ -26,16 +27,6 @@ function setupsXml(setups: number, perSetup: number, name = (i: number) => `P${i
 const survey = (setups: number, perSetup: number, name?: (i: number) => string) => `<Survey>\n${setupsXml(setups, perSetup, name)}\n</Survey>`
 const doc = (...parts: string[]) => `<?xml version="1.0" encoding="UTF-8"?>\n<LandXML version="1.2">\n${parts.join('\n')}\n</LandXML>\n`
 
-function drain(batches: RecordBatches): { sizes: number[]; records: ObservationRecord[]; end: ReadEnd } {
-  const sizes: number[] = []
-  const records: ObservationRecord[] = []
-  for (;;) {
-    const step = batches.next()
-    if (step.done) return { sizes, records, end: step.value }
-    sizes.push(step.value.length)
-    records.push(...step.value)
-  }
-}
 
 describe('readLandXmlBatches', () => {
   it('hands out 3 records per RawObservation in batches of the asked size, all of them by the end', () => {

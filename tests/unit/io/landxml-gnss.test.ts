@@ -8,16 +8,8 @@
 // Register 24 FR 5348, 1959). Line numbers are counted in the fixture text.
 import { describe, expect, it } from 'vitest'
 import { readLandXml, readLandXmlBatches } from '../../../server/engine/io/landxml'
-import type { ReadIssue, ReadResult } from '../../../server/engine/types'
+import { errorsOf, ok } from './read-helpers'
 
-function ok(r: ReadResult) {
-  if (!r.ok) throw new Error('expected ok, got errors: ' + JSON.stringify(r.errors))
-  return r
-}
-function errorsOf(r: ReadResult): ReadIssue[] {
-  if (r.ok) throw new Error('expected errors, got ok')
-  return r.errors
-}
 const METRIC = '<Units><Metric linearUnit="meter" angularUnit="decimal degrees"/></Units>'
 const FEET = '<Units><Imperial linearUnit="foot" angularUnit="decimal degrees"/></Units>'
 // line 1 is the declaration, 2 <LandXML>, 3 Units, 4 <Survey>, so the body starts on line 5

@@ -5,19 +5,11 @@
 import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import { readLandXml } from '../../../server/engine/io/landxml'
-import type { ReadIssue, ReadResult } from '../../../server/engine/types'
+import { errorsOf, ok } from './read-helpers'
 
 const DEG = Math.PI / 180
 const fixture = (name: string) => readFileSync(new URL(`../../fixtures/io/${name}`, import.meta.url), 'utf8')
 
-function ok(r: ReadResult) {
-  if (!r.ok) throw new Error('expected ok, got errors: ' + JSON.stringify(r.errors))
-  return r
-}
-function errorsOf(r: ReadResult): ReadIssue[] {
-  if (r.ok) throw new Error('expected errors, got ok')
-  return r.errors
-}
 const UNITS = '<Units><Metric linearUnit="meter" angularUnit="decimal degrees"/></Units>'
 const doc = (body: string, units = UNITS) => `<?xml version="1.0"?>\n<LandXML version="1.2">\n${units}\n${body}\n</LandXML>\n`
 
