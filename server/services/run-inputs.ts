@@ -33,23 +33,16 @@ export interface RunInputs {
   weighting: RunWeighting[]
 }
 
-/** JSON with sorted keys: the same data always gives the same bytes. */
-export function canonicalJson(v: unknown): string {
-  if (v === null || typeof v !== 'object') return JSON.stringify(v ?? null)
-  if (Array.isArray(v)) return `[${v.map(canonicalJson).join(',')}]`
-  const o = v as Record<string, unknown>
-  return `{${Object.keys(o).filter((k) => o[k] !== undefined).sort().map((k) => `${JSON.stringify(k)}:${canonicalJson(o[k])}`).join(',')}}`
-}
-
 /** A list whose items are made one at a time while it is hashed (never held as a second array). */
 export class MappedList<T> {
   constructor(readonly items: readonly T[], readonly map: (item: T) => unknown) {}
 }
 
 /**
- * SHA-256 of canonicalJson(v), fed to the hash in pieces of about 64 KiB:
- * the same bytes, so the same digest, without the whole text (tens of MB at
- * 10,000 stations) ever being one string. A MappedList is hashed as the
+ * SHA-256 of v's canonical JSON (keys sorted, undefined members left out,
+ * undefined array items as null: the same data always gives the same bytes),
+ * fed to the hash in pieces of about 64 KiB, without the whole text (tens of
+ * MB at 10,000 stations) ever being one string. A MappedList is hashed as the
  * array of its mapped items.
  */
 export function canonicalSha256(v: unknown): string {

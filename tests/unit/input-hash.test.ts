@@ -5,7 +5,19 @@
 // are SHA-256 (node:crypto, FIPS 180-4) of JSON text written out here by hand.
 import { createHash } from 'node:crypto'
 import { describe, expect, it } from 'vitest'
-import { MappedList, canonicalJson, canonicalSha256 } from '../../server/services/run-inputs'
+import { MappedList, canonicalSha256 } from '../../server/services/run-inputs'
+
+/**
+ * The one-string canonical JSON that run input hashes were made with before
+ * they were fed in pieces (server/services/run-inputs.ts until 2026-12-04),
+ * kept here as the reference the stored hashes must still match.
+ */
+function canonicalJson(v: unknown): string {
+  if (v === null || typeof v !== 'object') return JSON.stringify(v ?? null)
+  if (Array.isArray(v)) return `[${v.map(canonicalJson).join(',')}]`
+  const o = v as Record<string, unknown>
+  return `{${Object.keys(o).filter((k) => o[k] !== undefined).sort().map((k) => `${JSON.stringify(k)}:${canonicalJson(o[k])}`).join(',')}}`
+}
 
 const sha = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex')
 
